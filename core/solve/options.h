@@ -1,0 +1,46 @@
+#pragma once
+// Method options as the command line, the window and study files see them: named values
+// checked against a spec. Each method turns them into its own typed struct.
+
+#include <map>
+#include <string>
+#include <vector>
+
+namespace sw::solve {
+
+struct OptionSpec {
+    enum class Type { Real, Integer, Boolean, Choice };
+    std::string name;         // snake_case, e.g. "initial_radius"
+    std::string description;  // one line
+    Type type = Type::Real;
+    double defaultValue = 0;  // Boolean: 0/1; Choice: index into choices
+    double lower = -1e300, upper = 1e300;
+    bool lowerOpen = false, upperOpen = false;  // true: the bound itself is not allowed
+    std::vector<std::string> choices;
+
+    std::string defaultText() const;
+    std::string rangeText() const;  // e.g. "> 0", "in (0, 1)", "one of: fixed, armijo, wolfe"
+};
+
+// Values by name as text ("0.5", "wolfe", "true"); missing names take their defaults.
+using OptionValues = std::map<std::string, std::string>;
+
+// Checks every value against the specs. Returns "" when fine, else one sentence naming
+// the option and the valid range, e.g. "option initial_radius: must be > 0 (got -1)".
+std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValues& values);
+// Resolved values with defaults filled in (only call after checkOptions returned "").
+double optionNumber(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name);
+std::string optionChoice(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name);
+
+// When a run stops; shared by every method.
+struct StoppingRules {
+    int maxIterations = 200;             // iteration limit
+    long maxEvaluations = 100000;        // value + gradient + Hessian evaluations
+    double gradientTolerance = 1e-8;     // stop when |g| <= this
+    double relativeGradientTolerance = 0;  // stop when |g| <= this * |g0| (0 = off)
+    double stepTolerance = 1e-14;        // stop when |x_{k+1}-x_k| <= this * (1 + |x_k|)
+    double functionTolerance = 0;        // stop when |f_{k+1}-f_k| <= this * (1 + |f_k|) (0 = off)
+    std::string check() const;           // "" or a sentence
+};
+
+}  // namespace sw::solve

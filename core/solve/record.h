@@ -1,0 +1,134 @@
+#pragma once
+// What a run leaves behind: one IterationRecord per iterate, a termination and its
+// message, and the end point classified by the exact Hessian. Views, reports and the
+// command line draw only from these values.
+
+#include "core/objective/objective.h"
+
+#include <cmath>
+#include <limits>
+#include <string>
+#include <vector>
+
+namespace sw::solve {
+
+inline constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+enum class StepKind {
+    None,               // no step (the final record, or a rejected trial point)
+    Gradient,           // steepest descent -g (possibly scaled)
+    Momentum,           // heavy-ball / Nesterov combination
+    Adaptive,           // Adam's per-coordinate scaled step
+    Newton,             // -H^{-1} g, full or line-searched
+    ModifiedNewton,     // -(H + tau I)^{-1} g
+    SaddleFreeNewton,   // -|H|^{-1} g
+    NegativeCurvature,  // along a direction d with d'Hd < 0
+    Dogleg,             // on the dogleg path between Cauchy and Newton points
+    Cauchy,             // the Cauchy point of the trust-region model
+    Boundary,           // a trust-region step that stops on the boundary
+    Interior,           // a trust-region step strictly inside (unconstrained model minimiser)
+    QuasiNewton,        // -B^{-1} g with a BFGS/L-BFGS/SR1 model
+    ConjugateGradient,  // nonlinear CG direction
+    Simplex,            // Nelder-Mead reflection/expansion/contraction/shrink
+    GaussNewton,        // -(J'J)^{-1} J'r
+    LevenbergMarquardt, // -(J'J + lambda D)^{-1} J'r
+    Cubic,              // cubic-regularisation model minimiser
+};
+const char* toString(StepKind kind);  // kebab-case, e.g. "negative-curvature"
+
+// One trial of a line search.
+struct LineSearchTrial {
+    double alpha = kNaN;
+    double value = kNaN;
+    double slope = kNaN;  // directional derivative g(x + alpha d)'d; NaN when not evaluated
+    bool accepted = false;
+    std::string failed;   // "" when accepted, else "sufficient decrease", "curvature", "non-finite", ...
+};
+
+struct EvaluationCounts {
+    long value = 0;
+    long gradient = 0;
+    long hessian = 0;
+    long total() const { return value + gradient + hessian; }
+};
+
+// Record k describes iterate x_k and the step taken from it toward x_{k+1}.
+// The last record of a finished run holds the final point with step kind None.
+struct IterationRecord {
+    int iteration = 0;
+    Vector x;
+    double value = kNaN;
+    Vector gradient;
+    double gradientNorm = kNaN;
+
+    Vector step;                     // x_{k+1} - x_k (empty on the final record)
+    StepKind stepKind = StepKind::None;
+    double stepLength = kNaN;        // alpha of the line search (1 for full steps)
+    double stepNorm = kNaN;
+    std::vector<LineSearchTrial> trials;
+
+    double trustRadius = kNaN;       // Delta used for this step
+    double ratio = kNaN;             // rho = actual / predicted decrease
+    double damping = kNaN;           // tau, lambda, sigma or momentum, named by dampingName
+    std::string dampingName;         // "tau", "lambda", "sigma", "mu", ... ("" when unused)
+    double predictedDecrease = kNaN; // m(0) - m(p)
+    double actualDecrease = kNaN;    // f(x_k) - f(x_k + p)
+    bool accepted = true;            // false when a trust-region step was rejected (x_{k+1} = x_k)
+
+    Vector hessianEigenvalues;       // ascending; empty when not computed (n > 50)
+    double conditionNumber = kNaN;   // |lambda|max / |lambda|min
+    double angleToSteepestDescent = kNaN;  // degrees between step and -gradient
+    int jacobianRank = -1;           // least-squares methods
+    double jacobianCondition = kNaN;
+
+    EvaluationCounts evaluations;    // cumulative, including this iteration's work
+    std::string note;                // short, readable ("BFGS update skipped: y's <= 0")
+};
+
+enum class Termination {
+    Running,
+    GradientTolerance,   // |g| <= gtol, or |g| <= rtol * |g0|
+    StepTolerance,
+    FunctionTolerance,
+    IterationLimit,
+    EvaluationLimit,
+    LineSearchFailed,
+    TrustRegionCollapsed,
+    NonFinite,
+    StoppedByCaller,
+    Failed,              // a method-specific breakdown (message says which)
+};
+const char* toString(Termination t);  // kebab-case, e.g. "gradient-tolerance"
+bool isConvergence(Termination t);    // gradient, step or function tolerance
+
+enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate };
+const char* toString(PointKind k);    // "minimum", "saddle", ...
+
+struct EndPoint {
+    PointKind kind = PointKind::Unknown;
+    int index = 0;                    // number of negative eigenvalues
+    Vector eigenvalues;               // ascending
+    double tolerance = kNaN;          // |lambda| below this counts as zero
+    std::string description;          // e.g. "saddle of index 1 (eigenvalues -2, 2)"
+};
+
+// Classifies a critical point by the eigenvalues of the symmetric Hessian.
+// An eigenvalue counts as zero when |lambda| <= relativeTolerance * max(1, max|lambda|).
+EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance = 1e-8);
+
+struct Run {
+    std::string methodId;
+    std::string label;               // user's name for this lineup entry (may equal methodId)
+    std::vector<IterationRecord> trace;
+    Termination termination = Termination::Running;
+    std::string message;
+    Vector x;
+    double value = kNaN;
+    double gradientNorm = kNaN;
+    EvaluationCounts evaluations;
+    EndPoint endPoint;
+    int iterations() const { return trace.empty() ? 0 : static_cast<int>(trace.size()) - 1; }
+    bool finished() const { return termination != Termination::Running; }
+};
+
+}  // namespace sw::solve

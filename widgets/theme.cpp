@@ -1,0 +1,7 @@
+#include "widgets/theme.h"
+
+namespace sw::widgets {
+std::vector<QColor> lineupPalette() {
+    return {QColor(0x1f, 0x6f, 0xb4), QColor(0xd9, 0x77, 0x1a), QColor(0x2e, 0x9e, 0x7a), QColor(0xc2, 0x4e, 0x8f)};
+}
+}  // namespace sw::widgets
