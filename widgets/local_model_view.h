@@ -1,0 +1,46 @@
+#pragma once
+// The local model at the selected iterate: contours of the quadratic model
+// m(p) = f + g'p + 1/2 p'Hp drawn over the true contours of f, the Newton point (the model's
+// stationary point), the Hessian's eigenvector axes labelled with their eigenvalues, the
+// trust-region boundary when the track's method has one, and the model's one-line verdict.
+
+#include "widgets/plot_style.h"
+
+class QLabel;
+
+namespace sw::widgets {
+
+class LocalModelView : public PlotView {
+    Q_OBJECT
+public:
+    explicit LocalModelView(QWidget* parent = nullptr);
+
+    // The verdict line shown under the plot ("" when nothing is selected).
+    QString verdict() const;
+    // Half-width of the plotted window around the iterate (0 = automatic from the step,
+    // trust radius and Newton point).
+    void setHalfWidth(double halfWidth);
+    // What is drawn, for tests.
+    int modelContourCount() const { return modelCurves_; }
+    int trueContourCount() const { return trueCurves_; }
+    bool showsNewtonPoint() const;
+    bool showsTrustRegion() const;
+    int eigenAxisCount() const { return eigenAxes_; }
+    // Time of the last true-field sampling, in milliseconds (the brief asks < 10 ms).
+    double lastSampleMilliseconds() const { return sampleMs_; }
+
+protected:
+    void rebuild() override;
+
+private:
+    double halfWidth_ = 0;
+    QLabel* verdict_ = nullptr;
+    QCPCurve* newton_ = nullptr;
+    QCPCurve* trust_ = nullptr;
+    int modelCurves_ = 0;
+    int trueCurves_ = 0;
+    int eigenAxes_ = 0;
+    double sampleMs_ = 0;
+};
+
+}  // namespace sw::widgets

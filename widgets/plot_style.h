@@ -1,0 +1,109 @@
+#pragma once
+// Shared look of the plot views and the base every view derives from: fonts and axis
+// colours taken from the widget's QPalette (so light and dark themes both read well),
+// marker shapes for widgets::Marker, the field's colour gradient, tick labelling for
+// transformed axes (log colour, symmetric log), and export of a plot to PNG, SVG or PDF.
+
+#include "widgets/snapshot.h"
+
+#include <QWidget>
+#include <functional>
+#include <memory>
+#include <qcustomplot.h>
+
+class QVBoxLayout;
+
+namespace sw::widgets {
+
+// QCustomPlot shape for one of our lineup markers.
+QCPScatterStyle::ScatterShape scatterShape(Marker marker);
+// Iterate marker: outline in the track colour, filled lighter so overlapping paths stay legible.
+QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size = 6.0);
+
+// How an end point is marked, by its classification (shapes of our own choosing):
+// minimum = filled disc with a ring, saddle = square with a cross, maximum = upward
+// triangle, degenerate = hollow diamond, unknown = hollow circle.
+QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size = 13.0);
+QString endPointLabel(solve::PointKind kind);
+
+// Axis, grid and background colours from the palette of `plot`; call again when the palette changes.
+void applyPlotStyle(QCustomPlot* plot);
+void styleAxisRect(QCPAxisRect* rect, const QPalette& palette);
+// True when the palette's window colour is dark.
+bool isDarkPalette(const QPalette& palette);
+
+// The landscape's colour gradient: sequential, lightness rising monotonically from a deep
+// blue-violet (low f) to a pale straw (high f); stops chosen for this project.
+QCPColorGradient fieldGradient();
+// Relative lightness (0 dark .. 1 light) of the gradient at position t in [0,1]; used to pick
+// contour-line colours that stay visible on the fill.
+double fieldGradientLightness(double t);
+
+// Compact number for labels and readouts: 4 significant digits, exponent when needed.
+QString formatNumber(double value, int significantDigits = 4);
+
+// Ticks for an axis that shows transform(v) but should be labelled with v. `candidates`
+// returns "nice" real values covering [lo, hi] (real units); the ticker keeps those that
+// fall in the visible range, thinning them to about tickCount().
+class TransformTicker : public QCPAxisTicker {
+public:
+    using Map = std::function<double(double)>;
+    using Candidates = std::function<std::vector<double>(double lo, double hi)>;
+    TransformTicker(Map forward, Map inverse, Candidates candidates);
+
+protected:
+    QVector<double> createTickVector(double tickStep, const QCPRange& range) override;
+    QString getTickLabel(double tick, const QLocale& locale, QChar formatChar, int precision) override;
+    int getSubTickCount(double tickStep) override;
+
+private:
+    Map forward_, inverse_;
+    Candidates candidates_;
+};
+
+// Symmetric log transform sign(v) * log10(1 + |v|/c): keeps the sign of eigenvalues while
+// compressing decades. `c` sets where the linear zone around zero ends.
+double symmetricLog(double value, double c);
+double symmetricLogInverse(double transformed, double c);
+QSharedPointer<TransformTicker> symmetricLogTicker(double c);
+
+// Writes the plot to `path` at w x h pixels; the format follows the suffix: .png, .svg
+// (QSvgGenerator + toPainter, since QCustomPlot has no SVG export), or .pdf. Returns false
+// with a sentence in *error when the suffix is unknown, the size is out of range
+// (1..20000) or the file cannot be written.
+bool exportPlot(QCustomPlot* plot, const QString& path, int w, int h, QString* error);
+
+// Common base of the plot views: holds the snapshot and the selection, owns the plot,
+// and re-applies the palette when the theme changes. Replots are queued.
+class PlotView : public QWidget {
+    Q_OBJECT
+public:
+    explicit PlotView(QWidget* parent = nullptr);
+
+    QCustomPlot* plot() const { return plot_; }
+    void setSnapshot(std::shared_ptr<const Snapshot> snapshot);
+    void setSelection(Selection selection);
+    const std::shared_ptr<const Snapshot>& snapshot() const { return snapshot_; }
+    Selection selection() const { return selection_; }
+    // The selected record, or nullptr when the selection does not name one.
+    const solve::IterationRecord* selectedRecord() const;
+
+signals:
+    // The user picked an iterate on this plot (click near its marker).
+    void selectionRequested(sw::widgets::Selection selection);
+
+protected:
+    // Redraw everything from the snapshot (called on a new snapshot and on theme change).
+    virtual void rebuild() = 0;
+    // Move only the selection-dependent items; the default rebuilds.
+    virtual void selectionChanged() { rebuild(); }
+    void changeEvent(QEvent* event) override;
+    void queueReplot();
+
+    QVBoxLayout* layout_ = nullptr;
+    QCustomPlot* plot_ = nullptr;
+    std::shared_ptr<const Snapshot> snapshot_;
+    Selection selection_;
+};
+
+}  // namespace sw::widgets
