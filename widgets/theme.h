@@ -1,9 +1,31 @@
 #pragma once
-// Colours and markers shared by every view (owned by the widgets; filled in by the workbench work).
+// Colours and markers shared by every view and by the lineup editor.
+#include "widgets/snapshot.h"
+
 #include <QColor>
+#include <QString>
 #include <vector>
 
 namespace sw::widgets {
-// Line colours for method lineup entries, in order of assignment.
+
+// Line colours for method lineup entries, in order of assignment (8 colours, then it
+// repeats; markers differ as well, so colour is never the only cue). See theme.cpp for
+// how they were chosen and checked under simulated colour-vision deficiency.
 std::vector<QColor> lineupPalette();
-}
+// The i-th palette colour (wraps around).
+QColor lineupColour(int index);
+
+// Markers in order of assignment, and their names in study files.
+std::vector<Marker> lineupMarkers();
+Marker lineupMarker(int index);
+QString markerName(Marker marker);
+// Unknown names give Circle and set *ok = false.
+Marker markerFromName(const QString& name, bool* ok = nullptr);
+
+// Colour-vision simulation used to check the palette (and pinned by a test).
+enum class ColourVision { Normal, Protanopia, Deuteranopia, Tritanopia };
+QColor simulateColourVision(const QColor& colour, ColourVision vision);
+// Euclidean distance in CIELAB (CIE 1976 ΔE*ab), D65 white.
+double colourDifference(const QColor& a, const QColor& b);
+
+}  // namespace sw::widgets
