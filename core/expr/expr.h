@@ -10,6 +10,7 @@
 // other folders (objective, fit, analyze, app) are written against this header.
 
 #include <cstddef>
+#include <cstdint>
 #include <memory>
 #include <stdexcept>
 #include <string>
@@ -90,8 +91,13 @@ std::vector<Expression> hessianUpper(const Expression& f, const std::vector<int>
 class Program {
 public:
     struct Workspace {
-        std::vector<double> slots;
+        std::vector<double> slots;           // one value per register (single-point evaluation)
+        std::vector<double> block;           // kBlockSize values per register (block evaluation)
+        std::vector<double*> rows;           // where each register's block lives this time
+        std::uint64_t preparedFor = 0;       // id of the program whose constants are loaded
     };
+    // Points per internal block of evaluateBlock (registers of this many doubles).
+    static constexpr std::size_t kBlockSize = 256;
     // An input of a block evaluation: `count` values at data[i*stride]; stride 0 means one
     // value for the whole block (e.g. a parameter while rows vary).
     struct BlockInput {
@@ -132,10 +138,15 @@ public:
     // Throws FormulaError like Expression::parse.
     DerivativeSet(const std::string& text, const std::vector<std::string>& variables, int order = 2);
     DerivativeSet(const Expression& f, int order = 2);
+    // Derivatives with respect to the listed symbols only (the others, e.g. data columns or
+    // fixed constants, stay program inputs). variables() names the listed symbols.
+    DerivativeSet(const Expression& f, const std::vector<int>& wrt, int order);
 
     int order() const { return order_; }
     int dimension() const { return static_cast<int>(variables_.size()); }
     const std::vector<std::string>& variables() const { return variables_; }
+    // Symbol indices (program inputs) the derivatives are taken with respect to.
+    const std::vector<int>& wrt() const { return wrt_; }
     const Expression& function() const { return function_; }
     const std::vector<Expression>& gradient() const { return gradient_; }
     const std::vector<Expression>& hessianUpper() const { return hessianUpper_; }
@@ -145,6 +156,7 @@ public:
 private:
     int order_ = 2;
     std::vector<std::string> variables_;
+    std::vector<int> wrt_;
     Expression function_;
     std::vector<Expression> gradient_;
     std::vector<Expression> hessianUpper_;

@@ -1,0 +1,281 @@
+// Compiling outputs into one straight-line program, and running it at one point or over
+// blocks of points (structure of arrays).
+//
+// Hash-consing already made common subexpressions one node, so each distinct node becomes
+// one instruction. Registers are allocated by a linear scan over the instructions in
+// topological order: a register is released after the last instruction that reads it and
+// reused for the next result (an instruction may write over its own operand; every loop
+// reads element i before writing element i).
+#include "core/expr/program_impl.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <cstring>
+#include <limits>
+#include <unordered_map>
+
+namespace sw::expr {
+
+namespace {
+std::atomic<std::uint64_t> nextProgramId{1};
+}
+
+Program Program::compile(const std::vector<Expression>& outputs) {
+    auto impl = std::make_shared<Impl>();
+    impl->id = nextProgramId.fetch_add(1);
+    std::shared_ptr<Graph> graph;
+    std::vector<const Node*> roots;
+    for (const auto& e : outputs) {
+        if (!e.valid()) continue;
+        if (!graph) graph = e.graph();
+        roots.push_back(e.node());
+    }
+    impl->inputs = graph ? static_cast<int>(graph->symbols().size()) : 0;
+    const std::vector<const Node*> order = topologicalOrder(roots);
+
+    // Last reader of each node (outputs live to the end).
+    constexpr std::size_t kForever = std::numeric_limits<std::size_t>::max();
+    std::unordered_map<const Node*, std::size_t> lastUse;
+    for (std::size_t i = 0; i < order.size(); ++i)
+        for (const Node* c : {order[i]->a, order[i]->b, order[i]->c})
+            if (c) lastUse[c] = i;
+    for (const Node* r : roots) lastUse[r] = kForever;
+
+    std::unordered_map<const Node*, int> reg;
+    int next = impl->inputs;
+    for (const Node* n : order) {
+        if (n->op == Op::Symbol) reg[n] = n->symbol;
+        else if (n->op == Op::Constant) {
+            reg[n] = next;
+            impl->constants.emplace_back(next, n->value);
+            ++next;
+        }
+    }
+    std::vector<int> freeRegisters;
+    for (std::size_t i = 0; i < order.size(); ++i) {
+        const Node* n = order[i];
+        if (n->op == Op::Symbol || n->op == Op::Constant) continue;
+        Instruction in;
+        in.op = n->op;
+        int k = 0;
+        if (n->op == Op::Select) in.code = Code::Select;
+        else if (arity(n->op) == 1) in.code = Code::Unary;
+        else if (n->op == Op::Pow && n->b->isConstant() && isSmallInteger(n->b->value, &k)) {
+            in.code = k == 2 ? Code::Square : k == 3 ? Code::Cube : k == 4 ? Code::Fourth : k == -1 ? Code::Reciprocal : Code::PowInteger;
+            in.n = k;
+        } else in.code = Code::Binary;
+        in.a = reg.at(n->a);
+        if (n->b && in.code == Code::Binary) in.b = reg.at(n->b);
+        if (n->op == Op::Select) {
+            in.b = reg.at(n->b);
+            in.c = reg.at(n->c);
+        }
+        // Release operands read for the last time here (temporaries only).
+        const Node* released[3] = {nullptr, nullptr, nullptr};
+        int count = 0;
+        for (const Node* c : {n->a, n->b, n->c}) {
+            if (!c || c->op == Op::Symbol || c->op == Op::Constant || lastUse[c] != i) continue;
+            if (std::find(released, released + count, c) != released + count) continue;
+            released[count++] = c;
+            freeRegisters.push_back(reg[c]);
+        }
+        if (!freeRegisters.empty()) {
+            in.dst = freeRegisters.back();
+            freeRegisters.pop_back();
+        } else {
+            in.dst = next++;
+        }
+        reg[n] = in.dst;
+        impl->code.push_back(in);
+    }
+    impl->registers = next;
+    std::vector<int> directSeen;
+    for (const Node* r : roots) {
+        const int rr = reg.at(r);
+        impl->outputRegister.push_back(rr);
+        const bool computed = r->op != Op::Symbol && r->op != Op::Constant;
+        const bool first = std::find(directSeen.begin(), directSeen.end(), rr) == directSeen.end();
+        impl->outputDirect.push_back(computed && first);
+        if (computed && first) directSeen.push_back(rr);
+    }
+    // Invalid expressions in `outputs` give NaN outputs at their positions.
+    if (roots.size() != outputs.size()) {
+        std::vector<int> regs;
+        std::vector<bool> direct;
+        const int nanRegister = impl->registers++;
+        impl->constants.emplace_back(nanRegister, std::numeric_limits<double>::quiet_NaN());
+        std::size_t k = 0;
+        for (const auto& e : outputs) {
+            if (e.valid()) {
+                regs.push_back(impl->outputRegister[k]);
+                direct.push_back(impl->outputDirect[k]);
+                ++k;
+            } else {
+                regs.push_back(nanRegister);
+                direct.push_back(false);
+            }
+        }
+        impl->outputRegister = regs;
+        impl->outputDirect = direct;
+    }
+    return Program(std::move(impl));
+}
+
+int Program::inputCount() const { return impl_ ? impl_->inputs : 0; }
+int Program::outputCount() const { return impl_ ? static_cast<int>(impl_->outputRegister.size()) : 0; }
+std::size_t Program::instructionCount() const { return impl_ ? impl_->code.size() : 0; }
+
+static void prepare(const Program::Impl& p, Program::Workspace& ws) {
+    if (ws.preparedFor == p.id) return;
+    const std::size_t B = Program::kBlockSize;
+    ws.slots.assign(p.registers, 0.0);
+    ws.block.assign(static_cast<std::size_t>(p.registers) * B, 0.0);
+    ws.rows.assign(p.registers, nullptr);
+    for (const auto& [r, v] : p.constants) {
+        ws.slots[r] = v;
+        std::fill_n(ws.block.data() + static_cast<std::size_t>(r) * B, B, v);
+    }
+    ws.preparedFor = p.id;
+}
+
+Program::Workspace Program::makeWorkspace() const {
+    Workspace ws;
+    if (impl_) prepare(*impl_, ws);
+    return ws;
+}
+
+void Program::evaluate(const double* inputs, double* outputs, Workspace& ws) const {
+    if (!impl_) return;
+    const Impl& p = *impl_;
+    prepare(p, ws);
+    double* r = ws.slots.data();
+    std::copy_n(inputs, p.inputs, r);
+    for (const Instruction& in : p.code) {
+        switch (in.code) {
+        case Code::Unary: r[in.dst] = apply1(in.op, r[in.a]); break;
+        case Code::Binary: r[in.dst] = apply2(in.op, r[in.a], r[in.b]); break;
+        case Code::Select: r[in.dst] = r[in.a] != 0 ? r[in.b] : r[in.c]; break;
+        case Code::Square: r[in.dst] = r[in.a] * r[in.a]; break;
+        case Code::Cube: {
+            const double x = r[in.a];
+            r[in.dst] = x * (x * x);
+            break;
+        }
+        case Code::Fourth: {
+            const double x2 = r[in.a] * r[in.a];
+            r[in.dst] = x2 * x2;
+            break;
+        }
+        case Code::Reciprocal: r[in.dst] = 1.0 / r[in.a]; break;
+        case Code::PowInteger: r[in.dst] = powInteger(r[in.a], in.n); break;
+        }
+    }
+    for (std::size_t o = 0; o < p.outputRegister.size(); ++o) outputs[o] = r[p.outputRegister[o]];
+}
+
+namespace {
+
+template <class F>
+inline void loop1(double* __restrict d, const double* a, std::size_t m, F f) {
+    for (std::size_t i = 0; i < m; ++i) d[i] = f(a[i]);
+}
+template <class F>
+inline void loop2(double* d, const double* a, const double* b, std::size_t m, F f) {
+    for (std::size_t i = 0; i < m; ++i) d[i] = f(a[i], b[i]);
+}
+
+// One instruction over m points. Each case is its own tight loop so the simple ones vectorize.
+void runBlock(const Instruction& in, double* const* rows, std::size_t m) {
+    double* d = rows[in.dst];
+    const double* a = rows[in.a];
+    switch (in.code) {
+    case Code::Unary:
+        switch (in.op) {
+        case Op::Neg: for (std::size_t i = 0; i < m; ++i) d[i] = -a[i]; return;
+        case Op::Sin: for (std::size_t i = 0; i < m; ++i) d[i] = std::sin(a[i]); return;
+        case Op::Cos: for (std::size_t i = 0; i < m; ++i) d[i] = std::cos(a[i]); return;
+        case Op::Exp: for (std::size_t i = 0; i < m; ++i) d[i] = std::exp(a[i]); return;
+        case Op::Log: for (std::size_t i = 0; i < m; ++i) d[i] = std::log(a[i]); return;
+        case Op::Sqrt: for (std::size_t i = 0; i < m; ++i) d[i] = std::sqrt(a[i]); return;
+        case Op::Abs: for (std::size_t i = 0; i < m; ++i) d[i] = std::fabs(a[i]); return;
+        case Op::Sign: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] > 0 ? 1.0 : (a[i] < 0 ? -1.0 : a[i]); return;
+        default: {
+            const Op op = in.op;
+            for (std::size_t i = 0; i < m; ++i) d[i] = apply1(op, a[i]);
+            return;
+        }
+        }
+    case Code::Binary: {
+        const double* b = rows[in.b];
+        switch (in.op) {
+        case Op::Add: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] + b[i]; return;
+        case Op::Sub: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] - b[i]; return;
+        case Op::Mul: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] * b[i]; return;
+        case Op::Div: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] / b[i]; return;
+        case Op::Pow: for (std::size_t i = 0; i < m; ++i) d[i] = std::pow(a[i], b[i]); return;
+        default: {
+            const Op op = in.op;
+            loop2(d, a, b, m, [op](double x, double y) { return apply2(op, x, y); });
+            return;
+        }
+        }
+    }
+    case Code::Select: {
+        const double* b = rows[in.b];
+        const double* c = rows[in.c];
+        for (std::size_t i = 0; i < m; ++i) d[i] = a[i] != 0 ? b[i] : c[i];
+        return;
+    }
+    case Code::Square: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] * a[i]; return;
+    case Code::Cube: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] * (a[i] * a[i]); return;
+    case Code::Fourth:
+        for (std::size_t i = 0; i < m; ++i) {
+            const double x2 = a[i] * a[i];
+            d[i] = x2 * x2;
+        }
+        return;
+    case Code::Reciprocal: for (std::size_t i = 0; i < m; ++i) d[i] = 1.0 / a[i]; return;
+    case Code::PowInteger: {
+        const int n = in.n;
+        for (std::size_t i = 0; i < m; ++i) d[i] = powInteger(a[i], n);
+        return;
+    }
+    }
+}
+
+}  // namespace
+
+void Program::evaluateBlock(const BlockInput* inputs, std::size_t count, double* const* outputs, Workspace& ws) const {
+    if (!impl_ || count == 0) return;
+    const Impl& p = *impl_;
+    prepare(p, ws);
+    const std::size_t B = kBlockSize;
+    double* const storage = ws.block.data();
+    double** rows = ws.rows.data();
+    for (int r = 0; r < p.registers; ++r) rows[r] = storage + static_cast<std::size_t>(r) * B;
+    // Broadcast inputs are filled once per call.
+    for (int k = 0; k < p.inputs; ++k)
+        if (inputs[k].stride == 0) std::fill_n(storage + static_cast<std::size_t>(k) * B, B, inputs[k].data[0]);
+
+    for (std::size_t start = 0; start < count; start += B) {
+        const std::size_t m = std::min(B, count - start);
+        for (int k = 0; k < p.inputs; ++k) {
+            const BlockInput& in = inputs[k];
+            if (in.stride == 1) {
+                rows[k] = const_cast<double*>(in.data + start);  // read only: inputs are never written
+            } else if (in.stride > 1) {
+                double* dst = storage + static_cast<std::size_t>(k) * B;
+                for (std::size_t i = 0; i < m; ++i) dst[i] = in.data[(start + i) * in.stride];
+                rows[k] = dst;
+            }
+        }
+        for (std::size_t o = 0; o < p.outputRegister.size(); ++o)
+            if (p.outputDirect[o]) rows[p.outputRegister[o]] = outputs[o] + start;
+        for (const Instruction& in : p.code) runBlock(in, rows, m);
+        for (std::size_t o = 0; o < p.outputRegister.size(); ++o)
+            if (!p.outputDirect[o]) std::memcpy(outputs[o] + start, rows[p.outputRegister[o]], m * sizeof(double));
+    }
+}
+
+}  // namespace sw::expr

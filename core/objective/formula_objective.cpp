@@ -1,0 +1,109 @@
+#include "core/objective/formula_objective.h"
+
+#include <limits>
+
+namespace sw {
+
+namespace {
+std::vector<std::string> allSymbols(const std::vector<std::string>& variables,
+                                    const std::vector<std::pair<std::string, double>>& constants) {
+    std::vector<std::string> s = variables;
+    for (const auto& c : constants) s.push_back(c.first);
+    return s;
+}
+std::vector<int> firstIndices(std::size_t n) {
+    std::vector<int> v(n);
+    for (std::size_t i = 0; i < n; ++i) v[i] = static_cast<int>(i);
+    return v;
+}
+}  // namespace
+
+FormulaObjective::FormulaObjective(const std::string& formula, std::vector<std::string> variables,
+                                   std::vector<std::pair<std::string, double>> constants)
+    : formula_(formula),
+      variables_(std::move(variables)),
+      constants_(std::move(constants)),
+      derivatives_(expr::Expression::parse(formula_, allSymbols(variables_, constants_)), firstIndices(variables_.size()), 2) {
+    valueProgram_ = expr::Program::compile({derivatives_.function()});
+    std::vector<expr::Expression> fg{derivatives_.function()};
+    fg.insert(fg.end(), derivatives_.gradient().begin(), derivatives_.gradient().end());
+    gradientProgram_ = expr::Program::compile(fg);
+}
+
+std::vector<double> FormulaObjective::inputsFor(const Vector& x) const {
+    std::vector<double> in(x.data(), x.data() + x.size());
+    for (const auto& c : constants_) in.push_back(c.second);
+    return in;
+}
+
+// A point of the wrong size reads NaN for the missing coordinates rather than out of bounds.
+void FormulaObjective::fillInputs(const Vector& x, Scratch& s) const {
+    const int n = dimension();
+    s.inputs.assign(n + constants_.size(), std::numeric_limits<double>::quiet_NaN());
+    for (int i = 0; i < n && i < x.size(); ++i) s.inputs[i] = x[i];
+    for (std::size_t c = 0; c < constants_.size(); ++c) s.inputs[n + c] = constants_[c].second;
+}
+
+std::unique_ptr<FormulaObjective::Scratch> FormulaObjective::acquire() const {
+    {
+        std::lock_guard lock(poolMutex_);
+        if (!pool_.empty()) {
+            auto s = std::move(pool_.back());
+            pool_.pop_back();
+            return s;
+        }
+    }
+    auto s = std::make_unique<Scratch>();
+    s->valueWs = valueProgram_.makeWorkspace();
+    s->gradientWs = gradientProgram_.makeWorkspace();
+    s->hessianWs = derivatives_.program().makeWorkspace();
+    return s;
+}
+
+void FormulaObjective::release(std::unique_ptr<Scratch> s) const {
+    std::lock_guard lock(poolMutex_);
+    pool_.push_back(std::move(s));
+}
+
+double FormulaObjective::value(const Vector& x) const {
+    auto s = acquire();
+    fillInputs(x, *s);
+    s->outputs.resize(1);
+    valueProgram_.evaluate(s->inputs.data(), s->outputs.data(), s->valueWs);
+    const double f = s->outputs[0];
+    release(std::move(s));
+    return f;
+}
+
+double FormulaObjective::valueGradient(const Vector& x, Vector& gradient) const {
+    const int n = dimension();
+    auto s = acquire();
+    fillInputs(x, *s);
+    s->outputs.resize(1 + n);
+    gradientProgram_.evaluate(s->inputs.data(), s->outputs.data(), s->gradientWs);
+    gradient.resize(n);
+    for (int i = 0; i < n; ++i) gradient[i] = s->outputs[1 + i];
+    const double f = s->outputs[0];
+    release(std::move(s));
+    return f;
+}
+
+double FormulaObjective::valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const {
+    const int n = dimension();
+    auto s = acquire();
+    fillInputs(x, *s);
+    const auto& program = derivatives_.program();
+    s->outputs.resize(program.outputCount());
+    program.evaluate(s->inputs.data(), s->outputs.data(), s->hessianWs);
+    gradient.resize(n);
+    hessian.resize(n, n);
+    for (int i = 0; i < n; ++i) gradient[i] = s->outputs[1 + i];
+    std::size_t k = 1 + n;
+    for (int i = 0; i < n; ++i)
+        for (int j = i; j < n; ++j, ++k) hessian(i, j) = hessian(j, i) = s->outputs[k];
+    const double f = s->outputs[0];
+    release(std::move(s));
+    return f;
+}
+
+}  // namespace sw

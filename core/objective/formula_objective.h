@@ -1,0 +1,58 @@
+#pragma once
+// An objective typed as a formula in named variables, with exact symbolic gradient and
+// Hessian compiled into one program (core/expr). Optional named constants are further
+// symbols of the formula held at fixed values (no derivatives are taken for them).
+
+#include "core/expr/expr.h"
+#include "core/objective/objective.h"
+
+#include <memory>
+#include <mutex>
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace sw {
+
+class FormulaObjective final : public Objective {
+public:
+    // Throws expr::FormulaError for a formula that cannot be read.
+    FormulaObjective(const std::string& formula, std::vector<std::string> variables,
+                     std::vector<std::pair<std::string, double>> constants = {});
+
+    int dimension() const override { return static_cast<int>(variables_.size()); }
+    std::vector<std::string> variableNames() const override { return variables_; }
+    std::string description() const override { return formula_; }
+
+    double value(const Vector& x) const override;
+    double valueGradient(const Vector& x, Vector& gradient) const override;
+    double valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const override;
+
+    const std::string& formula() const { return formula_; }
+    const std::vector<std::pair<std::string, double>>& constants() const { return constants_; }
+    // Program inputs are the variables followed by the constants (see inputsFor()).
+    const expr::DerivativeSet& derivatives() const { return derivatives_; }
+    // Program inputs for the point x: x followed by the constants' values.
+    std::vector<double> inputsFor(const Vector& x) const;
+
+private:
+    std::string formula_;
+    std::vector<std::string> variables_;
+    std::vector<std::pair<std::string, double>> constants_;
+    expr::DerivativeSet derivatives_;
+    expr::Program valueProgram_;     // f only
+    expr::Program gradientProgram_;  // f and gradient
+
+    // Scratch space for concurrent callers: taken from and returned to a small pool.
+    struct Scratch {
+        std::vector<double> inputs, outputs;
+        expr::Program::Workspace valueWs, gradientWs, hessianWs;
+    };
+    std::unique_ptr<Scratch> acquire() const;
+    void fillInputs(const Vector& x, Scratch& s) const;
+    void release(std::unique_ptr<Scratch> s) const;
+    mutable std::mutex poolMutex_;
+    mutable std::vector<std::unique_ptr<Scratch>> pool_;
+};
+
+}  // namespace sw
