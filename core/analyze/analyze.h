@@ -50,7 +50,12 @@ struct ContourSet {
 
 // Levels that show both the valley floor and the walls: spaced in log(f - fmin + eps) when
 // the range spans decades, else evenly. `count` levels, ascending.
+// The rule (levels.cpp): d = f - fmin over finite cells above fmin; when its 90th percentile
+// is >= 20 times its 10th, levels are log-spaced in d from its 2nd to its 98th percentile;
+// otherwise evenly spaced strictly between fmin and fmax. Empty for a constant or empty field.
 std::vector<double> chooseLevels(const Field& field, int count);
+// Whether chooseLevels picks log spacing for this field (also a hint for a log colour scale).
+bool levelsAreLogSpaced(const Field& field);
 // Marching squares with saddle-cell disambiguation by the cell centre; NaN cells are skipped.
 std::vector<ContourSet> contourLines(const Field& field, const std::vector<double>& levels);
 

@@ -1,0 +1,76 @@
+// Contour levels that show both the valley floor and the walls.
+//
+// Rule (common practice, no published source): let d = f - fmin over the finite cells that
+// lie above the minimum, and q10, q90 its 10th and 90th percentiles. When q90 / q10 >= 20
+// (the heights span more than about 1.3 decades, as in a steep-walled curved valley), the
+// levels are spaced evenly in log d from the 2nd to the 98th percentile of d, so the floor
+// gets as many lines as the walls. Otherwise (a bowl-like field, where d is roughly uniform
+// over the box) they are spaced evenly between fmin and fmax, excluding both ends.
+#include "core/analyze/analyze.h"
+
+#include <algorithm>
+#include <cmath>
+
+namespace sw::analyze {
+
+namespace {
+
+double quantile(const std::vector<double>& sorted, double p) {
+    const double position = p * static_cast<double>(sorted.size() - 1);
+    const auto below = static_cast<std::size_t>(std::floor(position));
+    const std::size_t above = std::min(below + 1, sorted.size() - 1);
+    const double t = position - static_cast<double>(below);
+    return sorted[below] + t * (sorted[above] - sorted[below]);
+}
+
+}  // namespace
+
+namespace {
+
+struct LevelPlan {
+    bool logSpaced = false;
+    double lo = 0, hi = 0;  // 2nd and 98th percentiles of f - fmin (cells above fmin)
+};
+
+LevelPlan planLevels(const Field& field) {
+    LevelPlan plan;
+    std::vector<double> heights;
+    heights.reserve(field.values.size());
+    for (double v : field.values)
+        if (std::isfinite(v) && v > field.finiteMin) heights.push_back(v - field.finiteMin);
+    if (heights.size() < 10) return plan;
+    std::sort(heights.begin(), heights.end());
+    const double q10 = quantile(heights, 0.10), q90 = quantile(heights, 0.90);
+    plan.lo = quantile(heights, 0.02);
+    plan.hi = quantile(heights, 0.98);
+    plan.logSpaced = q10 > 0 && q90 / q10 >= 20 && plan.lo > 0 && plan.hi > plan.lo;
+    return plan;
+}
+
+}  // namespace
+
+bool levelsAreLogSpaced(const Field& field) { return planLevels(field).logSpaced; }
+
+std::vector<double> chooseLevels(const Field& field, int count) {
+    std::vector<double> levels;
+    if (count <= 0) return levels;
+    const double fmin = field.finiteMin, fmax = field.finiteMax;
+    if (static_cast<long>(field.values.size()) == field.nonFiniteCells || !(fmax > fmin)) return levels;
+
+    const LevelPlan plan = planLevels(field);
+    levels.reserve(count);
+    if (plan.logSpaced) {
+        const double logLo = std::log(plan.lo), logHi = std::log(plan.hi);
+        for (int k = 0; k < count; ++k) {
+            const double t = count == 1 ? 0.5 : static_cast<double>(k) / (count - 1);
+            levels.push_back(fmin + std::exp(logLo + t * (logHi - logLo)));
+        }
+    } else {
+        for (int k = 0; k < count; ++k) levels.push_back(fmin + (fmax - fmin) * (k + 1) / (count + 1));
+    }
+    // Rounding can make neighbouring levels equal on a nearly flat field: keep them distinct.
+    levels.erase(std::unique(levels.begin(), levels.end()), levels.end());
+    return levels;
+}
+
+}  // namespace sw::analyze
