@@ -33,6 +33,7 @@ struct Variable {
     std::string name;
     double start = 0;
     double lower = -1, upper = 1;  // plot range
+    bool operator==(const Variable&) const = default;
 };
 
 struct MethodEntry {
@@ -42,7 +43,10 @@ struct MethodEntry {
     std::string colour;            // "#rrggbb"
     std::string marker;            // "circle", "square", "triangle", "diamond", "cross", "plus", "star"
     bool enabled = true;
+    bool operator==(const MethodEntry&) const = default;
 };
+// Marker names a lineup entry may use, in the order above.
+const std::vector<std::string>& markerNames();
 
 struct DataFit {
     std::string dataPath;          // relative to the study file
@@ -53,6 +57,9 @@ struct DataFit {
     std::string weights;           // column name, optional
     std::string weightsKind = "weights";  // "weights" or "sigma"
     double lossScale = 1.0;        // Huber/Cauchy scale
+    std::string separator = "auto";   // "auto", "comma", "semicolon", "tab"
+    bool dropIncompleteRows = false;  // skip rows with empty cells (the count is reported)
+    bool operator==(const DataFit&) const = default;
 };
 
 struct ViewSettings {
@@ -60,6 +67,7 @@ struct ViewSettings {
     bool logColour = false;
     int contourCount = 14;
     int gridCells = 200;
+    bool operator==(const ViewSettings&) const = default;
 };
 
 struct Study {
@@ -72,10 +80,34 @@ struct Study {
     int maxIterations = 200;
     double gradientTolerance = 1e-8;
     ViewSettings view;
+
+    // Added: the rest of the stopping rules (defaults as solve::StoppingRules).
+    long maxEvaluations = 100000;
+    double relativeGradientTolerance = 0;
+    double stepTolerance = 1e-14;
+    double functionTolerance = 0;
+
+    bool operator==(const Study&) const = default;
+    bool isFit() const { return fit.has_value(); }
+    std::vector<std::string> variableNames() const;
+    Vector start() const;                        // every variable's start, in order
+    solve::StoppingRules stoppingRules() const;  // maxIterations, tolerances, ...
 };
 
 // Parses and validates everything; throws StudyError naming the first problem's place.
 // baseDirectory resolves the data file; a missing or changed data file is an error.
+// The document (format in study.cpp's header comment):
+//   { "format": "saddlewise-study", "version": 1, "title": "...", "notes": "...",
+//     "objective": { "formula": "..." }
+//              or { "data": "table.csv", "checksum": "sha256:...", "model": "...", "response": "y",
+//                   "loss": "least-squares", "weights" | "sigma": "column", "scale": 1,
+//                   "separator": "auto", "drop_incomplete_rows": false },
+//     "variables": [ { "name": "x", "start": -1, "lower": -2, "upper": 2 }, ... ],
+//     "methods": [ { "label": "...", "method": "bfgs", "options": { "name": value },
+//                    "colour": "#rrggbb", "marker": "circle", "enabled": true }, ... ],
+//     "stopping": { "max_iterations": 200, "max_evaluations": 100000, "gradient_tolerance": 1e-8,
+//                   "relative_gradient_tolerance": 0, "step_tolerance": 1e-14, "function_tolerance": 0 },
+//     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 } }
 Study fromJson(const std::string& text, const std::string& baseDirectory);
 std::string toJson(const Study& study);  // stable key order, 2-space indent
 Study loadFile(const std::string& path);  // throws StudyError (place "file" for I/O)
@@ -84,5 +116,18 @@ void saveFile(const Study& study, const std::string& path);
 
 // The objective a study describes (formula or fit). Throws StudyError / FormulaError.
 std::shared_ptr<const Objective> makeObjective(const Study& study, const std::string& baseDirectory);
+
+// ---- Added helpers ----
+
+// The folder a study file lives in (for fromJson's baseDirectory and makeObjective).
+std::string directoryOf(const std::string& studyPath);
+// "sha256:<64 hex digits>" of a file's bytes; throws StudyError (place "file") when unreadable.
+std::string fileChecksum(const std::string& path);
+// Re-reads the data file of a data-fit study and stores its current checksum (after the
+// user picked a new file or accepted a changed one). No-op in formula mode.
+void refreshChecksum(Study& study, const std::string& baseDirectory);
+// Keeps a data-fit study's data path pointing at the same file when the study moves from
+// one folder to another (Save As elsewhere). No-op in formula mode.
+void rebaseDataPath(Study& study, const std::string& fromDirectory, const std::string& toDirectory);
 
 }  // namespace sw::study
