@@ -1,0 +1,384 @@
+#include "core/solve/trust_subproblem.h"
+
+#include <Eigen/Cholesky>
+#include <Eigen/Eigenvalues>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <sstream>
+
+namespace sw::solve {
+
+namespace {
+
+constexpr double kEps = std::numeric_limits<double>::epsilon();
+
+std::string formatNumber(double v) {
+    std::ostringstream out;
+    out.precision(3);
+    out << v;
+    return out.str();
+}
+
+// The roots tau of |z + tau d| = radius (z strictly inside or on the ball), smaller first.
+// Written to avoid cancellation: the product of the roots is (|z|^2 - radius^2) / |d|^2.
+void boundaryRoots(const Vector& z, const Vector& d, double radius, double& tauMinus, double& tauPlus) {
+    const double a = d.squaredNorm();
+    const double b = z.dot(d);
+    const double c = z.squaredNorm() - radius * radius;  // <= 0 when z is inside
+    const double disc = std::sqrt(std::max(0.0, b * b - a * c));
+    if (a <= 0) {
+        tauMinus = tauPlus = 0;
+        return;
+    }
+    if (b >= 0) {
+        const double q = -(b + disc);
+        tauMinus = q / a;
+        tauPlus = (q != 0) ? c / q : 0.0;
+    } else {
+        const double q = -b + disc;
+        tauPlus = q / a;
+        tauMinus = (q != 0) ? c / q : 0.0;
+    }
+}
+
+// Eigen-decomposition view of the secular equations shared by the exact trust-region
+// step and the cubic step: with B = Q diag(lambda_i) Q' and c = Q'g,
+//   p(mu) = -sum c_i / (lambda_i + mu) q_i,   |p(mu)|^2 = sum c_i^2 / (lambda_i + mu)^2.
+struct Eigenbasis {
+    Vector lambda;  // ascending
+    Matrix q;
+    Vector c;
+    double scale = 1;  // max(1, max |lambda|), for tolerances
+
+    Eigenbasis(const Vector& g, const Matrix& b) {
+        Eigen::SelfAdjointEigenSolver<Matrix> es(b);
+        lambda = es.eigenvalues();
+        q = es.eigenvectors();
+        c = q.transpose() * g;
+        scale = std::max(1.0, lambda.cwiseAbs().maxCoeff());
+    }
+    // Everything below is written in delta = mu + lambda_1, so that the denominators
+    // lambda_i + mu = (lambda_i - lambda_1) + delta keep full relative accuracy near the
+    // pole at mu = -lambda_1 (the nearly hard case).
+    double gap(Eigen::Index i) const { return lambda(i) - lambda(0); }
+    // |p|^2 and sum c_i^2 / (lambda_i + mu)^3 (the derivative of |p|^2 is -2 times it).
+    void norms(double delta, double& norm2, double& cubeSum) const {
+        norm2 = 0;
+        cubeSum = 0;
+        for (Eigen::Index i = 0; i < lambda.size(); ++i) {
+            const double denom = gap(i) + delta;
+            const double t = c(i) / denom;
+            norm2 += t * t;
+            cubeSum += t * t / denom;
+        }
+    }
+    Vector step(double delta, const std::vector<bool>* skip = nullptr) const {
+        Vector coefficients(lambda.size());
+        for (Eigen::Index i = 0; i < lambda.size(); ++i) {
+            const bool skipped = skip && (*skip)[static_cast<std::size_t>(i)];
+            coefficients(i) = skipped ? 0.0 : -c(i) / (gap(i) + delta);
+        }
+        return q * coefficients;
+    }
+    // Indices whose eigenvalue equals the smallest one within rounding.
+    std::vector<bool> smallestEigenspace() const {
+        const double tol = 1e-12 * scale;
+        std::vector<bool> in(static_cast<std::size_t>(lambda.size()), false);
+        for (Eigen::Index i = 0; i < lambda.size(); ++i) in[static_cast<std::size_t>(i)] = lambda(i) - lambda(0) <= tol;
+        return in;
+    }
+    // True when g has (within rounding) no component in the smallest eigenspace.
+    bool orthogonalToSmallest(const std::vector<bool>& in, double gnorm) const {
+        const double tol = 1e-12 * std::max(gnorm, std::numeric_limits<double>::min());
+        for (Eigen::Index i = 0; i < lambda.size(); ++i)
+            if (in[static_cast<std::size_t>(i)] && std::abs(c(i)) > tol) return false;
+        return true;
+    }
+};
+
+// Solves psi = 1/|p| - 1/target = 0 for delta = mu + lambda_1 on (lo, hi], where psi is
+// increasing and concave in mu (Moré & Sorensen 1983, §3; Cartis, Gould & Toint 2011,
+// §6.1) and psi(hi) >= 0. target is the radius (trust region, sigma = 0) or mu / sigma
+// (cubic). Safeguarded Newton: a Newton point outside the bracket is replaced by bisection.
+double solveSecular(const Eigenbasis& eb, double lo, double hi, double radius, double sigma, int& iterations) {
+    const bool cubic = sigma > 0;
+    const double lambda1 = eb.lambda(0);
+    auto target = [&](double delta) { return cubic ? (delta - lambda1) / sigma : radius; };
+    double delta = hi;
+    double a = lo, b = hi;
+    iterations = 0;
+    for (int it = 0; it < 300; ++it) {
+        ++iterations;
+        double norm2 = 0, cubeSum = 0;
+        eb.norms(delta, norm2, cubeSum);
+        const double pnorm = std::sqrt(norm2);
+        const double t = target(delta);
+        if (!(pnorm > 0) || !std::isfinite(pnorm) || !(t > 0)) {
+            // |p| infinite (at a pole), zero, or the cubic target not positive: bisect.
+            if (!(pnorm > 0)) b = delta; else a = delta;
+            delta = 0.5 * (a + b);
+            continue;
+        }
+        const double psi = 1.0 / pnorm - 1.0 / t;
+        if (std::abs(pnorm - t) <= 1e-14 * t) return delta;
+        if (psi < 0) a = delta; else b = delta;
+        if (b - a <= 2 * kEps * std::abs(b)) return b;
+        // dpsi/dmu = sum c^2/(l+mu)^3 / |p|^3 (+ sigma / mu^2 for the cubic model).
+        double slope = cubeSum / (norm2 * pnorm);
+        if (cubic) slope += 1.0 / (sigma * t * t);
+        double next = (slope > 0) ? delta - psi / slope : kNaN;
+        if (!(next > a && next < b)) next = 0.5 * (a + b);
+        delta = next;
+    }
+    return b;
+}
+
+}  // namespace
+
+double quadraticModelDecrease(const Vector& g, const Matrix& b, const Vector& p) {
+    return -(g.dot(p) + 0.5 * p.dot(b * p));
+}
+
+double cubicModelDecrease(const Vector& g, const Matrix& b, double sigma, const Vector& p) {
+    const double norm = p.norm();
+    return quadraticModelDecrease(g, b, p) - sigma / 3.0 * norm * norm * norm;
+}
+
+SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
+    SubproblemResult result;
+    const Eigen::Index n = g.size();
+    const double gnorm = g.norm();
+    if (gnorm == 0) {
+        result.step = Vector::Zero(n);
+        result.kind = StepKind::Interior;
+        result.note = "gradient is zero: no dogleg step";
+        return result;
+    }
+    // Nocedal & Wright 2006, Alg. 3.3: shift by tau I until Cholesky succeeds.
+    double tau = 0;
+    Eigen::LLT<Matrix> llt(b);
+    if (llt.info() != Eigen::Success) {
+        const double beta = 1e-3 * std::max(1.0, b.cwiseAbs().maxCoeff());
+        const double minDiagonal = b.diagonal().minCoeff();
+        tau = minDiagonal > 0 ? beta : -minDiagonal + beta;
+        for (int attempt = 0; attempt < 200; ++attempt) {
+            llt.compute(b + tau * Matrix::Identity(n, n));
+            if (llt.info() == Eigen::Success) break;
+            tau = std::max(2 * tau, beta);
+        }
+        result.multiplier = tau;
+    }
+    const Vector newton = -llt.solve(g);
+    const Vector gradientDirection = -g;
+    const double curvature = g.dot(b * g) + tau * gnorm * gnorm;  // g'(B + tau I)g > 0
+    const std::string shifted =
+        tau > 0 ? " (B not positive definite: path built on B + " + formatNumber(tau) + " I)" : "";
+
+    if (newton.allFinite() && newton.norm() <= radius) {
+        result.step = newton;
+        result.kind = StepKind::Interior;
+        result.note = (tau > 0 ? "shifted Newton point inside the region" : "Newton point inside the region") + shifted;
+    } else {
+        const Vector cauchy = -(gnorm * gnorm / curvature) * g;
+        if (!newton.allFinite() || cauchy.norm() >= radius) {
+            result.step = (radius / gnorm) * gradientDirection;
+            result.kind = StepKind::Cauchy;
+            result.onBoundary = true;
+            result.note = "Cauchy point on the boundary" + shifted;
+        } else {
+            double tauMinus = 0, tauPlus = 0;
+            boundaryRoots(cauchy, newton - cauchy, radius, tauMinus, tauPlus);
+            const double t = std::clamp(tauPlus, 0.0, 1.0);
+            result.step = cauchy + t * (newton - cauchy);
+            result.kind = StepKind::Dogleg;
+            result.onBoundary = true;
+            result.note = "dogleg path meets the boundary at " + formatNumber(t) + " of the way from Cauchy to Newton point" + shifted;
+        }
+    }
+    result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+    return result;
+}
+
+SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, int maxIterations) {
+    SubproblemResult result;
+    const Eigen::Index n = g.size();
+    const double gnorm = g.norm();
+    if (maxIterations <= 0) maxIterations = static_cast<int>(2 * n);
+    Vector z = Vector::Zero(n);
+    Vector r = g;
+    Vector d = -g;
+    result.kind = StepKind::Interior;
+    // Forcing term of Nocedal & Wright 2006, eq. (7.3) with the superlinear choice.
+    const double tolerance = std::min(0.5, std::sqrt(gnorm)) * gnorm;
+    if (gnorm == 0) {
+        result.step = z;
+        result.note = "gradient is zero: no CG step";
+        return result;
+    }
+    bool finished = false;
+    for (int j = 0; j < maxIterations && !finished; ++j) {
+        result.innerIterations = j + 1;
+        const Vector bd = b * d;
+        const double curvature = d.dot(bd);
+        if (!(curvature > 0)) {
+            // Follow d to the boundary, choosing the root with the lower model value.
+            double tauMinus = 0, tauPlus = 0;
+            boundaryRoots(z, d, radius, tauMinus, tauPlus);
+            const Vector pPlus = z + tauPlus * d;
+            const Vector pMinus = z + tauMinus * d;
+            result.step = quadraticModelDecrease(g, b, pPlus) >= quadraticModelDecrease(g, b, pMinus) ? pPlus : pMinus;
+            result.kind = StepKind::NegativeCurvature;
+            result.onBoundary = true;
+            result.note = "CG met curvature d'Bd = " + formatNumber(curvature) + " <= 0 at inner iteration " +
+                          std::to_string(j + 1) + "; followed to the boundary";
+            finished = true;
+            break;
+        }
+        const double rr = r.squaredNorm();
+        const double alpha = rr / curvature;
+        const Vector zNext = z + alpha * d;
+        if (zNext.norm() >= radius) {
+            double tauMinus = 0, tauPlus = 0;
+            boundaryRoots(z, d, radius, tauMinus, tauPlus);
+            result.step = z + tauPlus * d;
+            result.kind = StepKind::Boundary;
+            result.onBoundary = true;
+            result.note = "CG left the region at inner iteration " + std::to_string(j + 1);
+            finished = true;
+            break;
+        }
+        z = zNext;
+        r += alpha * bd;
+        if (r.norm() <= tolerance) {
+            result.step = z;
+            result.kind = StepKind::Interior;
+            result.note = "CG converged inside the region in " + std::to_string(j + 1) + " inner iterations";
+            finished = true;
+            break;
+        }
+        const double beta = r.squaredNorm() / rr;
+        d = -r + beta * d;
+    }
+    if (!finished) {
+        result.step = z;
+        result.kind = StepKind::Interior;
+        result.note = "CG stopped at its limit of " + std::to_string(maxIterations) + " inner iterations";
+    }
+    result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+    return result;
+}
+
+SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double radius) {
+    SubproblemResult result;
+    const double gnorm = g.norm();
+    const Eigenbasis eb(g, b);
+    const double lambda1 = eb.lambda(0);
+    const double zeroTol = 1e-12 * eb.scale;
+
+    // lambda = 0 when B is positive definite and the Newton step fits.
+    if (lambda1 > zeroTol) {
+        const Vector newton = eb.step(lambda1);  // mu = 0
+        if (newton.norm() <= radius) {
+            result.step = newton;
+            result.kind = StepKind::Interior;
+            result.note = "Newton step inside the region (lambda = 0)";
+            result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+            return result;
+        }
+    }
+    const double lo = std::max(0.0, -lambda1);
+    const std::vector<bool> smallest = eb.smallestEigenspace();
+    if (lambda1 <= zeroTol && eb.orthogonalToSmallest(smallest, gnorm)) {
+        // Candidate hard case (Moré & Sorensen 1983, §3): p(lo) without the singular part.
+        const Vector partial = eb.step(0.0, &smallest);  // mu = -lambda1
+        const double partialNorm = partial.norm();
+        if (partialNorm <= radius) {
+            if (lambda1 >= -zeroTol) {
+                // B positive semidefinite and singular, g in its range: the minimum-norm
+                // minimiser of the model lies inside.
+                result.step = partial;
+                result.kind = StepKind::Interior;
+                result.note = "model minimiser inside the region (B singular, lambda = 0)";
+            } else {
+                const Vector z = eb.q.col(0);
+                const double tau = std::sqrt(std::max(0.0, radius * radius - partialNorm * partialNorm));
+                result.step = partial + tau * z;
+                result.kind = StepKind::NegativeCurvature;
+                result.hardCase = true;
+                result.onBoundary = true;
+                result.multiplier = lo;
+                result.note = "hard case: g is orthogonal to the eigenvector of lambda_min = " + formatNumber(lambda1) +
+                              "; moved along it to the boundary";
+            }
+            result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+            return result;
+        }
+    }
+    // Boundary solution: lambda in (lo, lo + |g|/radius], where |p| <= |g| / (lambda1 + lambda) <= radius.
+    const double hi = lo + gnorm / radius;
+    int iterations = 0;
+    const double delta = solveSecular(eb, lo + lambda1, hi + lambda1, radius, 0.0, iterations);
+    const double lambda = std::max(0.0, delta - lambda1);
+    Vector p = eb.step(delta);
+    const double pnorm = p.norm();
+    if (pnorm > radius) p *= radius / pnorm;  // rounding: never leave the ball
+    result.step = p;
+    result.kind = StepKind::Boundary;
+    result.onBoundary = true;
+    result.multiplier = lambda;
+    result.innerIterations = iterations;
+    result.note = "boundary step, lambda = " + formatNumber(lambda) + " after " + std::to_string(iterations) +
+                  " secular-equation iterations";
+    result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+    return result;
+}
+
+SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
+    SubproblemResult result;
+    result.kind = StepKind::Cubic;
+    const double gnorm = g.norm();
+    const Eigenbasis eb(g, b);
+    const double lambda1 = eb.lambda(0);
+    const double zeroTol = 1e-12 * eb.scale;
+    const double lo = std::max(0.0, -lambda1);
+    const std::vector<bool> smallest = eb.smallestEigenspace();
+
+    if (gnorm == 0 && lambda1 >= -zeroTol) {
+        result.step = Vector::Zero(g.size());
+        result.note = "gradient is zero and B is positive semidefinite: no step";
+        return result;
+    }
+    if (lambda1 < -zeroTol && eb.orthogonalToSmallest(smallest, gnorm)) {
+        // Hard case (Cartis, Gould & Toint 2011, Part I, §6.1): lambda = -lambda1 and
+        // |p| = lambda / sigma reached along the eigenvector of lambda1.
+        const Vector partial = eb.step(0.0, &smallest);  // mu = -lambda1
+        const double wanted = lo / sigma;
+        const double partialNorm = partial.norm();
+        if (partialNorm <= wanted) {
+            const double tau = std::sqrt(std::max(0.0, wanted * wanted - partialNorm * partialNorm));
+            result.step = partial + tau * eb.q.col(0);
+            result.hardCase = true;
+            result.multiplier = lo;
+            result.note = "hard case: g is orthogonal to the eigenvector of lambda_min = " + formatNumber(lambda1) +
+                          "; moved along it";
+            result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
+            return result;
+        }
+    }
+    // lambda in (lo, lo + sqrt(sigma |g|)]: there |g| / (lambda1 + lambda) <= lambda / sigma.
+    const double hi = lo + std::sqrt(sigma * gnorm);
+    int iterations = 0;
+    const double delta = solveSecular(eb, lo + lambda1, hi + lambda1, 0.0, sigma, iterations);
+    const double lambda = delta - lambda1;
+    result.step = eb.step(delta);
+    result.multiplier = lambda;
+    result.innerIterations = iterations;
+    result.note = "cubic model minimiser, lambda = sigma |p| = " + formatNumber(lambda) + " after " +
+                  std::to_string(iterations) + " secular-equation iterations";
+    result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
+    return result;
+}
+
+}  // namespace sw::solve
