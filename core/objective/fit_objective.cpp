@@ -1,0 +1,471 @@
+#include "core/objective/fit_objective.h"
+
+#include "core/expr/expr.h"
+
+#include <algorithm>
+#include <cctype>
+#include <cmath>
+#include <thread>
+
+namespace sw {
+
+const char* toString(Loss loss) {
+    switch (loss) {
+        case Loss::LeastSquares: return "least-squares";
+        case Loss::Weighted: return "weighted";
+        case Loss::Huber: return "huber";
+        case Loss::Cauchy: return "cauchy";
+        case Loss::BernoulliLogit: return "bernoulli-logit";
+        case Loss::PoissonLog: return "poisson-log";
+    }
+    return "?";
+}
+
+bool parseLoss(const std::string& text, Loss& loss) {
+    for (Loss l : {Loss::LeastSquares, Loss::Weighted, Loss::Huber, Loss::Cauchy, Loss::BernoulliLogit,
+                   Loss::PoissonLog})
+        if (text == toString(l)) {
+            loss = l;
+            return true;
+        }
+    return false;
+}
+
+std::string lossList() { return "least-squares, weighted, huber, cauchy, bernoulli-logit, poisson-log"; }
+bool isLikelihood(Loss loss) { return loss == Loss::BernoulliLogit || loss == Loss::PoissonLog; }
+bool hasResidualForm(Loss loss) { return loss == Loss::LeastSquares || loss == Loss::Weighted; }
+
+LossTerms lossTerms(Loss loss, double y, double m, double scale) {
+    LossTerms t;
+    switch (loss) {
+        case Loss::LeastSquares:
+        case Loss::Weighted: {
+            const double r = y - m;
+            t.value = 0.5 * r * r;
+            t.first = -r;
+            t.second = 1.0;
+            break;
+        }
+        case Loss::Huber: {
+            // rho(r) = r^2/2 (|r| <= c), c|r| - c^2/2 (|r| > c); rho' = clip(r, -c, c); rho'' = 1 or 0.
+            const double r = y - m;
+            const double a = std::fabs(r);
+            if (a <= scale) {
+                t.value = 0.5 * r * r;
+                t.first = -r;
+                t.second = 1.0;
+            } else {
+                t.value = scale * (a - 0.5 * scale);
+                t.first = -scale * (r > 0 ? 1.0 : -1.0);
+                t.second = 0.0;
+            }
+            break;
+        }
+        case Loss::Cauchy: {
+            // rho(r) = c^2/2 ln(1 + u), u = (r/c)^2; rho' = r/(1+u); rho'' = (1-u)/(1+u)^2.
+            const double r = y - m;
+            const double u = (r / scale) * (r / scale);
+            t.value = 0.5 * scale * scale * std::log1p(u);
+            t.first = -r / (1.0 + u);
+            t.second = (1.0 - u) / ((1.0 + u) * (1.0 + u));
+            break;
+        }
+        case Loss::BernoulliLogit: {
+            // ln(1 + e^m) - y m, written to avoid overflow: max(m,0) + ln(1 + e^-|m|).
+            const double softplus = std::max(m, 0.0) + std::log1p(std::exp(-std::fabs(m)));
+            const double p = m >= 0 ? 1.0 / (1.0 + std::exp(-m)) : std::exp(m) / (1.0 + std::exp(m));
+            t.value = softplus - y * m;
+            t.first = p - y;
+            t.second = p * (1.0 - p);
+            break;
+        }
+        case Loss::PoissonLog: {
+            const double mu = std::exp(m);
+            t.value = mu - y * m + std::lgamma(y + 1.0);
+            t.first = mu - y;
+            t.second = mu;
+            break;
+        }
+    }
+    return t;
+}
+
+namespace {
+
+constexpr std::size_t kBlock = 512;           // rows per program call
+constexpr std::size_t kRowsPerThread = 16384;  // below this, one thread does the work
+
+bool isIdentifierStart(char c) { return std::isalpha(static_cast<unsigned char>(c)) || c == '_'; }
+bool isIdentifierChar(char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_'; }
+bool validName(const std::string& s) {
+    return !s.empty() && isIdentifierStart(s[0]) && std::all_of(s.begin(), s.end(), isIdentifierChar);
+}
+
+// Names in a formula that are not function calls (a name followed by '(' is a function).
+std::vector<std::string> namesIn(const std::string& text) {
+    std::vector<std::string> names;
+    std::size_t i = 0;
+    while (i < text.size()) {
+        const char c = text[i];
+        if (std::isdigit(static_cast<unsigned char>(c)) || (c == '.' && i + 1 < text.size() &&
+                                                             std::isdigit(static_cast<unsigned char>(text[i + 1])))) {
+            // a number, possibly with an exponent: 1.5e-3
+            while (i < text.size() && (std::isdigit(static_cast<unsigned char>(text[i])) || text[i] == '.')) ++i;
+            if (i < text.size() && (text[i] == 'e' || text[i] == 'E')) {
+                std::size_t k = i + 1;
+                if (k < text.size() && (text[k] == '+' || text[k] == '-')) ++k;
+                if (k < text.size() && std::isdigit(static_cast<unsigned char>(text[k]))) {
+                    i = k;
+                    while (i < text.size() && std::isdigit(static_cast<unsigned char>(text[i]))) ++i;
+                }
+            }
+            continue;
+        }
+        if (isIdentifierStart(c)) {
+            std::size_t e = i;
+            while (e < text.size() && isIdentifierChar(text[e])) ++e;
+            std::size_t k = e;
+            while (k < text.size() && std::isspace(static_cast<unsigned char>(text[k]))) ++k;
+            if (k >= text.size() || text[k] != '(') {
+                std::string name = text.substr(i, e - i);
+                if (std::find(names.begin(), names.end(), name) == names.end()) names.push_back(name);
+            }
+            i = e;
+            continue;
+        }
+        ++i;
+    }
+    return names;
+}
+
+std::string joined(const std::vector<std::string>& items) {
+    std::string s;
+    for (const auto& item : items) s += (s.empty() ? "" : ", ") + item;
+    return s;
+}
+
+std::string numberText(double v) {
+    char buffer[32];
+    std::snprintf(buffer, sizeof buffer, "%.6g", v);
+    return buffer;
+}
+
+struct Partial {
+    double value = 0;
+    Vector gradient;
+    Matrix hessian;
+};
+
+}  // namespace
+
+struct FitObjective::Impl {
+    std::shared_ptr<const Table> table;
+    FitDefinition def;
+    std::vector<int> columnIndices;  // used columns, table order
+    std::vector<std::string> columnNames;
+    Vector y, w, sqrtW;
+    bool hasWeights = false;
+    expr::Expression modelExpression;
+    std::vector<expr::Expression> modelGradient;
+    expr::Program valueProgram, gradientProgram, hessianProgram;
+    int p = 0;
+    std::size_t rows = 0;
+    unsigned threads = 1;
+
+    // Runs fn(begin, end, part) over row ranges, one per thread.
+    template <class Fn>
+    void forRowRanges(std::size_t parts, Fn&& fn) const {
+        if (parts <= 1) {
+            fn(std::size_t{0}, rows, std::size_t{0});
+            return;
+        }
+        std::vector<std::thread> pool;
+        const std::size_t chunk = (rows + parts - 1) / parts;
+        for (std::size_t t = 1; t < parts; ++t) {
+            const std::size_t b = std::min(rows, t * chunk), e = std::min(rows, (t + 1) * chunk);
+            pool.emplace_back([&fn, b, e, t] { fn(b, e, t); });
+        }
+        fn(std::size_t{0}, std::min(rows, chunk), std::size_t{0});
+        for (auto& th : pool) th.join();
+    }
+
+    std::size_t partsFor() const {
+        const std::size_t byRows = std::max<std::size_t>(1, rows / kRowsPerThread);
+        return std::min<std::size_t>(threads, byRows);
+    }
+
+    // Inputs of the programs for rows starting at `row`: parameters broadcast, columns as arrays.
+    void bindInputs(const Vector& x, std::size_t row, std::vector<expr::Program::BlockInput>& inputs) const {
+        inputs.resize(static_cast<std::size_t>(p) + columnIndices.size());
+        for (int j = 0; j < p; ++j) inputs[static_cast<std::size_t>(j)] = {x.data() + j, 0};
+        for (std::size_t k = 0; k < columnIndices.size(); ++k)
+            inputs[static_cast<std::size_t>(p) + k] = {
+                table->columns[static_cast<std::size_t>(columnIndices[k])].data() + row, 1};
+    }
+
+    // Sum over rows of w * loss and, for order >= 1, its gradient, for order 2 its Hessian.
+    Partial accumulate(const Vector& x, int order) const {
+        const expr::Program& program = order == 0 ? valueProgram : order == 1 ? gradientProgram : hessianProgram;
+        const std::size_t parts = partsFor();
+        std::vector<Partial> partials(parts);
+        const int outputs = program.outputCount();
+        forRowRanges(parts, [&](std::size_t begin, std::size_t end, std::size_t part) {
+            Partial& acc = partials[part];
+            if (order >= 1) acc.gradient = Vector::Zero(p);
+            if (order >= 2) acc.hessian = Matrix::Zero(p, p);
+            expr::Program::Workspace workspace = program.makeWorkspace();
+            std::vector<double> buffer(static_cast<std::size_t>(outputs) * kBlock);
+            std::vector<double*> outs(static_cast<std::size_t>(outputs));
+            std::vector<expr::Program::BlockInput> inputs;
+            Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
+            for (std::size_t row = begin; row < end; row += kBlock) {
+                const std::size_t count = std::min(kBlock, end - row);
+                for (int o = 0; o < outputs; ++o) outs[static_cast<std::size_t>(o)] = buffer.data() + o * kBlock;
+                bindInputs(x, row, inputs);
+                program.evaluateBlock(inputs.data(), count, outs.data(), workspace);
+                const double* m = outs[0];
+                for (std::size_t i = 0; i < count; ++i) {
+                    const std::size_t r = row + i;
+                    const LossTerms t = lossTerms(def.loss, y[static_cast<Eigen::Index>(r)], m[i], def.scale);
+                    const double wi = w[static_cast<Eigen::Index>(r)];
+                    acc.value += wi * t.value;
+                    first[static_cast<Eigen::Index>(i)] = wi * t.first;
+                    second[static_cast<Eigen::Index>(i)] = wi * t.second;
+                }
+                if (order == 0) continue;
+                const auto n = static_cast<Eigen::Index>(count);
+                Eigen::Map<const Matrix, 0, Eigen::OuterStride<>> dm(outs[1], n, p,
+                                                                     Eigen::OuterStride<>(static_cast<Eigen::Index>(kBlock)));
+                acc.gradient.noalias() += dm.transpose() * first.head(n);
+                if (order == 1) continue;
+                Matrix weighted = second.head(n).asDiagonal() * dm;
+                acc.hessian.noalias() += dm.transpose() * weighted;
+                std::size_t k = 0;
+                for (int a = 0; a < p; ++a)
+                    for (int b = a; b < p; ++b, ++k) {
+                        Eigen::Map<const Vector> d2(outs[static_cast<std::size_t>(1 + p) + k], n);
+                        const double term = d2.dot(first.head(n));
+                        acc.hessian(a, b) += term;
+                        if (b != a) acc.hessian(b, a) += term;
+                    }
+            }
+        });
+        Partial total = std::move(partials[0]);
+        for (std::size_t t = 1; t < parts; ++t) {
+            total.value += partials[t].value;
+            if (order >= 1) total.gradient += partials[t].gradient;
+            if (order >= 2) total.hessian += partials[t].hessian;
+        }
+        return total;
+    }
+
+    // Model values (and derivatives, column-major rows x p) written straight into the outputs.
+    void modelInto(const Vector& x, double* values, double* derivatives, Eigen::Index ld) const {
+        const expr::Program& program = derivatives ? gradientProgram : valueProgram;
+        const std::size_t parts = partsFor();
+        forRowRanges(parts, [&](std::size_t begin, std::size_t end, std::size_t) {
+            expr::Program::Workspace workspace = program.makeWorkspace();
+            std::vector<double*> outs(static_cast<std::size_t>(program.outputCount()));
+            std::vector<expr::Program::BlockInput> inputs;
+            for (std::size_t row = begin; row < end; row += kBlock) {
+                const std::size_t count = std::min(kBlock, end - row);
+                outs[0] = values + row;
+                if (derivatives)
+                    for (int j = 0; j < p; ++j)
+                        outs[static_cast<std::size_t>(1 + j)] = derivatives + static_cast<std::size_t>(j) * ld + row;
+                bindInputs(x, row, inputs);
+                program.evaluateBlock(inputs.data(), count, outs.data(), workspace);
+            }
+        });
+    }
+};
+
+FitObjective::FitObjective(std::shared_ptr<const Table> table, FitDefinition definition)
+    : impl_(std::make_unique<Impl>()) {
+    Impl& d = *impl_;
+    if (!table || table->rowCount() == 0) throw FitError("the data table is empty");
+    d.table = std::move(table);
+    d.def = std::move(definition);
+    const Table& t = *d.table;
+    const FitDefinition& def = d.def;
+    auto lineOf = [&t](std::size_t row) {
+        return row < t.rowLines.size() ? "line " + std::to_string(t.rowLines[row]) : "row " + std::to_string(row + 1);
+    };
+
+    if (def.parameters.empty()) throw FitError("no parameters: give at least one parameter with a start value");
+    for (std::size_t j = 0; j < def.parameters.size(); ++j) {
+        const std::string& name = def.parameters[j];
+        if (!validName(name))
+            throw FitError("parameter '" + name + "' is not a valid name (letters, digits, _; not starting with a digit)");
+        for (std::size_t k = 0; k < j; ++k)
+            if (def.parameters[k] == name) throw FitError("parameter '" + name + "' is given twice");
+        if (t.columnIndex(name) >= 0)
+            throw FitError("parameter '" + name + "' is also a column name of the table; rename one of them");
+    }
+    d.p = static_cast<int>(def.parameters.size());
+
+    const int responseIndex = t.columnIndex(def.response);
+    if (def.response.empty()) throw FitError("no response column given; columns: " + t.columnList());
+    if (responseIndex < 0)
+        throw FitError("response column '" + def.response + "' is not in the table; columns: " + t.columnList());
+    if (!(def.scale > 0) || !std::isfinite(def.scale))
+        throw FitError("scale must be a finite number > 0 (got " + numberText(def.scale) + ")");
+
+    d.rows = t.rowCount();
+    const auto rows = static_cast<Eigen::Index>(d.rows);
+    d.y = Eigen::Map<const Vector>(t.columns[static_cast<std::size_t>(responseIndex)].data(), rows);
+    d.w = Vector::Ones(rows);
+    if (!def.weights.empty() && !def.sigma.empty())
+        throw FitError("give either a weights column or a sigma column, not both");
+    if (def.loss == Loss::Weighted && def.weights.empty() && def.sigma.empty())
+        throw FitError("the weighted loss needs a weights column or a sigma (standard deviation) column");
+    if (!def.weights.empty()) {
+        const int wi = t.columnIndex(def.weights);
+        if (wi < 0) throw FitError("weights column '" + def.weights + "' is not in the table; columns: " + t.columnList());
+        const auto& col = t.columns[static_cast<std::size_t>(wi)];
+        for (std::size_t i = 0; i < d.rows; ++i) {
+            if (!(col[i] >= 0))
+                throw FitError("weights column '" + def.weights + "', " + lineOf(i) + ": a weight must be >= 0 (got " +
+                               numberText(col[i]) + ")");
+            d.w[static_cast<Eigen::Index>(i)] = col[i];
+        }
+        d.hasWeights = true;
+    }
+    if (!def.sigma.empty()) {
+        const int si = t.columnIndex(def.sigma);
+        if (si < 0) throw FitError("sigma column '" + def.sigma + "' is not in the table; columns: " + t.columnList());
+        const auto& col = t.columns[static_cast<std::size_t>(si)];
+        for (std::size_t i = 0; i < d.rows; ++i) {
+            if (!(col[i] > 0))
+                throw FitError("sigma column '" + def.sigma + "', " + lineOf(i) +
+                               ": a standard deviation must be > 0 (got " + numberText(col[i]) + ")");
+            d.w[static_cast<Eigen::Index>(i)] = 1.0 / (col[i] * col[i]);
+        }
+        d.hasWeights = true;
+    }
+    d.sqrtW = d.w.cwiseSqrt();
+    for (std::size_t i = 0; i < d.rows; ++i) {
+        const double yi = d.y[static_cast<Eigen::Index>(i)];
+        if (def.loss == Loss::BernoulliLogit && !(yi >= 0 && yi <= 1))
+            throw FitError("response column '" + def.response + "', " + lineOf(i) +
+                           ": the bernoulli-logit loss needs responses in [0, 1] (got " + numberText(yi) + ")");
+        if (def.loss == Loss::PoissonLog && !(yi >= 0))
+            throw FitError("response column '" + def.response + "', " + lineOf(i) +
+                           ": the poisson-log loss needs counts >= 0 (got " + numberText(yi) + ")");
+    }
+
+    // Every name in the model must be a parameter or a column.
+    std::vector<std::string> parameterSet = def.parameters;
+    for (const std::string& name : namesIn(def.model)) {
+        if (std::find(parameterSet.begin(), parameterSet.end(), name) != parameterSet.end()) continue;
+        const int c = t.columnIndex(name);
+        if (c >= 0) {
+            if (c == responseIndex)
+                throw FitError("the model uses the response column '" + name +
+                               "'; a model predicts the response from other columns");
+            continue;
+        }
+        if (name == "pi" || name == "e") continue;
+        throw FitError("the model uses '" + name + "', which is neither a parameter (" + joined(def.parameters) +
+                       ") nor a column of the table (" + t.columnList() + ")");
+    }
+    const std::vector<std::string> used = namesIn(def.model);
+    for (int c = 0; c < t.columnCount(); ++c)
+        if (std::find(used.begin(), used.end(), t.columnNames[static_cast<std::size_t>(c)]) != used.end()) {
+            d.columnIndices.push_back(c);
+            d.columnNames.push_back(t.columnNames[static_cast<std::size_t>(c)]);
+        }
+    std::vector<std::string> symbols = def.parameters;
+    symbols.insert(symbols.end(), d.columnNames.begin(), d.columnNames.end());
+    d.modelExpression = expr::Expression::parse(def.model, symbols);
+    const std::vector<std::string> usedSymbols = d.modelExpression.usedSymbols();
+    for (const std::string& name : def.parameters)
+        if (std::find(usedSymbols.begin(), usedSymbols.end(), name) == usedSymbols.end())
+            throw FitError("parameter '" + name + "' does not appear in the model, so the data cannot determine it");
+
+    std::vector<int> wrt(static_cast<std::size_t>(d.p));
+    for (int j = 0; j < d.p; ++j) wrt[static_cast<std::size_t>(j)] = j;
+    d.modelGradient = expr::gradient(d.modelExpression, wrt);
+    const std::vector<expr::Expression> hessian = expr::hessianUpper(d.modelExpression, wrt);
+    std::vector<expr::Expression> outputs = {d.modelExpression};
+    d.valueProgram = expr::Program::compile(outputs);
+    outputs.insert(outputs.end(), d.modelGradient.begin(), d.modelGradient.end());
+    d.gradientProgram = expr::Program::compile(outputs);
+    outputs.insert(outputs.end(), hessian.begin(), hessian.end());
+    d.hessianProgram = expr::Program::compile(outputs);
+
+    d.threads = def.threads > 0 ? static_cast<unsigned>(def.threads) : std::max(1u, std::thread::hardware_concurrency());
+}
+
+FitObjective::~FitObjective() = default;
+
+int FitObjective::dimension() const { return impl_->p; }
+std::vector<std::string> FitObjective::variableNames() const { return impl_->def.parameters; }
+
+std::string FitObjective::description() const {
+    const FitDefinition& d = impl_->def;
+    return std::string(toString(d.loss)) + " fit of " + d.response + " ~ " + d.model + " (" +
+           std::to_string(impl_->rows) + " rows)";
+}
+
+double FitObjective::value(const Vector& x) const { return impl_->accumulate(x, 0).value; }
+
+double FitObjective::valueGradient(const Vector& x, Vector& gradient) const {
+    Partial p = impl_->accumulate(x, 1);
+    gradient = std::move(p.gradient);
+    return p.value;
+}
+
+double FitObjective::valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const {
+    Partial p = impl_->accumulate(x, 2);
+    gradient = std::move(p.gradient);
+    hessian = std::move(p.hessian);
+    return p.value;
+}
+
+bool FitObjective::hasResiduals() const { return hasResidualForm(impl_->def.loss); }
+int FitObjective::residualCount() const { return hasResiduals() ? static_cast<int>(impl_->rows) : 0; }
+
+void FitObjective::residuals(const Vector& x, Vector& r, Matrix* jacobian) const {
+    const Impl& d = *impl_;
+    const auto rows = static_cast<Eigen::Index>(d.rows);
+    if (!hasResiduals()) {
+        r.resize(0);
+        if (jacobian) jacobian->resize(0, d.p);
+        return;
+    }
+    r.resize(rows);
+    if (jacobian) jacobian->resize(rows, d.p);
+    d.modelInto(x, r.data(), jacobian ? jacobian->data() : nullptr, rows);
+    // r_i = sqrt(w_i) (y_i - m_i), J_ij = -sqrt(w_i) dm_i/dtheta_j
+    if (d.hasWeights) {
+        r = d.sqrtW.cwiseProduct(d.y - r);
+        if (jacobian) jacobian->array().colwise() *= -d.sqrtW.array();
+    } else {
+        r = d.y - r;
+        if (jacobian) *jacobian *= -1.0;
+    }
+}
+
+const FitDefinition& FitObjective::definition() const { return impl_->def; }
+const Table& FitObjective::table() const { return *impl_->table; }
+int FitObjective::rowCount() const { return static_cast<int>(impl_->rows); }
+const Vector& FitObjective::response() const { return impl_->y; }
+const Vector& FitObjective::weights() const { return impl_->w; }
+
+void FitObjective::model(const Vector& x, Vector& values, Matrix* derivatives) const {
+    const auto rows = static_cast<Eigen::Index>(impl_->rows);
+    values.resize(rows);
+    if (derivatives) derivatives->resize(rows, impl_->p);
+    impl_->modelInto(x, values.data(), derivatives ? derivatives->data() : nullptr, rows);
+}
+
+std::vector<std::string> FitObjective::modelDerivativeText() const {
+    std::vector<std::string> text;
+    for (const auto& g : impl_->modelGradient) text.push_back(g.toText());
+    return text;
+}
+
+std::vector<std::string> FitObjective::usedColumns() const { return impl_->columnNames; }
+
+}  // namespace sw

@@ -1,0 +1,421 @@
+// Methods for objectives in residual form f = 1/2 |r(x)|^2: Gauss-Newton with a line search,
+// and Levenberg-Marquardt in Moré's scaled trust-region form.
+//
+// Both work from the residual Jacobian J without forming J'J (which squares its condition
+// number): J is reduced by Householder QR to R (n x n), and the small scaled matrix
+// R D^-1 = U S V' is decomposed once per iteration. Every damped step then costs O(n^2):
+//   z(lambda) = -V diag(s_i / (s_i^2 + lambda)) U'Q'r,   p = D^-1 z,
+// which is the minimiser of |J p + r|^2 + lambda |D p|^2.
+#include "core/solve/line_search.h"
+#include "core/solve/method.h"
+
+#include <Eigen/QR>
+#include <Eigen/SVD>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace sw::solve {
+
+namespace {
+
+constexpr double kEps = std::numeric_limits<double>::epsilon();
+
+// The linearisation of r at one point, scaled by D, ready for any damping lambda.
+struct Linearization {
+    Vector singular;        // s_i of A = R D^-1, descending
+    Matrix v;               // right singular vectors of A
+    Vector projected;       // c = U' Q' r (size = number of singular values)
+    double residualNormSq = 0;
+    int rank = 0;           // numerical rank of J (unscaled)
+    double condition = kNaN;  // s_max / s_min of J (unscaled); inf when rank-deficient
+    double rankCutoff = 0;  // scaled singular values below this count as zero
+    Vector unscaledSingular;  // singular values of J, descending
+
+    // Fills the linearisation from r, J and the scaling D (all entries > 0).
+    void compute(const Vector& r, const Matrix& jacobian, const Vector& scale) {
+        const Eigen::Index m = jacobian.rows(), n = jacobian.cols();
+        residualNormSq = r.squaredNorm();
+        Matrix reduced;   // R, or J itself when there are fewer rows than parameters
+        Vector qtr;
+        if (m > n) {
+            Eigen::HouseholderQR<Matrix> qr(jacobian);
+            reduced = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
+            qtr = (qr.householderQ().transpose() * r).head(n);
+        } else {
+            reduced = jacobian;
+            qtr = r;
+        }
+        Eigen::JacobiSVD<Matrix> plain(reduced);
+        unscaledSingular = plain.singularValues();
+        const double sMax = unscaledSingular.size() ? unscaledSingular[0] : 0.0;
+        const double tol = sMax * kEps * static_cast<double>(std::max(m, n));
+        rank = 0;
+        for (Eigen::Index i = 0; i < unscaledSingular.size(); ++i)
+            if (unscaledSingular[i] > tol) ++rank;
+        const double sMin = unscaledSingular.size() == n ? unscaledSingular[n - 1] : 0.0;
+        condition = sMin > 0 ? sMax / sMin : std::numeric_limits<double>::infinity();
+
+        Matrix scaled = reduced * scale.cwiseInverse().asDiagonal();
+        Eigen::JacobiSVD<Matrix> svd(scaled, Eigen::ComputeThinU | Eigen::ComputeFullV);
+        singular = svd.singularValues();
+        v = svd.matrixV();
+        projected = svd.matrixU().transpose() * qtr;
+        const double scaledMax = singular.size() ? singular[0] : 0.0;
+        rankCutoff = scaledMax * kEps * static_cast<double>(std::max(m, n));
+    }
+
+    // Scaled step z(lambda); lambda = 0 gives the minimum-norm Gauss-Newton step.
+    Vector scaledStep(double lambda) const {
+        Vector coefficients = Vector::Zero(v.cols());
+        for (Eigen::Index i = 0; i < singular.size(); ++i) {
+            const double s = singular[i];
+            if (s <= rankCutoff) continue;
+            coefficients[i] = -s * projected[i] / (s * s + lambda);
+        }
+        return v * coefficients;
+    }
+
+    double scaledStepNorm(double lambda, double* derivative = nullptr) const {
+        double sq = 0, dsq = 0;
+        for (Eigen::Index i = 0; i < singular.size(); ++i) {
+            const double s = singular[i];
+            if (s <= rankCutoff) continue;
+            const double denom = s * s + lambda;
+            const double term = s * projected[i] / denom;
+            sq += term * term;
+            dsq -= 2.0 * term * term / denom;  // d/dlambda of term^2
+        }
+        const double norm = std::sqrt(sq);
+        if (derivative) *derivative = norm > 0 ? dsq / (2.0 * norm) : 0.0;
+        return norm;
+    }
+
+    // |A z|^2 = |J p|^2 for a scaled step z.
+    double modelDecreaseTerm(const Vector& z) const {
+        Vector vz = v.transpose() * z;
+        double sq = 0;
+        for (Eigen::Index i = 0; i < singular.size(); ++i) sq += singular[i] * singular[i] * vz[i] * vz[i];
+        return sq;
+    }
+};
+
+// The lambda >= 0 with |z(lambda)| = radius within a relative tolerance (Moré 1978, Sec. 5):
+// Newton's method on phi(lambda) = 1/radius - 1/|z(lambda)|, which is nearly linear in lambda
+// (Hebden 1973), safeguarded inside [lower, upper] with upper = |A'c| / radius.
+double dampingForRadius(const Linearization& lin, double radius, double tolerance) {
+    double upper = 0;
+    for (Eigen::Index i = 0; i < lin.singular.size(); ++i)
+        upper = std::hypot(upper, lin.singular[i] * lin.projected[i]);
+    upper /= radius;
+    double lower = 0;
+    double lambda = std::max(upper * 1e-3, std::numeric_limits<double>::min());
+    for (int iteration = 0; iteration < 60; ++iteration) {
+        double derivative = 0;
+        const double norm = lin.scaledStepNorm(lambda, &derivative);
+        if (std::fabs(norm - radius) <= tolerance * radius) break;
+        if (norm > radius) lower = lambda;
+        else upper = lambda;
+        // phi = 1/radius - 1/norm; phi' = derivative / norm^2
+        double next = (derivative < 0 && norm > 0) ? lambda - (1.0 / radius - 1.0 / norm) * norm * norm / derivative
+                                                   : 0.5 * (lower + upper);
+        if (!(next > lower && next < upper)) next = std::max(0.5 * (lower + upper), std::sqrt(lower * upper));
+        if (!(next > 0)) next = 0.5 * (lower + upper);
+        lambda = next;
+    }
+    return lambda;
+}
+
+void fillJacobianFacts(IterationRecord& record, const Linearization& lin) {
+    record.jacobianRank = lin.rank;
+    record.jacobianCondition = lin.condition;
+}
+
+std::string singularValueText(const Vector& s) {
+    std::string t;
+    for (Eigen::Index i = 0; i < s.size(); ++i) t += (i ? ", " : "") + shortNumber(s[i]);
+    return t;
+}
+
+// ---------------------------------------------------------------------------------------
+// Levenberg-Marquardt: Moré, "The Levenberg-Marquardt algorithm: implementation and theory",
+// Numerical Analysis, Lecture Notes in Mathematics 630 (1978), the algorithm of MINPACK's
+// lmder: a trust region |D p| <= radius in scaled variables, D_ii = max over iterations of
+// the column norms of J, lambda found for the radius, radius updated from rho.
+
+struct LevenbergMarquardtOptions {
+    double initialRadiusFactor = 100;   // radius_0 = factor * |D x_0| (factor when x_0 = 0)
+    double functionTolerance = 1e-12;   // relative reduction of |r|^2, actual and predicted
+    double stepTolerance = 1e-12;       // radius <= this * |D x|
+    double orthogonalityTolerance = 0;  // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
+    double acceptRatio = 1e-4;          // rho above which a step is accepted
+    double radiusTolerance = 0.1;       // |D p| within (1 +- this) radius
+};
+
+class LevenbergMarquardt final : public MethodState {
+public:
+    explicit LevenbergMarquardt(LevenbergMarquardtOptions options) : options_(options) {}
+
+    void start(Evaluator& eval, State& state) override {
+        evaluateWithJacobian(eval, state);
+        scale_ = columnNorms();
+        const double xNorm = (scale_.asDiagonal() * state.x).norm();
+        radius_ = xNorm > 0 ? options_.initialRadiusFactor * xNorm : options_.initialRadiusFactor;
+    }
+
+    StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
+        record.dampingName = "lambda";
+        record.stepKind = StepKind::LevenbergMarquardt;
+        record.stepLength = 1;
+        Linearization lin;
+        lin.compute(r_, jacobian_, scale_);
+        fillJacobianFacts(record, lin);
+        record.trustRadius = radius_;
+        const double fnormSq = lin.residualNormSq;
+
+        if (fnormSq == 0) {
+            record.note = "all residuals are zero";
+            return {Termination::FunctionTolerance, "converged: every residual is exactly zero"};
+        }
+        if (options_.orthogonalityTolerance > 0) {
+            const double cosine = maxColumnCosine();
+            if (cosine <= options_.orthogonalityTolerance)
+                return {Termination::GradientTolerance,
+                        "converged: residuals orthogonal to the Jacobian's columns (max cosine " + shortNumber(cosine) +
+                            " <= " + shortNumber(options_.orthogonalityTolerance) + ")"};
+        }
+
+        double lambda = 0;
+        Vector z = lin.scaledStep(0);
+        if (z.norm() > (1.0 + options_.radiusTolerance) * radius_) {
+            lambda = dampingForRadius(lin, radius_, options_.radiusTolerance);
+            z = lin.scaledStep(lambda);
+        }
+        const Vector step = z.cwiseQuotient(scale_);
+        const double stepScaledNorm = z.norm();
+        if (iterationsDone_ == 0) radius_ = std::min(radius_, std::max(stepScaledNorm, 1e-300));
+        record.damping = lambda;
+        record.step = step;
+
+        // Predicted relative reduction of |r|^2 from the normal equations of the damped step:
+        // |r|^2 - |r + J p|^2 = |J p|^2 + 2 lambda |D p|^2 (Moré 1978, eq. 4.4).
+        const double jpSq = lin.modelDecreaseTerm(z);
+        const double predicted = (jpSq + 2.0 * lambda * stepScaledNorm * stepScaledNorm) / fnormSq;
+        const double directional = -(jpSq + lambda * stepScaledNorm * stepScaledNorm) / fnormSq;
+        record.predictedDecrease = 0.5 * predicted * fnormSq;
+
+        const Vector trial = state.x + step;
+        Vector trialResiduals;
+        eval.residuals(trial, trialResiduals, nullptr);
+        const bool finite = !eval.sawNonFinite();
+        if (!finite) eval.clearNonFinite();
+        const double trialNormSq = finite ? trialResiduals.squaredNorm() : std::numeric_limits<double>::infinity();
+        // Actual relative reduction; MINPACK sets it to -1 when the sum of squares grows tenfold.
+        const double actual = (finite && 0.1 * std::sqrt(trialNormSq) < std::sqrt(fnormSq))
+                                  ? 1.0 - trialNormSq / fnormSq
+                                  : -1.0;
+        const double rho = predicted > 0 ? actual / predicted : 0.0;
+        record.ratio = rho;
+        record.actualDecrease = finite ? 0.5 * (fnormSq - trialNormSq) : kNaN;
+
+        // Radius update (MINPACK lmder, after Moré 1978 Sec. 6).
+        std::string radiusNote;
+        if (rho <= 0.25) {
+            double shrink = actual >= 0 ? 0.5 : 0.5 * directional / (directional + 0.5 * actual);
+            if (!finite || 0.1 * std::sqrt(trialNormSq) >= std::sqrt(fnormSq) || shrink < 0.1) shrink = 0.1;
+            radius_ = shrink * std::min(radius_, stepScaledNorm / 0.1);
+            radiusNote = "radius reduced";
+        } else if (lambda == 0 || rho >= 0.75) {
+            radius_ = stepScaledNorm / 0.5;
+            radiusNote = "radius enlarged";
+        }
+
+        const bool accepted = finite && rho >= options_.acceptRatio;
+        record.accepted = accepted;
+        if (accepted) {
+            state.x = trial;
+            evaluateWithJacobian(eval, state);
+            const Vector norms = columnNorms();
+            scale_ = scale_.cwiseMax(norms);
+            ++iterationsDone_;
+        }
+        record.note = std::string(accepted ? "step accepted" : "step rejected") +
+                      (finite ? "" : " (residuals not finite at the trial point)") +
+                      (lambda == 0 ? "; Gauss-Newton step inside the region" : "") +
+                      (radiusNote.empty() ? "" : "; " + radiusNote);
+
+        // Convergence tests of MINPACK lmder (info 1, 2, 6, 7), in Moré's scaled norms.
+        const double xScaledNorm = (scale_.asDiagonal() * state.x).norm();
+        const bool smallReduction = std::fabs(actual) <= options_.functionTolerance &&
+                                    predicted <= options_.functionTolerance && 0.5 * rho <= 1.0;
+        if (smallReduction)
+            return {Termination::FunctionTolerance,
+                    "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
+                        ", predicted " + shortNumber(predicted) + ") <= function tolerance " +
+                        shortNumber(options_.functionTolerance)};
+        if (radius_ <= options_.stepTolerance * xScaledNorm)
+            return {Termination::StepTolerance, "converged: trust radius " + shortNumber(radius_) +
+                                                    " <= step tolerance x |D x| = " +
+                                                    shortNumber(options_.stepTolerance * xScaledNorm)};
+        if (std::fabs(actual) <= kEps && predicted <= kEps && 0.5 * rho <= 1.0)
+            return {Termination::FunctionTolerance,
+                    "converged: no further reduction of the sum of squares is possible in double precision"};
+        if (radius_ <= kEps * xScaledNorm)
+            return {Termination::StepTolerance,
+                    "converged: no further improvement of the parameters is possible in double precision"};
+        if (!(radius_ > 0) || !std::isfinite(radius_))
+            return {Termination::TrustRegionCollapsed, "the trust region collapsed (radius " + shortNumber(radius_) + ")"};
+        return {};
+    }
+
+private:
+    void evaluateWithJacobian(Evaluator& eval, State& state) {
+        state.value = eval.residuals(state.x, r_, &jacobian_);
+        state.gradient = jacobian_.transpose() * r_;
+    }
+
+    Vector columnNorms() const {
+        Vector norms = jacobian_.colwise().norm().transpose();
+        for (Eigen::Index i = 0; i < norms.size(); ++i)
+            if (!(norms[i] > 0) || !std::isfinite(norms[i])) norms[i] = 1.0;
+        return norms;
+    }
+
+    double maxColumnCosine() const {
+        const double rn = r_.norm();
+        double worst = 0;
+        for (Eigen::Index j = 0; j < jacobian_.cols(); ++j) {
+            const double cn = jacobian_.col(j).norm();
+            if (cn > 0) worst = std::max(worst, std::fabs(jacobian_.col(j).dot(r_)) / (cn * rn));
+        }
+        return worst;
+    }
+
+    LevenbergMarquardtOptions options_;
+    Vector r_;
+    Matrix jacobian_;
+    Vector scale_;
+    double radius_ = 1;
+    int iterationsDone_ = 0;
+};
+
+// ---------------------------------------------------------------------------------------
+// Gauss-Newton: the direction is the minimum-norm least-squares solution of J d = -r
+// (rank-revealing, via the same QR + SVD), globalised by a backtracking Armijo line search
+// on f = 1/2 |r|^2 (Nocedal & Wright 2006, Sec. 10.3). A direction that is not a descent
+// direction falls back to steepest descent, and the record says so.
+
+class GaussNewton final : public MethodState {
+public:
+    explicit GaussNewton(LineSearchSettings settings, double functionTolerance)
+        : settings_(settings), functionTolerance_(functionTolerance) {}
+
+    void start(Evaluator& eval, State& state) override { evaluateWithJacobian(eval, state); }
+
+    StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
+        Linearization lin;
+        const Vector unit = Vector::Ones(jacobian_.cols());
+        lin.compute(r_, jacobian_, unit);
+        fillJacobianFacts(record, lin);
+        if (lin.residualNormSq == 0) return {Termination::FunctionTolerance, "converged: every residual is exactly zero"};
+        Vector direction = lin.scaledStep(0);
+        record.stepKind = StepKind::GaussNewton;
+        if (lin.rank < jacobian_.cols())
+            record.note = "J is rank-deficient (rank " + std::to_string(lin.rank) + " of " +
+                          std::to_string(jacobian_.cols()) + "; singular values " +
+                          singularValueText(lin.unscaledSingular) + "): minimum-norm direction";
+        if (!(direction.dot(state.gradient) < 0)) {
+            direction = -state.gradient;
+            record.stepKind = StepKind::Gradient;
+            record.note += std::string(record.note.empty() ? "" : "; ") +
+                           "Gauss-Newton direction is not a descent direction: steepest descent instead";
+        }
+        const double predicted = lin.modelDecreaseTerm(direction) / lin.residualNormSq;
+        const double before = state.value;
+        StepOutcome outcome = searchAndMove(eval, state, record, direction, LineSearchKind::Armijo, settings_);
+        if (outcome.termination != Termination::Running) return outcome;
+        evaluateWithJacobian(eval, state);
+        record.damping = kNaN;
+        const double actual = before > 0 ? (before - state.value) / before : 0.0;
+        if (functionTolerance_ > 0 && std::fabs(actual) <= functionTolerance_ && predicted <= functionTolerance_)
+            return {Termination::FunctionTolerance,
+                    "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
+                        ", predicted " + shortNumber(predicted) + ") <= function tolerance " +
+                        shortNumber(functionTolerance_)};
+        return {};
+    }
+
+private:
+    void evaluateWithJacobian(Evaluator& eval, State& state) {
+        state.value = eval.residuals(state.x, r_, &jacobian_);
+        state.gradient = jacobian_.transpose() * r_;
+    }
+
+    LineSearchSettings settings_;
+    double functionTolerance_;
+    Vector r_;
+    Matrix jacobian_;
+};
+
+}  // namespace
+
+std::vector<MethodRegistration> leastSquaresMethods() {
+    std::vector<MethodRegistration> list;
+
+    {
+        MethodRegistration lm;
+        lm.info.id = "levenberg-marquardt";
+        lm.info.family = "least-squares";
+        lm.info.summary = "Levenberg-Marquardt in Moré's scaled trust-region form (needs residuals)";
+        lm.info.needsGradient = true;
+        lm.info.needsResiduals = true;
+        lm.info.options = {
+            realOption("initial_radius_factor", "first trust radius = factor x |D x0| (factor when x0 = 0)", 100, 0,
+                       1e300, true, false),
+            realOption("function_tolerance", "stop when the relative reduction of the sum of squares is below this",
+                       1e-12, 0, 1, false, true),
+            realOption("step_tolerance", "stop when the trust radius is below this x |D x|", 1e-12, 0, 1, false, true),
+            realOption("orthogonality_tolerance",
+                       "stop when every Jacobian column is this close to orthogonal to r (0 = off)", 0, 0, 1, false,
+                       true),
+            realOption("accept_ratio", "accept a step when rho is at least this", 1e-4, 0, 0.25, false, true),
+        };
+        lm.make = [specs = lm.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
+            LevenbergMarquardtOptions o;
+            o.initialRadiusFactor = optionNumber(specs, values, "initial_radius_factor");
+            o.functionTolerance = optionNumber(specs, values, "function_tolerance");
+            o.stepTolerance = optionNumber(specs, values, "step_tolerance");
+            o.orthogonalityTolerance = optionNumber(specs, values, "orthogonality_tolerance");
+            o.acceptRatio = optionNumber(specs, values, "accept_ratio");
+            return std::make_unique<LevenbergMarquardt>(o);
+        };
+        list.push_back(std::move(lm));
+    }
+    {
+        MethodRegistration gn;
+        gn.info.id = "gauss-newton";
+        gn.info.family = "least-squares";
+        gn.info.summary = "Gauss-Newton direction (minimum-norm, via QR) with a backtracking line search";
+        gn.info.needsGradient = true;
+        gn.info.needsResiduals = true;
+        gn.info.options = lineSearchOptionSpecs(0.9);
+        gn.info.options.erase(std::remove_if(gn.info.options.begin(), gn.info.options.end(),
+                                             [](const OptionSpec& s) { return s.name == "curvature"; }),
+                              gn.info.options.end());
+        gn.info.options.push_back(realOption("function_tolerance",
+                                             "stop when the relative reduction of the sum of squares is below this",
+                                             1e-12, 0, 1, false, true));
+        gn.make = [specs = gn.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
+            LineSearchSettings s;
+            s.sufficientDecrease = optionNumber(specs, values, "sufficient_decrease");
+            s.backtrackFactor = optionNumber(specs, values, "backtrack_factor");
+            s.maxTrials = static_cast<int>(optionNumber(specs, values, "max_trials"));
+            return std::make_unique<GaussNewton>(s, optionNumber(specs, values, "function_tolerance"));
+        };
+        list.push_back(std::move(gn));
+    }
+    return list;
+}
+
+}  // namespace sw::solve
