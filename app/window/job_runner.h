@@ -1,0 +1,116 @@
+#pragma once
+// The one place where the window's computation runs off the GUI thread.
+//
+// Inputs are copied into each job; results come back as immutable snapshots
+// (std::shared_ptr<const ...>) through queued signals on the GUI thread. Every job kind has
+// a generation counter: a newer request of the same kind cancels the older one and the
+// older result is dropped, so dragging the start or zooming never queues stale work.
+// Each job reports progress and can be cancelled; the window never waits on a job.
+
+#include "core/analyze/analyze.h"
+#include "core/solve/solver.h"
+#include "widgets/snapshot.h"
+
+#include <QObject>
+#include <QThreadPool>
+#include <array>
+#include <atomic>
+#include <memory>
+#include <mutex>
+#include <string>
+#include <vector>
+
+namespace sw::window {
+
+// One lineup entry as a job sees it.
+struct RunEntry {
+    std::string label;
+    std::string methodId;
+    solve::OptionValues options;
+};
+
+struct RunRequest {
+    std::shared_ptr<const Objective> objective;
+    Vector start;
+    std::vector<RunEntry> entries;
+    solve::StoppingRules rules;
+};
+
+// The runs of one request, in the order of its entries (a run whose input was rejected
+// is a finished run with termination Failed and the reason as its message).
+struct RunBatch {
+    quint64 generation = 0;
+    std::shared_ptr<const Objective> objective;
+    std::vector<std::shared_ptr<const solve::Run>> runs;
+    bool stepping = false;   // produced by single steps (runs may still be going)
+    bool allFinished = false;
+    bool cancelled = false;
+    double seconds = 0;      // wall time of the job
+};
+
+struct FieldRequest {
+    std::shared_ptr<const Objective> objective;
+    Vector held;             // full n-vector; the plotted two are overwritten per cell
+    int xVariable = 0, yVariable = 1;
+    analyze::Box box;
+    int nx = 200, ny = 200;
+    int contourCount = 14;
+    bool logColour = false;
+};
+
+class JobRunner : public QObject {
+    Q_OBJECT
+public:
+    enum Kind { Runs = 0, Field = 1, KindCount = 2 };
+
+    explicit JobRunner(QObject* parent = nullptr);
+    ~JobRunner() override;
+
+    // Solves every entry to the end (supersedes any earlier run or step job).
+    void runAll(const RunRequest& request);
+    // Starts a step-by-step session: every solver begins (its start record only).
+    void beginSteps(const RunRequest& request);
+    // One more step for every unfinished solver of the session. Returns false (and does
+    // nothing) when there is no session, it is finished, or the previous step is still busy.
+    bool stepAll();
+    bool hasStepSession() const;
+    bool stepSessionFinished() const;
+    void endStepSession();
+
+    void sampleField(const FieldRequest& request);
+
+    void cancel(Kind kind);
+    void cancelAll();
+    bool busy(Kind kind) const { return inFlight_[kind] > 0; }
+    bool anyBusy() const { return busy(Runs) || busy(Field); }
+    quint64 generation(Kind kind) const { return generation_[kind]; }
+    // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
+    bool waitForIdle(int timeoutMs);
+
+signals:
+    void runsReady(std::shared_ptr<const sw::window::RunBatch> batch);
+    void fieldReady(std::shared_ptr<const sw::widgets::FieldSnapshot> field, quint64 generation);
+    void progress(int kind, double fraction);
+    void jobStarted(int kind);
+    // After a result was delivered, dropped as stale, or the job was cancelled.
+    void jobEnded(int kind, bool cancelled);
+
+private:
+    struct StepSession;
+    using CancelFlag = std::shared_ptr<std::atomic<bool>>;
+    CancelFlag startGeneration(Kind kind, quint64& generation);
+    void launch(Kind kind, std::function<void()> work);
+    void finishOnGui(Kind kind, quint64 generation, bool cancelled, std::function<void()> deliver);
+
+    QThreadPool pool_;
+    std::array<quint64, KindCount> generation_{};
+    std::array<int, KindCount> inFlight_{};
+    std::array<CancelFlag, KindCount> cancel_{};
+    std::shared_ptr<StepSession> session_;
+    bool stepBusy_ = false;
+};
+
+}  // namespace sw::window
+
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::RunBatch>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FieldSnapshot>)
