@@ -31,14 +31,17 @@ public:
     // The first non-finite result seen, e.g. "gradient component y is nan"; "" when none.
     const std::string& nonFinite() const { return nonFinite_; }
     bool sawNonFinite() const { return !nonFinite_.empty(); }
+    // Where the first non-finite result was seen.
+    const Vector& nonFinitePoint() const { return nonFinitePoint_; }
     void clearNonFinite() { nonFinite_.clear(); }  // for methods that back off from a bad trial point
 
 private:
-    void checkFinite(const char* what, double f, const Vector* g, const Matrix* h);
+    void checkFinite(const Vector& x, double f, const Vector* g, const Matrix* h);
     const Objective& objective_;
     long maxEvaluations_;
     EvaluationCounts counts_;
     std::string nonFinite_;
+    Vector nonFinitePoint_;
     std::vector<std::string> names_;
 };
 
@@ -93,10 +96,22 @@ std::vector<MethodRegistration> derivativeFreeMethods();      // nelder_mead.cpp
 std::vector<MethodRegistration> leastSquaresMethods();        // least_squares.cpp
 
 const std::vector<MethodRegistration>& registrations();       // registry.cpp
+const MethodRegistration* findRegistration(const std::string& id);
 
 // Small shared helpers (solver_util.cpp).
 double angleToSteepestDescentDegrees(const Vector& step, const Vector& gradient);
 // Symmetric eigenvalues ascending; condition = max|l| / min|l| (inf when min is 0).
 void spectrum(const Matrix& h, Vector& eigenvalues, double& condition);
+// Option spec builders for the method registrations.
+OptionSpec realOption(std::string name, std::string description, double defaultValue, double lower, double upper,
+                      bool lowerOpen, bool upperOpen);
+OptionSpec integerOption(std::string name, std::string description, int defaultValue, int lower, int upper);
+OptionSpec choiceOption(std::string name, std::string description, std::vector<std::string> choices,
+                        int defaultIndex);
+OptionSpec flagOption(std::string name, std::string description, bool defaultValue);
+// A number for notes and messages: 6 significant digits, C locale ("nan", "inf" spelled out).
+std::string shortNumber(double value);
+// "(x=1, y=2)" with the objective's variable names (at most 8 shown).
+std::string pointText(const Vector& x, const std::vector<std::string>& names);
 
 }  // namespace sw::solve

@@ -31,6 +31,9 @@ std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValue
 // Resolved values with defaults filled in (only call after checkOptions returned "").
 double optionNumber(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name);
 std::string optionChoice(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name);
+bool optionFlag(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name);
+// The spec of that name, or nullptr.
+const OptionSpec* findOption(const std::vector<OptionSpec>& specs, const std::string& name);
 
 // When a run stops; shared by every method.
 struct StoppingRules {
@@ -40,6 +43,10 @@ struct StoppingRules {
     double relativeGradientTolerance = 0;  // stop when |g| <= this * |g0| (0 = off)
     double stepTolerance = 1e-14;        // stop when |x_{k+1}-x_k| <= this * (1 + |x_k|)
     double functionTolerance = 0;        // stop when |f_{k+1}-f_k| <= this * (1 + |f_k|) (0 = off)
+    // Diagnostics, not a stopping rule: records carry the Hessian's eigenvalues and condition
+    // number when n <= this (computed without counting toward the method's evaluations;
+    // 0 = never, which keeps benchmarks honest about the method's own cost).
+    int spectrumMaxDimension = 50;
     std::string check() const;           // "" or a sentence
 };
 

@@ -1,0 +1,366 @@
+// The solver loop shared by every method: start, one step at a time, the stopping checks
+// (each named after what it checks), the records' common fields, and the end-point
+// classification by the exact Hessian.
+#include "core/solve/method.h"
+
+#include <algorithm>
+#include <cmath>
+#include <exception>
+#include <utility>
+
+namespace sw::solve {
+
+namespace {
+
+// Above this dimension the end point is not classified (an n x n eigendecomposition per run).
+constexpr int kClassifyMaxDimension = 300;
+
+class Engine final : public Solver {
+public:
+    Engine(const MethodRegistration& registration, std::unique_ptr<MethodState> method, const Objective& objective,
+           Vector start, const StoppingRules& rules)
+        : info_(registration.info),
+          method_(std::move(method)),
+          objective_(objective),
+          eval_(objective, rules.maxEvaluations),
+          rules_(rules),
+          start_(std::move(start)),
+          names_(objective.variableNames()) {
+        run_.methodId = info_.id;
+        run_.label = info_.id;
+    }
+
+    const MethodInfo& info() const override { return info_; }
+    bool finished() const override { return run_.finished(); }
+    const Run& run() const override { return run_; }
+
+    void begin() override {
+        if (begun_) return;
+        begun_ = true;
+        state_.x = start_;
+        state_.iteration = 0;
+        evaluatePoint();
+        if (eval_.sawNonFinite()) {
+            run_.trace.push_back(pointRecord());
+            finish(Termination::NonFinite, "not finite at the start point: " + eval_.nonFinite() + " at " +
+                                               pointText(eval_.nonFinitePoint(), names_));
+            return;
+        }
+        method_->start(eval_, state_);
+        run_.trace.push_back(pointRecord());
+        initialGradientNorm_ = run_.trace.back().gradientNorm;
+        stoppedAtCurrentPoint(kNaN, false);
+    }
+
+    void step() override {
+        if (!begun_) begin();
+        if (finished()) return;
+        const Vector previousX = state_.x;
+        const double previousValue = state_.value;
+        StepOutcome outcome;
+        {
+            IterationRecord& record = run_.trace.back();
+            try {
+                outcome = method_->iterate(eval_, state_, record);
+            } catch (const std::exception& e) {
+                outcome = {Termination::Failed, std::string("the method broke down: ") + e.what()};
+            }
+            if (record.step.size() != previousX.size()) record.step = state_.x - previousX;
+            record.stepNorm = record.step.norm();
+            if (record.stepNorm > 0) record.angleToSteepestDescent = angleToSteepestDescentDegrees(record.step, record.gradient);
+            if (std::isnan(record.actualDecrease) && record.accepted && std::isfinite(state_.value))
+                record.actualDecrease = previousValue - state_.value;
+            record.evaluations = eval_.counts();
+        }
+        const bool accepted = run_.trace.back().accepted;
+        const double stepNorm = run_.trace.back().stepNorm;
+        ++state_.iteration;
+        if (!state_.hasHessian && info_.needsHessian) state_.hessian.resize(0, 0);
+        if (!info_.needsGradient) diagnosticGradient();
+        run_.trace.push_back(pointRecord());
+
+        if (outcome.termination != Termination::Running) {
+            finish(outcome.termination, outcome.message);
+            return;
+        }
+        if (eval_.sawNonFinite()) {
+            finish(Termination::NonFinite, "non-finite result in iteration " + std::to_string(state_.iteration) +
+                                               ": " + eval_.nonFinite() + " at " +
+                                               pointText(eval_.nonFinitePoint(), names_));
+            return;
+        }
+        const double change = accepted ? std::abs(previousValue - state_.value) : kNaN;
+        if (stoppedAtCurrentPoint(accepted ? stepNorm : kNaN, accepted, previousX, change, previousValue)) return;
+    }
+
+    void stop() override {
+        if (!begun_) begin();
+        if (finished()) return;
+        finish(Termination::StoppedByCaller,
+               "stopped by the caller after " + std::to_string(run_.iterations()) + " iterations");
+    }
+
+private:
+    // Fills value, gradient (and Hessian) at state_.x, counted, as the method needs them.
+    void evaluatePoint() {
+        if (info_.needsHessian) {
+            state_.value = eval_.hessian(state_.x, state_.gradient, state_.hessian);
+            state_.hasHessian = true;
+        } else if (info_.needsGradient) {
+            state_.value = eval_.gradient(state_.x, state_.gradient);
+        } else {
+            state_.value = eval_.value(state_.x);
+            diagnosticGradient();
+        }
+    }
+
+    // Derivative-free methods still show the gradient in their records; it is not counted.
+    void diagnosticGradient() {
+        if (state_.x.allFinite()) objective_.valueGradient(state_.x, state_.gradient);
+        else state_.gradient = Vector::Constant(state_.x.size(), kNaN);
+    }
+
+    IterationRecord pointRecord() const {
+        IterationRecord r;
+        r.iteration = state_.iteration;
+        r.x = state_.x;
+        r.value = state_.value;
+        r.gradient = state_.gradient;
+        r.gradientNorm = state_.gradient.size() == state_.x.size() ? state_.gradient.norm() : kNaN;
+        r.evaluations = eval_.counts();
+        if (state_.x.size() <= rules_.spectrumMaxDimension && state_.x.allFinite()) {
+            if (state_.hasHessian && state_.hessian.rows() == state_.x.size()) {
+                spectrum(state_.hessian, r.hessianEigenvalues, r.conditionNumber);
+            } else {
+                Vector g;
+                Matrix h;
+                objective_.valueGradientHessian(state_.x, g, h);  // diagnostics only: not counted
+                spectrum(h, r.hessianEigenvalues, r.conditionNumber);
+            }
+        }
+        return r;
+    }
+
+    bool stoppedAtCurrentPoint(double stepNorm, bool accepted, const Vector& previousX = {},
+                               double valueChange = kNaN, double previousValue = kNaN) {
+        std::string why;
+        if (gradientSmallEnough(why)) return finish(Termination::GradientTolerance, why), true;
+        if (accepted && stepTooSmall(stepNorm, previousX, why)) return finish(Termination::StepTolerance, why), true;
+        if (accepted && functionChangeTooSmall(valueChange, previousValue, why))
+            return finish(Termination::FunctionTolerance, why), true;
+        if (method_->ownConvergence(&why)) return finish(Termination::StepTolerance, why), true;
+        if (iterationLimitReached(why)) return finish(Termination::IterationLimit, why), true;
+        if (evaluationLimitReached(why)) return finish(Termination::EvaluationLimit, why), true;
+        return false;
+    }
+
+    bool gradientSmallEnough(std::string& why) const {
+        if (!info_.needsGradient) return false;  // derivative-free methods judge by their own measure
+        const double norm = run_.trace.back().gradientNorm;
+        if (norm <= rules_.gradientTolerance) {
+            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient tolerance " +
+                  shortNumber(rules_.gradientTolerance);
+            return true;
+        }
+        if (rules_.relativeGradientTolerance > 0 && norm <= rules_.relativeGradientTolerance * initialGradientNorm_) {
+            why = "converged: gradient norm " + shortNumber(norm) + " <= relative tolerance " +
+                  shortNumber(rules_.relativeGradientTolerance) + " x initial gradient norm " +
+                  shortNumber(initialGradientNorm_);
+            return true;
+        }
+        return false;
+    }
+
+    bool stepTooSmall(double stepNorm, const Vector& previousX, std::string& why) const {
+        if (!info_.needsGradient || !(stepNorm >= 0)) return false;
+        const double scale = 1.0 + previousX.norm();
+        if (stepNorm <= rules_.stepTolerance * scale) {
+            why = "converged on step: step norm " + shortNumber(stepNorm) + " <= step tolerance " +
+                  shortNumber(rules_.stepTolerance) + " x (1 + |x|) = " + shortNumber(rules_.stepTolerance * scale);
+            return true;
+        }
+        return false;
+    }
+
+    bool functionChangeTooSmall(double change, double previousValue, std::string& why) const {
+        if (!(rules_.functionTolerance > 0) || !(change >= 0)) return false;
+        const double bound = rules_.functionTolerance * (1.0 + std::abs(previousValue));
+        if (change <= bound) {
+            why = "converged on function change: |f change| " + shortNumber(change) + " <= function tolerance " +
+                  shortNumber(rules_.functionTolerance) + " x (1 + |f|) = " + shortNumber(bound);
+            return true;
+        }
+        return false;
+    }
+
+    bool iterationLimitReached(std::string& why) const {
+        if (run_.iterations() < rules_.maxIterations) return false;
+        why = "stopped at the iteration limit (" + std::to_string(rules_.maxIterations) +
+              ") with gradient norm " + shortNumber(run_.trace.back().gradientNorm);
+        return true;
+    }
+
+    bool evaluationLimitReached(std::string& why) const {
+        if (!eval_.overBudget()) return false;
+        const EvaluationCounts& c = eval_.counts();
+        why = "stopped at the evaluation limit (" + std::to_string(rules_.maxEvaluations) + "): " +
+              std::to_string(c.value) + " values, " + std::to_string(c.gradient) + " gradients, " +
+              std::to_string(c.hessian) + " Hessians";
+        return true;
+    }
+
+    void finish(Termination kind, std::string message) {
+        run_.termination = kind;
+        run_.message = std::move(message);
+        run_.x = state_.x;
+        run_.value = state_.value;
+        run_.gradientNorm = run_.trace.empty() ? kNaN : run_.trace.back().gradientNorm;
+        run_.evaluations = eval_.counts();
+        if (!run_.trace.empty()) run_.trace.back().evaluations = eval_.counts();
+        classifyEndPoint();
+    }
+
+    void classifyEndPoint() {
+        const int n = static_cast<int>(state_.x.size());
+        if (n > kClassifyMaxDimension) {
+            run_.endPoint.description = "not classified: " + std::to_string(n) + " variables is above the limit of " +
+                                        std::to_string(kClassifyMaxDimension) + " for an eigendecomposition";
+            return;
+        }
+        if (!state_.x.allFinite()) {
+            run_.endPoint.description = "not classified: the end point is not finite";
+            return;
+        }
+        Matrix h;
+        if (state_.hasHessian && state_.hessian.rows() == n) {
+            h = state_.hessian;
+        } else {
+            Vector g;
+            objective_.valueGradientHessian(state_.x, g, h);  // exact Hessian; not counted
+        }
+        run_.endPoint = classifyPoint(h);
+        // Curvature alone does not make a critical point: say so when the gradient is not small.
+        const double gn = run_.gradientNorm;
+        if (run_.endPoint.kind != PointKind::Unknown && std::isfinite(gn) &&
+            gn > std::max(1e-4, std::sqrt(rules_.gradientTolerance)) * (1.0 + std::abs(run_.value)))
+            run_.endPoint.description += "; not a critical point (gradient norm " + shortNumber(gn) +
+                                         "), so this is only the local curvature";
+    }
+
+    MethodInfo info_;
+    std::unique_ptr<MethodState> method_;
+    const Objective& objective_;
+    Evaluator eval_;
+    StoppingRules rules_;
+    Vector start_;
+    std::vector<std::string> names_;
+    State state_;
+    Run run_;
+    bool begun_ = false;
+    double initialGradientNorm_ = kNaN;
+};
+
+std::string firstNonFinite(const Vector& v, const std::vector<std::string>& names) {
+    for (Eigen::Index i = 0; i < v.size(); ++i)
+        if (!std::isfinite(v[i])) {
+            const auto k = static_cast<std::size_t>(i);
+            return (k < names.size() ? names[k] : "x" + std::to_string(i + 1)) + " = " + shortNumber(v[i]);
+        }
+    return "";
+}
+
+}  // namespace
+
+SolverOrError makeSolver(const std::string& methodId, const Objective& objective, const Vector& start,
+                         const OptionValues& options, const StoppingRules& rules) {
+    SolverOrError result;
+    const MethodRegistration* registration = findRegistration(methodId);
+    if (!registration) {
+        result.error = "unknown method '" + methodId + "'; known: " + methodIdList();
+        return result;
+    }
+    const MethodInfo& info = registration->info;
+    if (std::string why = checkOptions(info.options, options); !why.empty()) {
+        result.error = "method " + methodId + ": " + why;
+        return result;
+    }
+    if (registration->check) {
+        if (std::string why = registration->check(options); !why.empty()) {
+            result.error = "method " + methodId + ": " + why;
+            return result;
+        }
+    }
+    if (std::string why = rules.check(); !why.empty()) {
+        result.error = "stopping rules: " + why;
+        return result;
+    }
+    const std::vector<std::string> names = objective.variableNames();
+    const int n = objective.dimension();
+    if (start.size() != n) {
+        std::string list;
+        for (std::size_t i = 0; i < names.size() && i < 8; ++i) list += (i ? ", " : "") + names[i];
+        if (names.size() > 8) list += ", ...";
+        result.error = "the start point has " + std::to_string(start.size()) + " value" +
+                       (start.size() == 1 ? "" : "s") + " but the objective has " + std::to_string(n) +
+                       " variable" + (n == 1 ? "" : "s") + (list.empty() ? "" : " (" + list + ")");
+        return result;
+    }
+    if (n == 0) {
+        result.error = "the objective has no variables";
+        return result;
+    }
+    if (!start.allFinite()) {
+        result.error = "the start point is not finite: " + firstNonFinite(start, names);
+        return result;
+    }
+    if (info.needsResiduals && !objective.hasResiduals()) {
+        result.error = "method " + methodId +
+                       " needs a least-squares objective (residuals and their Jacobian); this objective has none";
+        return result;
+    }
+    {
+        // The start must be a point where the method can begin: value and gradient finite.
+        Evaluator probe(objective, 3);
+        Vector g;
+        Matrix h;
+        if (info.needsHessian) probe.hessian(start, g, h);
+        else probe.gradient(start, g);
+        if (probe.sawNonFinite()) {
+            result.error = "the objective is not finite at the start point " + pointText(start, names) + ": " +
+                           probe.nonFinite();
+            return result;
+        }
+    }
+    std::unique_ptr<MethodState> method = registration->make(options);
+    if (!method) {
+        result.error = "method " + methodId + " could not be set up";
+        return result;
+    }
+    result.solver = std::make_unique<Engine>(*registration, std::move(method), objective, start, rules);
+    return result;
+}
+
+Run solve(Solver& solver, const Observer& observer) {
+    solver.begin();
+    while (!solver.finished()) {
+        solver.step();
+        if (observer && !solver.finished() && !observer(solver.run())) solver.stop();
+    }
+    return solver.run();
+}
+
+Run solve(const std::string& methodId, const Objective& objective, const Vector& start, const OptionValues& options,
+          const StoppingRules& rules) {
+    SolverOrError made = makeSolver(methodId, objective, start, options, rules);
+    if (!made.solver) {
+        Run run;
+        run.methodId = methodId;
+        run.label = methodId;
+        run.termination = Termination::Failed;
+        run.message = made.error;
+        return run;
+    }
+    return solve(*made.solver);
+}
+
+}  // namespace sw::solve
