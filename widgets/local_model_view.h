@@ -33,6 +33,7 @@ protected:
     void rebuild() override;
 
 private:
+    void settingRangeFor(const analyze::Box& box);
     double halfWidth_ = 0;
     QLabel* verdict_ = nullptr;
     QCPCurve* newton_ = nullptr;

@@ -1,0 +1,285 @@
+#include "widgets/plot_style.h"
+
+#include <QEvent>
+#include <QFileInfo>
+#include <QSvgGenerator>
+#include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+
+namespace sw::widgets {
+
+QCPScatterStyle::ScatterShape scatterShape(Marker marker) {
+    switch (marker) {
+    case Marker::Circle: return QCPScatterStyle::ssCircle;
+    case Marker::Square: return QCPScatterStyle::ssSquare;
+    case Marker::Triangle: return QCPScatterStyle::ssTriangle;
+    case Marker::Diamond: return QCPScatterStyle::ssDiamond;
+    case Marker::Cross: return QCPScatterStyle::ssCross;
+    case Marker::Plus: return QCPScatterStyle::ssPlus;
+    case Marker::Star: return QCPScatterStyle::ssStar;
+    }
+    return QCPScatterStyle::ssCircle;
+}
+
+QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size) {
+    QColor fill = colour.lighter(150);
+    fill.setAlpha(200);
+    QPen pen(colour, 1.3);
+    pen.setCosmetic(true);
+    return QCPScatterStyle(scatterShape(marker), pen, QBrush(fill), size);
+}
+
+QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size) {
+    QPen pen(colour.darker(130), 2.0);
+    pen.setCosmetic(true);
+    QColor pale = colour.lighter(170);
+    switch (kind) {
+    case solve::PointKind::Minimum: return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, QBrush(colour), size);
+    case solve::PointKind::Saddle:
+        return QCPScatterStyle(QCPScatterStyle::ssCrossSquare, pen, QBrush(pale), size);
+    case solve::PointKind::Maximum: return QCPScatterStyle(QCPScatterStyle::ssTriangle, pen, QBrush(pale), size);
+    case solve::PointKind::Degenerate: return QCPScatterStyle(QCPScatterStyle::ssDiamond, pen, Qt::NoBrush, size);
+    case solve::PointKind::Unknown: break;
+    }
+    return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size);
+}
+
+QString endPointLabel(solve::PointKind kind) {
+    switch (kind) {
+    case solve::PointKind::Minimum: return QStringLiteral("ends at a minimum");
+    case solve::PointKind::Saddle: return QStringLiteral("ends at a saddle");
+    case solve::PointKind::Maximum: return QStringLiteral("ends at a maximum");
+    case solve::PointKind::Degenerate: return QStringLiteral("ends at a degenerate point");
+    case solve::PointKind::Unknown: break;
+    }
+    return QStringLiteral("ends unclassified");
+}
+
+bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }
+
+void styleAxisRect(QCPAxisRect* rect, const QPalette& palette) {
+    const QColor text = palette.color(QPalette::WindowText);
+    QColor grid = text;
+    grid.setAlpha(isDarkPalette(palette) ? 45 : 35);
+    QColor subGrid = text;
+    subGrid.setAlpha(15);
+    QFont labelFont = QApplication::font();
+    QFont tickFont = labelFont;
+    tickFont.setPointSizeF(std::max(7.0, labelFont.pointSizeF() * 0.9));
+    for (QCPAxis* axis : rect->axes()) {
+        axis->setBasePen(QPen(text, 1));
+        axis->setTickPen(QPen(text, 1));
+        axis->setSubTickPen(QPen(text, 1));
+        axis->setLabelColor(text);
+        axis->setTickLabelColor(text);
+        axis->setLabelFont(labelFont);
+        axis->setTickLabelFont(tickFont);
+        axis->grid()->setPen(QPen(grid, 1, Qt::DotLine));
+        axis->grid()->setSubGridPen(QPen(subGrid, 1, Qt::DotLine));
+        axis->grid()->setZeroLinePen(QPen(grid, 1));
+    }
+    rect->setBackground(QBrush(palette.color(QPalette::Base)));
+}
+
+void applyPlotStyle(QCustomPlot* plot) {
+    const QPalette palette = plot->palette();
+    plot->setBackground(QBrush(palette.color(QPalette::Window)));
+    for (QCPAxisRect* rect : plot->axisRects()) styleAxisRect(rect, palette);
+    const QColor text = palette.color(QPalette::WindowText);
+    QColor legendFill = palette.color(QPalette::Base);
+    legendFill.setAlpha(215);
+    plot->legend->setBrush(QBrush(legendFill));
+    plot->legend->setBorderPen(QPen(text.lighter(isDarkPalette(palette) ? 80 : 200)));
+    plot->legend->setTextColor(text);
+    QFont legendFont = QApplication::font();
+    legendFont.setPointSizeF(std::max(7.0, legendFont.pointSizeF() * 0.9));
+    plot->legend->setFont(legendFont);
+    for (int i = 0; i < plot->plotLayout()->elementCount(); ++i) {
+        if (auto* title = qobject_cast<QCPTextElement*>(plot->plotLayout()->elementAt(i))) title->setTextColor(text);
+    }
+}
+
+namespace {
+struct GradientStop {
+    double position;
+    QColor colour;
+};
+// Our own sequential ramp. Each stop is lighter than the one before it (CIE L* roughly
+// 13, 27, 43, 58, 74, 92), and hue turns from blue-violet through teal and green to straw.
+const std::vector<GradientStop>& gradientStops() {
+    static const std::vector<GradientStop> stops = {
+        {0.00, QColor(0x16, 0x1a, 0x3e)}, {0.20, QColor(0x33, 0x3c, 0x86)}, {0.40, QColor(0x25, 0x6f, 0x8e)},
+        {0.60, QColor(0x3c, 0x9d, 0x85)}, {0.80, QColor(0x9b, 0xc4, 0x6a)}, {1.00, QColor(0xf6, 0xea, 0xb4)},
+    };
+    return stops;
+}
+}  // namespace
+
+QCPColorGradient fieldGradient() {
+    QCPColorGradient gradient;
+    gradient.clearColorStops();
+    for (const GradientStop& stop : gradientStops()) gradient.setColorStopAt(stop.position, stop.colour);
+    gradient.setColorInterpolation(QCPColorGradient::ciRGB);
+    gradient.setLevelCount(350);
+    gradient.setNanHandling(QCPColorGradient::nhNanColor);
+    gradient.setNanColor(QColor(150, 150, 150));
+    return gradient;
+}
+
+double fieldGradientLightness(double t) {
+    const auto& stops = gradientStops();
+    t = std::clamp(t, 0.0, 1.0);
+    for (std::size_t i = 1; i < stops.size(); ++i) {
+        if (t <= stops[i].position) {
+            const double u = (t - stops[i - 1].position) / (stops[i].position - stops[i - 1].position);
+            return ((1 - u) * stops[i - 1].colour.lightnessF() + u * stops[i].colour.lightnessF());
+        }
+    }
+    return stops.back().colour.lightnessF();
+}
+
+QString formatNumber(double value, int significantDigits) {
+    if (std::isnan(value)) return QStringLiteral("nan");
+    if (std::isinf(value)) return value > 0 ? QStringLiteral("inf") : QStringLiteral("-inf");
+    if (value == 0) return QStringLiteral("0");
+    const double magnitude = std::abs(value);
+    if (magnitude >= 1e-3 && magnitude < 1e5) return QString::number(value, 'g', significantDigits);
+    return QString::number(value, 'e', significantDigits - 1);
+}
+
+TransformTicker::TransformTicker(Map forward, Map inverse, Candidates candidates)
+    : forward_(std::move(forward)), inverse_(std::move(inverse)), candidates_(std::move(candidates)) {}
+
+QVector<double> TransformTicker::createTickVector(double /*tickStep*/, const QCPRange& range) {
+    const double lo = inverse_(range.lower), hi = inverse_(range.upper);
+    std::vector<double> ticks;
+    for (double v : candidates_(std::min(lo, hi), std::max(lo, hi))) {
+        const double t = forward_(v);
+        if (std::isfinite(t) && t >= range.lower && t <= range.upper) ticks.push_back(t);
+    }
+    std::sort(ticks.begin(), ticks.end());
+    ticks.erase(std::unique(ticks.begin(), ticks.end()), ticks.end());
+    // Thin evenly (keeping zero when present) so labels do not collide.
+    const int wanted = std::max(2, tickCount() + 1);
+    if (static_cast<int>(ticks.size()) > wanted) {
+        const int stride = static_cast<int>(std::ceil(static_cast<double>(ticks.size()) / wanted));
+        std::size_t anchor = 0;
+        for (std::size_t i = 0; i < ticks.size(); ++i)
+            if (std::abs(ticks[i]) < 1e-12) anchor = i;
+        std::vector<double> thinned;
+        for (std::size_t i = 0; i < ticks.size(); ++i)
+            if ((static_cast<long>(i) - static_cast<long>(anchor)) % stride == 0) thinned.push_back(ticks[i]);
+        ticks = thinned;
+    }
+    return QVector<double>(ticks.begin(), ticks.end());
+}
+
+QString TransformTicker::getTickLabel(double tick, const QLocale& /*locale*/, QChar /*formatChar*/, int /*precision*/) {
+    return formatNumber(inverse_(tick), 3);
+}
+
+int TransformTicker::getSubTickCount(double /*tickStep*/) { return 0; }
+
+double symmetricLog(double value, double c) {
+    return std::copysign(std::log10(1.0 + std::abs(value) / c), value);
+}
+
+double symmetricLogInverse(double transformed, double c) {
+    return std::copysign(c * (std::pow(10.0, std::abs(transformed)) - 1.0), transformed);
+}
+
+QSharedPointer<TransformTicker> symmetricLogTicker(double c) {
+    auto candidates = [c](double lo, double hi) {
+        std::vector<double> values{0.0};
+        const double top = std::max(std::abs(lo), std::abs(hi));
+        if (!(top > 0) || !std::isfinite(top)) return values;
+        const int kMin = static_cast<int>(std::floor(std::log10(c))) - 1;
+        const int kMax = static_cast<int>(std::ceil(std::log10(top))) + 1;
+        for (int k = kMin; k <= kMax; ++k) {
+            const double v = std::pow(10.0, k);
+            if (v < 0.5 * c) continue;  // inside the linear zone the decades crowd together
+            if (v <= hi) values.push_back(v);
+            if (-v >= lo) values.push_back(-v);
+        }
+        return values;
+    };
+    return QSharedPointer<TransformTicker>(new TransformTicker([c](double v) { return symmetricLog(v, c); },
+                                                               [c](double t) { return symmetricLogInverse(t, c); },
+                                                               candidates));
+}
+
+bool exportPlot(QCustomPlot* plot, const QString& path, int w, int h, QString* error) {
+    auto fail = [error](const QString& why) {
+        if (error) *error = why;
+        return false;
+    };
+    if (!plot) return fail(QStringLiteral("no plot to export"));
+    if (w < 1 || w > 20000 || h < 1 || h > 20000)
+        return fail(QStringLiteral("export size %1 x %2 is out of range: width and height must be 1..20000 pixels")
+                        .arg(w)
+                        .arg(h));
+    const QString suffix = QFileInfo(path).suffix().toLower();
+    bool ok = false;
+    if (suffix == QLatin1String("png")) {
+        ok = plot->savePng(path, w, h);
+    } else if (suffix == QLatin1String("pdf")) {
+        ok = plot->savePdf(path, w, h);
+    } else if (suffix == QLatin1String("svg")) {
+        QSvgGenerator generator;
+        generator.setFileName(path);
+        generator.setSize(QSize(w, h));
+        generator.setViewBox(QRect(0, 0, w, h));
+        generator.setTitle(QStringLiteral("Saddlewise plot"));
+        QCPPainter painter;
+        if (!painter.begin(&generator)) return fail(QStringLiteral("cannot write '%1'").arg(path));
+        plot->toPainter(&painter, w, h);
+        ok = painter.end();
+    } else {
+        return fail(QStringLiteral("unknown export format '.%1' for '%2': use .png, .svg or .pdf").arg(suffix, path));
+    }
+    if (!ok || QFileInfo(path).size() <= 0) return fail(QStringLiteral("cannot write '%1'").arg(path));
+    if (error) error->clear();
+    return true;
+}
+
+PlotView::PlotView(QWidget* parent) : QWidget(parent) {
+    layout_ = new QVBoxLayout(this);
+    layout_->setContentsMargins(0, 0, 0, 0);
+    layout_->setSpacing(2);
+    plot_ = new QCustomPlot(this);
+    plot_->setMinimumSize(160, 120);
+    plot_->setAntialiasedElements(QCP::aePlottables | QCP::aeItems | QCP::aeScatters);
+    layout_->addWidget(plot_, 1);
+}
+
+void PlotView::setSnapshot(std::shared_ptr<const Snapshot> snapshot) {
+    snapshot_ = std::move(snapshot);
+    rebuild();
+}
+
+void PlotView::setSelection(Selection selection) {
+    if (selection == selection_) return;
+    selection_ = selection;
+    selectionChanged();
+}
+
+const solve::IterationRecord* PlotView::selectedRecord() const {
+    if (!snapshot_ || !selection_.valid()) return nullptr;
+    if (selection_.track >= static_cast<int>(snapshot_->tracks.size())) return nullptr;
+    const RunTrack& track = snapshot_->tracks[static_cast<std::size_t>(selection_.track)];
+    if (!track.run || selection_.iteration >= static_cast<int>(track.run->trace.size())) return nullptr;
+    return &track.run->trace[static_cast<std::size_t>(selection_.iteration)];
+}
+
+void PlotView::changeEvent(QEvent* event) {
+    if (event->type() == QEvent::PaletteChange || event->type() == QEvent::ApplicationPaletteChange) {
+        plot_->setPalette(palette());
+        rebuild();
+    }
+    QWidget::changeEvent(event);
+}
+
+void PlotView::queueReplot() { plot_->replot(QCustomPlot::rpQueuedReplot); }
+
+}  // namespace sw::widgets
