@@ -119,6 +119,8 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
                     throw FormulaError(reason, text, start);
                 }
                 open.push_back({next, f, start, 0, true});
+                if (static_cast<int>(open.size()) > kMaxNestingDepth)
+                    throw FormulaError("parentheses are nested more than " + std::to_string(kMaxNestingDepth) + " deep", text, next);
                 i = next + 1;
             } else if (!isSymbol(name) && name != "pi" && name != "e" && !findFunction(name)) {
                 if (std::find(unknown.begin(), unknown.end(), name) == unknown.end()) unknown.push_back(name);
@@ -264,7 +266,11 @@ Expression Expression::parse(const std::string& text, const std::vector<std::str
         parser.SetExpr(text);
         parser.Eval();  // muParser reports syntax errors only here
     } catch (const mu::ParserError& e) {
-        throw FormulaError(describeParserError(e), text, e.GetPos() >= 0 && e.GetPos() <= static_cast<int>(text.size()) ? e.GetPos() : -1);
+        // muParser may place an error one past the end (e.g. "1+"); the caret then sits after the text.
+        const int size = static_cast<int>(text.size());
+        int position = e.GetPos() < 0 ? -1 : std::min(e.GetPos(), size);
+        if (e.GetCode() == mu::ecUNEXPECTED_EOF) position = size;
+        throw FormulaError(describeParserError(e), text, position);
     }
     if (!strayNames.empty()) {
         auto pos = text.find(strayNames.front());
