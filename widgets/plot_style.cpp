@@ -251,6 +251,28 @@ PlotView::PlotView(QWidget* parent) : QWidget(parent) {
     plot_->setMinimumSize(160, 120);
     plot_->setAntialiasedElements(QCP::aePlottables | QCP::aeItems | QCP::aeScatters);
     layout_->addWidget(plot_, 1);
+    connect(plot_, &QCustomPlot::mousePress, this, [this](QMouseEvent* event) { clickPressPixel_ = event->position(); });
+    connect(plot_, &QCustomPlot::mouseRelease, this, [this](QMouseEvent* event) {
+        if (event->button() != Qt::LeftButton || pickPoints_.empty()) return;
+        if (QLineF(clickPressPixel_, event->position()).length() > 4.0) return;  // a drag, not a click
+        const Selection hit = pickAt(event->position());
+        if (hit.valid()) emit selectionRequested(hit);
+    });
+}
+
+Selection PlotView::pickAt(const QPointF& pixel) const {
+    Selection best;
+    double bestDistance = 8.0;  // pixels
+    for (const PickPoint& point : pickPoints_) {
+        if (!point.xAxis || !point.yAxis || !std::isfinite(point.x) || !std::isfinite(point.y)) continue;
+        const QPointF p(point.xAxis->coordToPixel(point.x), point.yAxis->coordToPixel(point.y));
+        const double d = QLineF(p, pixel).length();
+        if (d <= bestDistance) {
+            bestDistance = d;
+            best = point.selection;
+        }
+    }
+    return best;
 }
 
 void PlotView::setSnapshot(std::shared_ptr<const Snapshot> snapshot) {

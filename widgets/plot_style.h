@@ -100,10 +100,24 @@ protected:
     void changeEvent(QEvent* event) override;
     void queueReplot();
 
+    // Click-to-select: views list their clickable iterates here (plot coordinates on the
+    // given axes); a click within a few pixels of one emits selectionRequested.
+    struct PickPoint {
+        QCPAxis* xAxis = nullptr;
+        QCPAxis* yAxis = nullptr;
+        double x = 0, y = 0;
+        Selection selection;
+    };
+    std::vector<PickPoint> pickPoints_;
+    Selection pickAt(const QPointF& pixel) const;
+
     QVBoxLayout* layout_ = nullptr;
     QCustomPlot* plot_ = nullptr;
     std::shared_ptr<const Snapshot> snapshot_;
     Selection selection_;
+
+private:
+    QPointF clickPressPixel_;
 };
 
 }  // namespace sw::widgets

@@ -1,0 +1,229 @@
+#include "widgets/slice_view.h"
+
+#include <QComboBox>
+#include <QHBoxLayout>
+#include <QLabel>
+#include <QVBoxLayout>
+#include <algorithm>
+#include <cmath>
+
+namespace sw::widgets {
+
+namespace {
+constexpr int kSamples = 241;
+QColor armijoColour() { return QColor(0xd5, 0x5e, 0x00); }
+QColor modelColour() { return QColor(0x2e, 0x9e, 0x7a); }
+}  // namespace
+
+SliceView::SliceView(QWidget* parent) : PlotView(parent) {
+    setObjectName(QStringLiteral("sliceView"));
+    plot_->legend->setVisible(true);
+    plot_->axisRect()->insetLayout()->setInsetAlignment(0, Qt::AlignTop | Qt::AlignRight);
+
+    auto* row = new QHBoxLayout;
+    row->setContentsMargins(4, 0, 4, 2);
+    auto* label = new QLabel(tr("Along:"), this);
+    directionChoice_ = new QComboBox(this);
+    directionChoice_->setToolTip(tr("The line through the selected iterate: its step's search direction, or one of "
+                                    "the Hessian's eigenvectors"));
+    directionChoice_->addItem(tr("search direction of the step"), -1);
+    label->setBuddy(directionChoice_);
+    caption_ = new QLabel(this);
+    caption_->setObjectName(QStringLiteral("sliceCaption"));
+    caption_->setWordWrap(true);
+    caption_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    row->addWidget(label);
+    row->addWidget(directionChoice_);
+    row->addWidget(caption_, 1);
+    layout_->addLayout(row);
+    connect(directionChoice_, qOverload<int>(&QComboBox::activated), this,
+            [this](int index) { setDirection(directionChoice_->itemData(index).toInt()); });
+    applyPlotStyle(plot_);
+    rebuild();
+}
+
+void SliceView::setDirection(int eigenvectorIndex) {
+    direction_ = std::max(-1, eigenvectorIndex);
+    rebuild();
+}
+
+void SliceView::setArmijoConstant(double c1) {
+    if (std::isfinite(c1) && c1 > 0 && c1 < 1) c1_ = c1;
+    rebuild();
+}
+
+QString SliceView::caption() const { return caption_->text(); }
+
+void SliceView::rebuild() {
+    plot_->clearPlottables();
+    trueGraph_ = modelGraph_ = armijoGraph_ = trialGraph_ = rejectedGraph_ = acceptedGraph_ = nullptr;
+    applyPlotStyle(plot_);
+    const QColor ink = palette().color(QPalette::WindowText);
+
+    const solve::IterationRecord* record = selectedRecord();
+    const int n = snapshot_ && snapshot_->objective ? snapshot_->objective->dimension() : 0;
+    // Keep the direction list in step with the dimension.
+    if (directionChoice_->count() != 1 + n) {
+        const QSignalBlocker block(directionChoice_);
+        directionChoice_->clear();
+        directionChoice_->addItem(tr("search direction of the step"), -1);
+        for (int i = 0; i < n; ++i)
+            directionChoice_->addItem(i == 0 ? tr("eigenvector 1 (smallest λ)")
+                                      : i == n - 1 ? tr("eigenvector %1 (largest λ)").arg(i + 1)
+                                                   : tr("eigenvector %1").arg(i + 1),
+                                      i);
+    }
+    {
+        const QSignalBlocker block(directionChoice_);
+        const int index = directionChoice_->findData(direction_);
+        directionChoice_->setCurrentIndex(index >= 0 ? index : 0);
+    }
+    if (!record || n == 0 || record->x.size() != n) {
+        caption_->setText(tr("Select an iterate to see f along its step."));
+        plot_->xAxis->setLabel(QString());
+        plot_->yAxis->setLabel(QString());
+        queueReplot();
+        return;
+    }
+    const Objective& objective = *snapshot_->objective;
+    const RunTrack& track = snapshot_->tracks[static_cast<std::size_t>(selection_.track)];
+    const Vector& x = record->x;
+    const analyze::QuadraticModel model = analyze::quadraticModel(objective, x);
+    const Vector& gradient = model.gradient.size() == n ? model.gradient : record->gradient;
+
+    // The line x + t d and the range of t.
+    Vector d;
+    double acceptedT = std::nan("");
+    double tMax = 1;
+    QString what;
+    const bool hasStep = record->step.size() == n && record->step.allFinite() && record->step.norm() > 0;
+    const int eigenIndex = direction_ >= 0 && direction_ < n ? direction_ : -1;
+    if (eigenIndex < 0 && hasStep) {
+        // Line-search methods record alpha along the search direction d, with step = alpha d.
+        const bool hasAlpha = std::isfinite(record->stepLength) && record->stepLength > 0;
+        d = hasAlpha ? Vector(record->step / record->stepLength) : record->step;
+        acceptedT = hasAlpha ? record->stepLength : 1.0;
+        tMax = acceptedT;
+        for (const auto& trial : record->trials)
+            if (std::isfinite(trial.alpha)) tMax = std::max(tMax, trial.alpha);
+        what = tr("search direction d of the %1 step").arg(QString::fromUtf8(solve::toString(record->stepKind)));
+        plot_->xAxis->setLabel(hasAlpha ? tr("step length α along d") : tr("fraction t of the step"));
+    } else if (eigenIndex >= 0 && model.eigenvectors.cols() == n && model.eigenvectors.allFinite()) {
+        d = model.eigenvectors.col(eigenIndex);
+        if (gradient.size() == n && gradient.dot(d) > 0) d = -d;  // descent side to the right
+        const double reach = hasStep ? record->step.norm()
+                             : std::isfinite(record->trustRadius) ? record->trustRadius
+                                                                  : 0.1 * std::max(1.0, x.norm());
+        tMax = reach > 0 ? reach : 1.0;
+        what = tr("eigenvector %1 of the Hessian (λ = %2)").arg(eigenIndex + 1).arg(formatNumber(model.eigenvalues[eigenIndex]));
+        plot_->xAxis->setLabel(tr("distance t along the eigenvector"));
+    } else if (gradient.size() == n && gradient.allFinite() && gradient.norm() > 0) {
+        d = -gradient / gradient.norm();
+        tMax = 0.1 * std::max(1.0, x.norm());
+        what = tr("steepest descent (this iterate has no step)");
+        plot_->xAxis->setLabel(tr("distance t along −∇f"));
+    } else {
+        caption_->setText(tr("Iterate %1 of %2 has no step and a zero or non-finite gradient: no line to show.")
+                              .arg(record->iteration)
+                              .arg(track.label));
+        queueReplot();
+        return;
+    }
+    plot_->yAxis->setLabel(tr("f along the line"));
+
+    const std::vector<double> ts = analyze::linspace(-0.3 * tMax, 1.5 * tMax, kSamples);
+    const std::vector<double> truth = analyze::valuesAlong(objective, x, d, ts);
+    const std::vector<double> quadratic = model.finite ? model.along(d, ts) : std::vector<double>(ts.size(), std::nan(""));
+    const std::vector<double> armijo = gradient.size() == n
+                                           ? analyze::sufficientDecreaseLine(record->value, gradient, d, ts, c1_)
+                                           : std::vector<double>(ts.size(), std::nan(""));
+    const QVector<double> keys(ts.begin(), ts.end());
+
+    trueGraph_ = plot_->addGraph();
+    trueGraph_->setData(keys, QVector<double>(truth.begin(), truth.end()), true);
+    QPen truePen(ink, 2.0);
+    truePen.setCosmetic(true);
+    trueGraph_->setPen(truePen);
+    trueGraph_->setName(tr("f (true)"));
+
+    modelGraph_ = plot_->addGraph();
+    modelGraph_->setData(keys, QVector<double>(quadratic.begin(), quadratic.end()), true);
+    QPen modelPen(modelColour(), 1.6, Qt::DashLine);
+    modelPen.setCosmetic(true);
+    modelGraph_->setPen(modelPen);
+    modelGraph_->setName(tr("quadratic model"));
+
+    armijoGraph_ = plot_->addGraph();
+    armijoGraph_->setData(keys, QVector<double>(armijo.begin(), armijo.end()), true);
+    QPen armijoPen(armijoColour(), 1.3, Qt::DashDotLine);
+    armijoPen.setCosmetic(true);
+    armijoGraph_->setPen(armijoPen);
+    armijoGraph_->setName(tr("sufficient decrease, c₁ = %1").arg(formatNumber(c1_)));
+
+    trialGraph_ = plot_->addGraph();
+    trialGraph_->setLineStyle(QCPGraph::lsNone);
+    QPen trialPen(track.colour, 1.5);
+    trialPen.setCosmetic(true);
+    trialGraph_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, trialPen, Qt::NoBrush, 9));
+    trialGraph_->setName(tr("line-search trials"));
+    rejectedGraph_ = plot_->addGraph();
+    rejectedGraph_->setLineStyle(QCPGraph::lsNone);
+    rejectedGraph_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCross, QPen(armijoColour(), 1.8), Qt::NoBrush, 9));
+    rejectedGraph_->setName(tr("rejected trial"));
+    int rejected = 0;
+    if (eigenIndex < 0 && hasStep) {
+        for (const auto& trial : record->trials) {
+            if (!std::isfinite(trial.alpha)) continue;
+            const double value = std::isfinite(trial.value) ? trial.value : std::nan("");
+            trialGraph_->addData(trial.alpha, value);
+            if (!trial.accepted) {
+                rejectedGraph_->addData(trial.alpha, value);
+                ++rejected;
+            }
+        }
+    }
+    if (rejected == 0) rejectedGraph_->removeFromLegend();
+    if (trialGraph_->data()->isEmpty()) trialGraph_->removeFromLegend();
+
+    acceptedGraph_ = plot_->addGraph();
+    acceptedGraph_->setLineStyle(QCPGraph::lsNone);
+    acceptedGraph_->setScatterStyle(iterateStyle(track.marker, track.colour, 11));
+    if (std::isfinite(acceptedT)) {
+        const double landed = objective.value(x + acceptedT * d);
+        acceptedGraph_->addData(acceptedT, landed);
+        acceptedGraph_->setName(record->accepted ? tr("accepted step") : tr("proposed step (rejected)"));
+    } else {
+        acceptedGraph_->removeFromLegend();
+    }
+    for (QCPGraph* graph : {trueGraph_, modelGraph_, armijoGraph_, trialGraph_, rejectedGraph_, acceptedGraph_})
+        graph->setSelectable(QCP::stNone);
+
+    // Vertical range from the true curve, the trials and the step (the model may run off to
+    // -inf along negative curvature; it is clipped rather than allowed to flatten the plot).
+    double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+    auto take = [&](double v) {
+        if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+    };
+    for (double v : truth) take(v);
+    for (const auto& point : *trialGraph_->data()) take(point.value);
+    for (const auto& point : *acceptedGraph_->data()) take(point.value);
+    take(record->value);
+    if (lo <= hi) {
+        const double pad = hi > lo ? 0.08 * (hi - lo) : std::max(1.0, std::abs(hi)) * 0.1;
+        plot_->yAxis->setRange(lo - pad, hi + pad);
+    } else {
+        plot_->yAxis->setRange(-1, 1);
+    }
+    plot_->xAxis->setRange(ts.front(), ts.back());
+
+    const double slope = gradient.size() == n ? gradient.dot(d) : std::nan("");
+    QString text = tr("Iterate %1 of %2, along the %3: |d| = %4, slope ∇f·d = %5")
+                       .arg(record->iteration)
+                       .arg(track.label, what, formatNumber(d.norm()), formatNumber(slope));
+    if (std::isfinite(acceptedT) && eigenIndex < 0)
+        text += tr(", step at %1, %2 trial(s)").arg(formatNumber(acceptedT)).arg(record->trials.size());
+    caption_->setText(text);
+    queueReplot();
+}
+
+}  // namespace sw::widgets
