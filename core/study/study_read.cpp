@@ -1,0 +1,489 @@
+// Reading a study: JSON text -> a validated Study, or a StudyError naming the first problem
+// with its place in the document ("methods[2].options.initial_radius: must be > 0 (got -1)").
+//
+// Every key is checked against the keys its object may have (a typo is an error naming the
+// key, not a silently ignored setting); every value against its type and range; method ids
+// and their options against the solver registry; the formula or the fit against the
+// expression engine and the data file (which must exist and match its recorded checksum).
+#include "core/study/study.h"
+
+#include "core/expr/expr.h"
+#include "core/objective/fit_objective.h"
+#include "core/objective/formula_objective.h"
+#include "core/objective/table.h"
+#include "core/solve/method.h"
+#include "core/solve/solver.h"
+
+#include <nlohmann/json.hpp>
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <set>
+#include <sstream>
+
+namespace sw::study {
+
+using Json = nlohmann::ordered_json;
+
+StudyError::StudyError(std::string place, std::string problem)
+    : std::runtime_error(place.empty() ? problem : place + ": " + problem), place_(std::move(place)),
+      problem_(std::move(problem)) {}
+
+const std::vector<std::string>& markerNames() {
+    static const std::vector<std::string> names = {"circle", "square", "triangle", "diamond", "cross", "plus", "star"};
+    return names;
+}
+
+namespace {
+
+std::string jsonTypeName(const Json& value) {
+    switch (value.type()) {
+        case Json::value_t::null: return "null";
+        case Json::value_t::boolean: return "true/false";
+        case Json::value_t::string: return "text";
+        case Json::value_t::array: return "a list";
+        case Json::value_t::object: return "an object";
+        case Json::value_t::number_integer:
+        case Json::value_t::number_unsigned:
+        case Json::value_t::number_float: return "a number";
+        default: return "something else";
+    }
+}
+
+std::string shown(const Json& value) {
+    std::string text = value.dump();
+    if (text.size() > 60) text = text.substr(0, 57) + "...";
+    return text;
+}
+
+std::string numberText(double value) {
+    char buffer[32];
+    auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value);
+    return ec == std::errc() ? std::string(buffer, end) : std::string("?");
+}
+
+std::string join(const std::vector<std::string>& items) {
+    std::string text;
+    for (std::size_t i = 0; i < items.size(); ++i) text += (i ? ", " : "") + items[i];
+    return text;
+}
+
+bool isName(const std::string& name) {
+    if (name.empty() || !(std::isalpha(static_cast<unsigned char>(name[0])) || name[0] == '_')) return false;
+    return std::all_of(name.begin(), name.end(),
+                       [](char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_'; });
+}
+
+// A JSON object at a place in the document, read key by key.
+class ObjectReader {
+public:
+    ObjectReader(const Json& value, std::string place, std::vector<std::string> keys)
+        : value_(value), place_(std::move(place)), keys_(std::move(keys)) {
+        if (!value_.is_object()) fail(place_, "must be an object {...} (got " + jsonTypeName(value_) + ")");
+    }
+
+    // Unknown keys are errors: typo protection.
+    void rejectUnknownKeys() const {
+        for (const auto& item : value_.items())
+            if (std::find(keys_.begin(), keys_.end(), item.key()) == keys_.end())
+                fail(at(item.key()), "unknown key; the keys here are: " + join(keys_));
+    }
+
+    std::string at(const std::string& key) const { return place_.empty() ? key : place_ + "." + key; }
+    bool has(const std::string& key) const { return value_.contains(key); }
+    const Json& get(const std::string& key) const {
+        if (!has(key)) fail(at(key), "missing (required)");
+        return value_.at(key);
+    }
+
+    std::string text(const std::string& key, const std::string& fallback, bool required = false) const {
+        if (!has(key)) {
+            if (required) fail(at(key), "missing (required)");
+            return fallback;
+        }
+        const Json& v = value_.at(key);
+        if (!v.is_string()) fail(at(key), "must be text in quotes (got " + shown(v) + ")");
+        return v.get<std::string>();
+    }
+
+    double number(const std::string& key, double fallback, bool required = false) const {
+        if (!has(key)) {
+            if (required) fail(at(key), "missing (required)");
+            return fallback;
+        }
+        const Json& v = value_.at(key);
+        if (!v.is_number()) fail(at(key), "must be a number (got " + shown(v) + ")");
+        return v.get<double>();
+    }
+
+    long integer(const std::string& key, long fallback, long lo, long hi) const {
+        if (!has(key)) return fallback;
+        const Json& v = value_.at(key);
+        const std::string range = "a whole number from " + std::to_string(lo) + " to " + std::to_string(hi);
+        if (!v.is_number()) fail(at(key), "must be " + range + " (got " + shown(v) + ")");
+        const double d = v.get<double>();
+        if (d != std::floor(d) || d < static_cast<double>(lo) || d > static_cast<double>(hi))
+            fail(at(key), "must be " + range + " (got " + shown(v) + ")");
+        return static_cast<long>(d);
+    }
+
+    bool flag(const std::string& key, bool fallback) const {
+        if (!has(key)) return fallback;
+        const Json& v = value_.at(key);
+        if (!v.is_boolean()) fail(at(key), "must be true or false (got " + shown(v) + ")");
+        return v.get<bool>();
+    }
+
+    [[noreturn]] static void fail(const std::string& place, const std::string& problem) {
+        throw StudyError(place, problem);
+    }
+
+private:
+    const Json& value_;
+    std::string place_;
+    std::vector<std::string> keys_;
+};
+
+std::string item(const std::string& place, std::size_t index) { return place + "[" + std::to_string(index) + "]"; }
+
+// Line and column (1-based) of a byte offset in the text.
+std::string lineAndColumn(const std::string& text, std::size_t byte) {
+    long line = 1, column = 1;
+    for (std::size_t i = 0; i < byte && i < text.size(); ++i) {
+        if (text[i] == '\n') {
+            ++line;
+            column = 1;
+        } else if ((static_cast<unsigned char>(text[i]) & 0xC0) != 0x80) {
+            ++column;
+        }
+    }
+    return "line " + std::to_string(line) + ", column " + std::to_string(column);
+}
+
+Json parseDocument(const std::string& text) {
+    // Repeated keys in one object would silently keep one of the values: refuse them.
+    std::vector<std::set<std::string>> seen;
+    std::string duplicate;
+    Json::parser_callback_t watch = [&](int, nlohmann::json::parse_event_t event, Json& parsed) {
+        if (event == nlohmann::json::parse_event_t::object_start) seen.emplace_back();
+        else if (event == nlohmann::json::parse_event_t::object_end && !seen.empty()) seen.pop_back();
+        else if (event == nlohmann::json::parse_event_t::key && !seen.empty() && duplicate.empty() &&
+                 !seen.back().insert(parsed.get<std::string>()).second)
+            duplicate = parsed.get<std::string>();
+        return true;
+    };
+    Json document;
+    try {
+        document = Json::parse(text, watch);
+    } catch (const nlohmann::json::parse_error& e) {
+        // e.byte is 1-based: the position of the last character read.
+        std::string problem = e.what();
+        const auto column = problem.find("column ");
+        const auto colon = column == std::string::npos ? std::string::npos : problem.find(": ", column);
+        if (colon != std::string::npos) problem = problem.substr(colon + 2);
+        const auto bracket = problem.find("[json.exception");
+        if (bracket == 0) problem = problem.substr(problem.find(']') + 2);
+        throw StudyError(lineAndColumn(text, e.byte > 0 ? e.byte - 1 : 0), "not valid JSON: " + problem);
+    }
+    if (!duplicate.empty())
+        throw StudyError(duplicate, "this key appears twice in one object; each key may appear once");
+    return document;
+}
+
+void readHeader(const Json& document) {
+    if (!document.is_object())
+        throw StudyError("document", "a study is a JSON object {...} (got " + jsonTypeName(document) + ")");
+    if (!document.contains("format"))
+        throw StudyError("format", "missing: this is not a Saddlewise study (expected \"format\": \"" +
+                                       std::string(kFormatName) + "\")");
+    const Json& format = document.at("format");
+    if (!format.is_string() || format.get<std::string>() != kFormatName)
+        throw StudyError("format", "this is not a Saddlewise study (expected \"" + std::string(kFormatName) +
+                                       "\", got " + shown(format) + ")");
+    if (!document.contains("version")) throw StudyError("version", "missing (required)");
+    const Json& version = document.at("version");
+    if (!version.is_number_integer() && !version.is_number_unsigned())
+        throw StudyError("version", "must be a whole number (got " + shown(version) + ")");
+    const long long v = version.get<long long>();
+    if (v > kFormatVersion)
+        throw StudyError("version", "this file is format version " + std::to_string(v) + "; this Saddlewise reads up to " +
+                                        std::to_string(kFormatVersion) + " - update Saddlewise");
+    if (v < 1) throw StudyError("version", "must be 1 or more (got " + std::to_string(v) + ")");
+}
+
+std::vector<Variable> readVariables(const Json& document) {
+    if (!document.contains("variables")) throw StudyError("variables", "missing (required)");
+    const Json& list = document.at("variables");
+    if (!list.is_array()) throw StudyError("variables", "must be a list [...] (got " + jsonTypeName(list) + ")");
+    if (list.size() < 2)
+        throw StudyError("variables", "a study needs at least two variables (the landscape plots two; got " +
+                                          std::to_string(list.size()) + ")");
+    std::vector<Variable> variables;
+    for (std::size_t k = 0; k < list.size(); ++k) {
+        const std::string place = item("variables", k);
+        ObjectReader in(list[k], place, {"name", "start", "lower", "upper"});
+        in.rejectUnknownKeys();
+        Variable v;
+        v.name = in.text("name", "", true);
+        if (!isName(v.name))
+            ObjectReader::fail(in.at("name"),
+                               "'" + v.name + "' is not a valid name (letters, digits, _; not starting with a digit)");
+        for (const Variable& earlier : variables)
+            if (earlier.name == v.name) ObjectReader::fail(in.at("name"), "'" + v.name + "' is named twice");
+        v.start = in.number("start", 0, true);
+        v.lower = in.number("lower", 0, true);
+        v.upper = in.number("upper", 0, true);
+        if (!(v.lower < v.upper))
+            ObjectReader::fail(in.at("lower"), "must be below upper (got lower " + numberText(v.lower) + ", upper " +
+                                                   numberText(v.upper) + ")");
+        variables.push_back(v);
+    }
+    return variables;
+}
+
+bool validColour(const std::string& colour) {
+    return colour.size() == 7 && colour[0] == '#' &&
+           std::all_of(colour.begin() + 1, colour.end(), [](char c) { return std::isxdigit(static_cast<unsigned char>(c)); });
+}
+
+std::string lowercase(std::string text) {
+    for (char& c : text) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+    return text;
+}
+
+// Option values are typed in the document (numbers, true/false, text choices) and kept as
+// canonical text in the Study, so load -> save -> load is exact.
+std::string optionText(const solve::OptionSpec& spec, const Json& value, const std::string& place) {
+    using Type = solve::OptionSpec::Type;
+    switch (spec.type) {
+        case Type::Boolean:
+            if (!value.is_boolean()) ObjectReader::fail(place, "must be true or false (got " + shown(value) + ")");
+            return value.get<bool>() ? "true" : "false";
+        case Type::Choice:
+            if (!value.is_string())
+                ObjectReader::fail(place, "must be " + spec.rangeText() + ", in quotes (got " + shown(value) + ")");
+            return value.get<std::string>();
+        case Type::Integer: {
+            if (!value.is_number()) ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
+            const double d = value.get<double>();
+            if (d != std::floor(d) || std::abs(d) > 9e15)
+                ObjectReader::fail(place, "must be a whole number, " + spec.rangeText() + " (got " + shown(value) + ")");
+            return std::to_string(static_cast<long long>(d));
+        }
+        case Type::Real:
+            if (!value.is_number()) ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
+            return numberText(value.get<double>());
+    }
+    return "";
+}
+
+// "option initial_radius: must be > 0 (got '-1')" -> "must be > 0 (got -1)"
+std::string withoutOptionPrefix(std::string sentence, const std::string& name) {
+    const std::string prefix = "option " + name + ": ";
+    if (sentence.rfind(prefix, 0) == 0) sentence = sentence.substr(prefix.size());
+    const auto got = sentence.rfind("(got '");
+    if (got != std::string::npos && sentence.size() >= got + 8 && sentence.compare(sentence.size() - 2, 2, "')") == 0)
+        sentence = sentence.substr(0, got) + "(got " + sentence.substr(got + 6, sentence.size() - got - 8) + ")";
+    return sentence;
+}
+
+std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
+    if (!document.contains("methods")) throw StudyError("methods", "missing (required; may be an empty list [])");
+    const Json& list = document.at("methods");
+    if (!list.is_array()) throw StudyError("methods", "must be a list [...] (got " + jsonTypeName(list) + ")");
+    std::vector<MethodEntry> entries;
+    for (std::size_t k = 0; k < list.size(); ++k) {
+        const std::string place = item("methods", k);
+        ObjectReader in(list[k], place, {"label", "method", "options", "colour", "marker", "enabled"});
+        in.rejectUnknownKeys();
+        MethodEntry entry;
+        entry.method = in.text("method", "", true);
+        const solve::MethodInfo* info = solve::findMethod(entry.method);
+        if (!info)
+            ObjectReader::fail(in.at("method"), "unknown method '" + entry.method + "'; known: " + solve::methodIdList());
+        if (info->needsResiduals && !residualForm)
+            ObjectReader::fail(in.at("method"), entry.method +
+                                                    " needs a least-squares fit (residual form); this study's "
+                                                    "objective has none (a formula, or a fit with another loss)");
+        entry.label = in.text("label", entry.method);
+        if (entry.label.empty()) ObjectReader::fail(in.at("label"), "must not be empty");
+        for (const MethodEntry& earlier : entries)
+            if (earlier.label == entry.label)
+                ObjectReader::fail(in.at("label"), "'" + entry.label + "' is already used by an earlier entry; labels "
+                                                                       "must be unique (they name the runs)");
+        if (in.has("options")) {
+            ObjectReader options(in.get("options"), in.at("options"), {});
+            for (const auto& option : in.get("options").items()) {
+                const std::string optionPlace = options.at(option.key());
+                const solve::OptionSpec* spec = nullptr;
+                for (const solve::OptionSpec& s : info->options)
+                    if (s.name == option.key()) spec = &s;
+                if (!spec) {
+                    std::vector<std::string> names;
+                    for (const solve::OptionSpec& s : info->options) names.push_back(s.name);
+                    ObjectReader::fail(optionPlace, "unknown option for " + entry.method +
+                                                        (names.empty() ? "; it takes no options" : "; its options: " + join(names)));
+                }
+                const std::string text = optionText(*spec, option.value(), optionPlace);
+                const std::string problem = solve::checkOptions(info->options, {{option.key(), text}});
+                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, option.key()));
+                entry.options[option.key()] = text;
+            }
+            for (const solve::MethodRegistration& registration : solve::registrations())
+                if (registration.info.id == entry.method && registration.check) {
+                    const std::string problem = registration.check(entry.options);
+                    if (!problem.empty()) ObjectReader::fail(in.at("options"), problem);
+                }
+        }
+        entry.colour = lowercase(in.text("colour", "", true));
+        if (!validColour(entry.colour))
+            ObjectReader::fail(in.at("colour"), "must be a colour \"#rrggbb\" (got " + shown(in.get("colour")) + ")");
+        entry.marker = in.text("marker", "circle");
+        const auto& markers = markerNames();
+        if (std::find(markers.begin(), markers.end(), entry.marker) == markers.end())
+            ObjectReader::fail(in.at("marker"), "must be one of: " + join(markers) + " (got \"" + entry.marker + "\")");
+        entry.enabled = in.flag("enabled", true);
+        entries.push_back(std::move(entry));
+    }
+    return entries;
+}
+
+void readStopping(const Json& document, Study& study) {
+    if (!document.contains("stopping")) return;
+    ObjectReader in(document.at("stopping"), "stopping",
+                    {"max_iterations", "max_evaluations", "gradient_tolerance", "relative_gradient_tolerance",
+                     "step_tolerance", "function_tolerance"});
+    in.rejectUnknownKeys();
+    study.maxIterations = static_cast<int>(in.integer("max_iterations", study.maxIterations, 1, 1000000));
+    study.maxEvaluations = in.integer("max_evaluations", study.maxEvaluations, 1, 1000000000);
+    auto nonNegative = [&](const std::string& key, double fallback, double below) {
+        const double v = in.number(key, fallback);
+        if (!(v >= 0) || !(v < below))
+            ObjectReader::fail(in.at(key), "must be >= 0" + (below < 1e300 ? " and < " + numberText(below) : std::string()) +
+                                               " (got " + numberText(v) + ")");
+        return v;
+    };
+    study.gradientTolerance = nonNegative("gradient_tolerance", study.gradientTolerance, 1e308);
+    study.relativeGradientTolerance = nonNegative("relative_gradient_tolerance", study.relativeGradientTolerance, 1);
+    study.stepTolerance = nonNegative("step_tolerance", study.stepTolerance, 1e308);
+    study.functionTolerance = nonNegative("function_tolerance", study.functionTolerance, 1e308);
+    const std::string problem = study.stoppingRules().check();
+    if (!problem.empty()) ObjectReader::fail("stopping", problem);
+}
+
+void readView(const Json& document, Study& study) {
+    ViewSettings& view = study.view;
+    view.plotX = 0;
+    view.plotY = 1;
+    if (!document.contains("view")) return;
+    ObjectReader in(document.at("view"), "view", {"plot_x", "plot_y", "log_colour", "contour_count", "grid_cells"});
+    in.rejectUnknownKeys();
+    const std::vector<std::string> names = study.variableNames();
+    auto index = [&](const std::string& key, int fallback) {
+        if (!in.has(key)) return fallback;
+        const std::string name = in.text(key, "");
+        const auto it = std::find(names.begin(), names.end(), name);
+        if (it == names.end())
+            ObjectReader::fail(in.at(key), "'" + name + "' is not one of the variables (" + join(names) + ")");
+        return static_cast<int>(it - names.begin());
+    };
+    view.plotX = index("plot_x", 0);
+    view.plotY = index("plot_y", view.plotX == 1 ? 0 : 1);
+    if (view.plotX == view.plotY)
+        ObjectReader::fail(in.at("plot_y"), "must differ from plot_x (both are '" + names[view.plotX] + "')");
+    view.logColour = in.flag("log_colour", view.logColour);
+    view.contourCount = static_cast<int>(in.integer("contour_count", view.contourCount, 0, 100));
+    view.gridCells = static_cast<int>(in.integer("grid_cells", view.gridCells, 10, 2000));
+}
+
+// Checks the objective by building it, so a study that loads is a study that runs.
+void checkObjective(const Study& study, const std::string& baseDirectory) { makeObjective(study, baseDirectory); }
+
+}  // namespace
+
+Study fromJson(const std::string& text, const std::string& baseDirectory) {
+    const Json document = parseDocument(text);
+    readHeader(document);
+    ObjectReader root(document, "",
+                      {"format", "version", "title", "notes", "objective", "variables", "methods", "stopping", "view"});
+    root.rejectUnknownKeys();
+
+    Study study;
+    study.title = root.text("title", "");
+    study.notes = root.text("notes", "");
+
+    ObjectReader objective(root.get("objective"), "objective",
+                           {"formula", "data", "checksum", "model", "response", "loss", "weights", "sigma", "scale",
+                            "separator", "drop_incomplete_rows"});
+    objective.rejectUnknownKeys();
+    const bool formulaMode = objective.has("formula");
+    if (formulaMode == objective.has("data"))
+        ObjectReader::fail("objective", formulaMode ? "has both \"formula\" and \"data\"; a study is one or the other"
+                                                    : "needs either \"formula\" (formula mode) or \"data\" (data-fit mode)");
+    bool residualForm = false;
+    if (formulaMode) {
+        for (const char* key : {"checksum", "model", "response", "loss", "weights", "sigma", "scale", "separator",
+                                "drop_incomplete_rows"})
+            if (objective.has(key)) ObjectReader::fail(objective.at(key), "belongs to data-fit mode, not to a formula study");
+        study.formula = objective.text("formula", "", true);
+        if (study.formula.find_first_not_of(" \t\r\n") == std::string::npos)
+            ObjectReader::fail(objective.at("formula"), "is empty");
+    } else {
+        DataFit fit;
+        fit.dataPath = objective.text("data", "", true);
+        if (fit.dataPath.empty()) ObjectReader::fail(objective.at("data"), "is empty; give the data file's path");
+        fit.checksum = lowercase(objective.text("checksum", "", true));
+        const bool checksumShape = fit.checksum.size() == 7 + 64 && fit.checksum.rfind("sha256:", 0) == 0 &&
+                                   std::all_of(fit.checksum.begin() + 7, fit.checksum.end(),
+                                               [](char c) { return std::isxdigit(static_cast<unsigned char>(c)); });
+        if (!checksumShape)
+            ObjectReader::fail(objective.at("checksum"), "must be \"sha256:\" followed by 64 hex digits");
+        fit.model = objective.text("model", "", true);
+        fit.response = objective.text("response", "", true);
+        fit.loss = objective.text("loss", fit.loss);
+        Loss loss;
+        if (!parseLoss(fit.loss, loss))
+            ObjectReader::fail(objective.at("loss"), "must be one of: " + lossList() + " (got \"" + fit.loss + "\")");
+        if (objective.has("weights") && objective.has("sigma"))
+            ObjectReader::fail(objective.at("sigma"), "give either \"weights\" or \"sigma\", not both");
+        if (objective.has("sigma")) {
+            fit.weights = objective.text("sigma", "");
+            fit.weightsKind = "sigma";
+        } else {
+            fit.weights = objective.text("weights", "");
+        }
+        if (loss == Loss::Weighted && fit.weights.empty())
+            ObjectReader::fail("objective", "the weighted loss needs a \"weights\" or a \"sigma\" column");
+        fit.lossScale = objective.number("scale", fit.lossScale);
+        if (!(fit.lossScale > 0)) ObjectReader::fail(objective.at("scale"), "must be > 0 (got " + numberText(fit.lossScale) + ")");
+        fit.separator = objective.text("separator", fit.separator);
+        Separator separator;
+        if (!parseSeparator(fit.separator, separator) || fit.separator.size() < 3)
+            ObjectReader::fail(objective.at("separator"),
+                               "must be one of: auto, comma, semicolon, tab (got \"" + fit.separator + "\")");
+        fit.dropIncompleteRows = objective.flag("drop_incomplete_rows", false);
+        residualForm = hasResidualForm(loss);
+        study.fit = fit;
+    }
+
+    study.variables = readVariables(document);
+    readStopping(document, study);
+    readView(document, study);
+    checkObjective(study, baseDirectory);
+    study.methods = readMethods(document, residualForm);
+    return study;
+}
+
+Study loadFile(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw StudyError("file", "cannot open '" + path + "' for reading");
+    std::ostringstream text;
+    text << in.rdbuf();
+    if (in.bad()) throw StudyError("file", "cannot read '" + path + "'");
+    return fromJson(text.str(), directoryOf(path));
+}
+
+}  // namespace sw::study
