@@ -45,10 +45,13 @@ std::vector<OptionSpec> lineSearchOptionSpecs(double defaultCurvature) {
 
 LineSearchSettings lineSearchSettings(const std::vector<OptionSpec>& specs, const OptionValues& values) {
     LineSearchSettings s;
-    s.sufficientDecrease = optionNumber(specs, values, "sufficient_decrease");
-    s.curvature = optionNumber(specs, values, "curvature");
-    s.backtrackFactor = optionNumber(specs, values, "backtrack_factor");
-    s.maxTrials = static_cast<int>(optionNumber(specs, values, "max_trials"));
+    auto read = [&](const char* name, double fallback) {
+        return findOption(specs, name) ? optionNumber(specs, values, name) : fallback;
+    };
+    s.sufficientDecrease = read("sufficient_decrease", s.sufficientDecrease);
+    s.curvature = read("curvature", s.curvature);
+    s.backtrackFactor = read("backtrack_factor", s.backtrackFactor);
+    s.maxTrials = static_cast<int>(read("max_trials", s.maxTrials));
     return s;
 }
 
@@ -183,6 +186,9 @@ double nextTrialStep(EndPoint1D& best, EndPoint1D& other, const EndPoint1D& tria
 
 }  // namespace
 
+// Relative change of f treated as rounding by the approximate Wolfe test.
+constexpr double kRoundingSlack = 1e-12;
+
 LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
                              const LineSearchSettings& settings) {
     const double slope0 = g.dot(d);
@@ -227,7 +233,12 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
         const double armijoLine = f + stp * decreaseSlope;
         const bool decreaseOk = value <= armijoLine;
         const bool curvatureOk = std::abs(slope) <= c2 * (-slope0);
-        if (decreaseOk && curvatureOk) {
+        // Near a minimiser f is flat to rounding and sufficient decrease cannot be seen; accept a
+        // step that keeps f within rounding and meets the curvature condition (the approximate
+        // Wolfe conditions of Hager & Zhang 2005, with a tighter epsilon).
+        const bool flatWithinRounding = value <= f + kRoundingSlack * std::abs(f);
+        if ((decreaseOk || flatWithinRounding) && curvatureOk) {
+            if (!decreaseOk) result.message = "accepted on the approximate Wolfe conditions: f is flat to rounding";
             t.accepted = true;
             result.trials.push_back(t);
             result.success = result.curvatureMet = true;
@@ -310,6 +321,15 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
         record.accepted = false;
         record.step = Vector::Zero(state.x.size());
         record.stepLength = 0;
+        // When even the first trial promises a decrease below the rounding of f, no line search
+        // can make progress: the point is a minimiser to working precision.
+        const double promised = -settings.initialStep * state.gradient.dot(direction);
+        const double rounding = 1e-15 * (1.0 + std::abs(state.value));
+        if (promised >= 0 && promised <= rounding)
+            return {Termination::FunctionTolerance,
+                    "converged: the line search cannot decrease f beyond rounding in iteration " +
+                        std::to_string(state.iteration) + " (first trial promises " + shortNumber(promised) +
+                        " <= 1e-15 (1 + |f|))"};
         return {Termination::LineSearchFailed, "line search failed in iteration " + std::to_string(state.iteration) +
                                                    ": " + found.message};
     }

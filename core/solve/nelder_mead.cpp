@@ -1,8 +1,183 @@
-// Filled in by the next commits.
+// Nelder-Mead simplex search (Nelder & Mead 1965), in the form analysed by Lagarias, Reeds,
+// Wright & Wright (1998), optionally with the dimension-dependent parameters of Gao & Han
+// (2012). Derivative-free: it reads values only; the framework shows the gradient in the
+// records without counting it.
 #include "core/solve/method.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
 
 namespace sw::solve {
 
-std::vector<MethodRegistration> derivativeFreeMethods() { return {}; }
+namespace {
+
+constexpr double kUnbounded = 1e300;
+
+struct NelderMeadOptions {
+    double initialSize = 0.05;       // edge of the start simplex, relative to max(1, |x_i|)
+    bool adaptive = false;           // Gao & Han (2012) parameters
+    double simplexTolerance = 1e-8;  // converged when every vertex is this close to the best (max norm)...
+    double valueTolerance = 1e-12;   // ...and every value is this close to the best
+};
+
+class NelderMead final : public MethodState {
+public:
+    explicit NelderMead(NelderMeadOptions o) : options_(o) {}
+
+    void start(Evaluator& eval, State& state) override {
+        const auto n = state.x.size();
+        const double dn = static_cast<double>(n);
+        // Lagarias et al. (1998): reflection 1, expansion 2, contraction 1/2, shrink 1/2.
+        // Gao & Han (2012): 1, 1 + 2/n, 3/4 - 1/(2n), 1 - 1/n.
+        reflection_ = 1;
+        expansion_ = options_.adaptive ? 1 + 2 / dn : 2;
+        contraction_ = options_.adaptive ? 0.75 - 1 / (2 * dn) : 0.5;
+        shrink_ = options_.adaptive && n > 1 ? 1 - 1 / dn : 0.5;
+        vertices_.assign(static_cast<std::size_t>(n + 1), state.x);
+        values_.assign(static_cast<std::size_t>(n + 1), state.value);
+        for (Eigen::Index i = 0; i < n; ++i) {
+            Vector& v = vertices_[static_cast<std::size_t>(i + 1)];
+            v[i] += options_.initialSize * std::max(1.0, std::abs(v[i]));
+            values_[static_cast<std::size_t>(i + 1)] = evaluate(eval, v);
+        }
+        order();
+        state.x = vertices_[0];
+        state.value = values_[0];
+    }
+
+    StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
+        const std::size_t last = vertices_.size() - 1;
+        const auto n = static_cast<double>(last);
+        Vector centroid = Vector::Zero(state.x.size());
+        for (std::size_t i = 0; i < last; ++i) centroid += vertices_[i];
+        centroid /= n;
+        const Vector& worst = vertices_[last];
+        const double best = values_[0], secondWorst = values_[last - 1], worstValue = values_[last];
+
+        const Vector reflected = centroid + reflection_ * (centroid - worst);
+        const double fr = evaluate(eval, reflected);
+        std::string move;
+        if (fr < best) {
+            const Vector expanded = centroid + expansion_ * (reflected - centroid);
+            const double fe = evaluate(eval, expanded);
+            if (fe < fr) replaceWorst(expanded, fe), move = "expand";
+            else replaceWorst(reflected, fr), move = "reflect";
+        } else if (fr < secondWorst) {
+            replaceWorst(reflected, fr), move = "reflect";
+        } else if (fr < worstValue) {
+            const Vector outside = centroid + contraction_ * (reflected - centroid);
+            const double fc = evaluate(eval, outside);
+            if (fc <= fr) replaceWorst(outside, fc), move = "contract outside";
+            else shrinkToBest(eval), move = "shrink";
+        } else {
+            const Vector inside = centroid + contraction_ * (worst - centroid);
+            const double fcc = evaluate(eval, inside);
+            if (fcc < worstValue) replaceWorst(inside, fcc), move = "contract inside";
+            else shrinkToBest(eval), move = "shrink";
+        }
+        order();
+        record.stepKind = StepKind::Simplex;
+        record.stepLength = 1;
+        record.note = move + "; simplex size " + shortNumber(simplexSize()) + ", value spread " +
+                      shortNumber(valueSpread());
+        state.x = vertices_[0];
+        state.value = values_[0];
+        return {};
+    }
+
+    bool ownConvergence(std::string* why) const override {
+        const double size = simplexSize(), spread = valueSpread();
+        if (size <= options_.simplexTolerance && spread <= options_.valueTolerance) {
+            if (why)
+                *why = "converged: simplex size " + shortNumber(size) + " <= " + shortNumber(options_.simplexTolerance) +
+                       " and value spread " + shortNumber(spread) + " <= " + shortNumber(options_.valueTolerance);
+            return true;
+        }
+        return false;
+    }
+
+private:
+    // A value that is not finite counts as +inf, so the simplex moves away from it.
+    static double evaluate(Evaluator& eval, const Vector& x) {
+        const double f = eval.value(x);
+        if (std::isfinite(f)) return f;
+        eval.clearNonFinite();
+        return std::numeric_limits<double>::infinity();
+    }
+
+    void replaceWorst(const Vector& x, double f) {
+        vertices_.back() = x;
+        values_.back() = f;
+    }
+
+    void shrinkToBest(Evaluator& eval) {
+        for (std::size_t i = 1; i < vertices_.size(); ++i) {
+            vertices_[i] = vertices_[0] + shrink_ * (vertices_[i] - vertices_[0]);
+            values_[i] = evaluate(eval, vertices_[i]);
+        }
+    }
+
+    // Sorts by value; ties keep their order (Lagarias et al.'s tie-breaking: a new vertex goes after equals).
+    void order() {
+        std::vector<std::size_t> index(vertices_.size());
+        std::iota(index.begin(), index.end(), 0);
+        std::stable_sort(index.begin(), index.end(), [&](std::size_t a, std::size_t b) { return values_[a] < values_[b]; });
+        std::vector<Vector> v;
+        std::vector<double> f;
+        for (std::size_t i : index) v.push_back(vertices_[i]), f.push_back(values_[i]);
+        vertices_ = std::move(v);
+        values_ = std::move(f);
+    }
+
+    double simplexSize() const {
+        double size = 0;
+        for (std::size_t i = 1; i < vertices_.size(); ++i)
+            size = std::max(size, (vertices_[i] - vertices_[0]).cwiseAbs().maxCoeff());
+        return size;
+    }
+
+    double valueSpread() const {
+        double spread = 0;
+        for (std::size_t i = 1; i < values_.size(); ++i) spread = std::max(spread, std::abs(values_[i] - values_[0]));
+        return spread;
+    }
+
+    NelderMeadOptions options_;
+    double reflection_ = 1, expansion_ = 2, contraction_ = 0.5, shrink_ = 0.5;
+    std::vector<Vector> vertices_;
+    std::vector<double> values_;
+};
+
+}  // namespace
+
+std::vector<MethodRegistration> derivativeFreeMethods() {
+    MethodInfo info;
+    info.id = "nelder-mead";
+    info.family = "derivative-free";
+    info.summary = "Nelder-Mead simplex search on values only (Lagarias et al. 1998)";
+    info.needsGradient = false;
+    info.options = {
+        realOption("initial_size", "edge of the start simplex along each axis, times max(1, |x_i|)", 0.05, 0,
+                   kUnbounded, true, false),
+        flagOption("adaptive", "dimension-dependent expansion/contraction/shrink (Gao & Han 2012)", false),
+        realOption("simplex_tolerance", "converged when all vertices are this close to the best (max norm)", 1e-8, 0,
+                   kUnbounded, false, false),
+        realOption("value_tolerance", "... and all their values this close to the best value", 1e-12, 0, kUnbounded,
+                   false, false),
+    };
+    const std::vector<OptionSpec> specs = info.options;
+    return {{info,
+             [specs](const OptionValues& v) {
+                 NelderMeadOptions o;
+                 o.initialSize = optionNumber(specs, v, "initial_size");
+                 o.adaptive = optionFlag(specs, v, "adaptive");
+                 o.simplexTolerance = optionNumber(specs, v, "simplex_tolerance");
+                 o.valueTolerance = optionNumber(specs, v, "value_tolerance");
+                 return std::make_unique<NelderMead>(o);
+             },
+             {}}};
+}
 
 }  // namespace sw::solve

@@ -1,8 +1,206 @@
-// Filled in by the next commits.
-#include "core/solve/method.h"
+// Quasi-Newton methods with a line search: BFGS on the inverse Hessian approximation and
+// limited-memory BFGS (two-loop recursion). SR1 lives with the trust-region methods.
+#include "core/solve/quasi_newton.h"
+#include "core/solve/line_search.h"
+
+#include <algorithm>
+#include <cmath>
+#include <deque>
 
 namespace sw::solve {
 
-std::vector<MethodRegistration> quasiNewtonMethods() { return {}; }
+namespace {
+
+// An update needs positive curvature y's > 0; below this fraction of |s||y| it is treated as
+// zero (rounding), and the update is skipped so the approximation stays positive definite.
+constexpr double kCurvatureFloor = 1e-12;
+
+LineSearchKind searchKind(const std::string& name) {
+    return name == "armijo" ? LineSearchKind::Armijo : LineSearchKind::Wolfe;
+}
+
+// First trial step: the full quasi-Newton step (alpha = 1), except in the first iteration,
+// where the model is only the identity and a step of length about 1 is the safer guess.
+double firstTrial(const State& state, bool first) {
+    if (!first) return 1.0;
+    const double gn = state.gradient.norm();
+    return gn > 1 ? 1.0 / gn : 1.0;
+}
+
+std::string skipNote(double ys, const char* method) {
+    return std::string(method) + " update skipped: y's = " + shortNumber(ys) +
+           (ys <= 0 ? " <= 0" : " is too small against |s||y| (rounding)");
+}
+
+// ---- bfgs -----------------------------------------------------------------------------------------
+
+class Bfgs final : public MethodState {
+public:
+    Bfgs(LineSearchKind kind, LineSearchSettings settings, bool scaleInitial)
+        : kind_(kind), settings_(settings), scaleInitial_(scaleInitial) {}
+
+    StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
+        const auto n = state.x.size();
+        if (inverse_.rows() != n) inverse_ = Matrix::Identity(n, n);
+        Vector direction = -(inverse_ * state.gradient);
+        if (!(state.gradient.dot(direction) < 0)) {
+            // Rounding can spoil positive definiteness; start the model afresh.
+            inverse_ = Matrix::Identity(n, n);
+            direction = -state.gradient;
+            updates_ = 0;
+            record.note = "the BFGS direction was not downhill; reset the model to the identity";
+        }
+        record.stepKind = StepKind::QuasiNewton;
+        LineSearchSettings settings = settings_;
+        settings.initialStep = firstTrial(state, first_);
+        first_ = false;
+        const Vector previousGradient = state.gradient;
+        StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
+        if (outcome.termination != Termination::Running) return outcome;
+        update(record.step, state.gradient - previousGradient, record);
+        return outcome;
+    }
+
+    void update(const Vector& s, const Vector& y, IterationRecord& record) {
+        std::string note;
+        if (updateInverseBfgs(inverse_, s, y, updates_ == 0 && scaleInitial_, note)) ++updates_;
+        else record.note += (record.note.empty() ? "" : "; ") + note;
+    }
+
+private:
+    LineSearchKind kind_;
+    LineSearchSettings settings_;
+    bool scaleInitial_;
+    Matrix inverse_;
+    int updates_ = 0;
+    bool first_ = true;
+};
+
+// ---- lbfgs ------------------------------------------------------------------------------------------
+
+// Nocedal & Wright (2006), Algorithm 7.4 (two-loop recursion) and 7.5, with
+// H0 = gamma I, gamma = s'y / y'y of the newest pair (eq. 7.20).
+class Lbfgs final : public MethodState {
+public:
+    Lbfgs(int memory, LineSearchKind kind, LineSearchSettings settings)
+        : memory_(memory), kind_(kind), settings_(settings) {}
+
+    StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
+        Vector direction = twoLoop(state.gradient);
+        if (!(state.gradient.dot(direction) < 0)) {
+            pairs_.clear();
+            direction = -state.gradient;
+            record.note = "the L-BFGS direction was not downhill; dropped the stored pairs";
+        }
+        record.stepKind = StepKind::QuasiNewton;
+        record.damping = static_cast<double>(pairs_.size());
+        record.dampingName = "pairs";
+        LineSearchSettings settings = settings_;
+        settings.initialStep = firstTrial(state, pairs_.empty());
+        const Vector previousGradient = state.gradient;
+        StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
+        if (outcome.termination != Termination::Running) return outcome;
+        const Vector& s = record.step;
+        const Vector y = state.gradient - previousGradient;
+        const double ys = y.dot(s);
+        if (!(ys > kCurvatureFloor * s.norm() * y.norm())) {
+            record.note += (record.note.empty() ? "" : "; ") + skipNote(ys, "L-BFGS");
+            return outcome;
+        }
+        if (static_cast<int>(pairs_.size()) == memory_) pairs_.pop_front();
+        pairs_.push_back({s, y, 1.0 / ys});
+        return outcome;
+    }
+
+private:
+    struct Pair {
+        Vector s, y;
+        double rho;
+    };
+
+    Vector twoLoop(const Vector& g) const {
+        Vector q = g;
+        std::vector<double> alpha(pairs_.size());
+        for (std::size_t i = pairs_.size(); i-- > 0;) {
+            alpha[i] = pairs_[i].rho * pairs_[i].s.dot(q);
+            q -= alpha[i] * pairs_[i].y;
+        }
+        if (!pairs_.empty()) {
+            const Pair& newest = pairs_.back();
+            q *= newest.s.dot(newest.y) / newest.y.squaredNorm();
+        }
+        for (std::size_t i = 0; i < pairs_.size(); ++i) {
+            const double beta = pairs_[i].rho * pairs_[i].y.dot(q);
+            q += (alpha[i] - beta) * pairs_[i].s;
+        }
+        return -q;
+    }
+
+    int memory_;
+    LineSearchKind kind_;
+    LineSearchSettings settings_;
+    std::deque<Pair> pairs_;
+};
+
+MethodInfo quasiNewtonInfo(std::string id, std::string summary) {
+    MethodInfo info;
+    info.id = std::move(id);
+    info.family = "quasi-newton";
+    info.summary = std::move(summary);
+    return info;
+}
+
+}  // namespace
+
+bool updateInverseBfgs(Matrix& inverse, const Vector& s, const Vector& y, bool scaleFirst, std::string& note) {
+    const double ys = y.dot(s);
+    if (!(ys > kCurvatureFloor * s.norm() * y.norm())) {
+        note = skipNote(ys, "BFGS");
+        return false;
+    }
+    if (scaleFirst) inverse = (ys / y.squaredNorm()) * Matrix::Identity(s.size(), s.size());
+    const double rho = 1.0 / ys;
+    const Vector hy = inverse * y;
+    // Eq. 6.17 multiplied out, O(n^2): H + (rho^2 y'Hy + rho) ss' - rho (Hy s' + s y'H).
+    inverse.noalias() += (rho * rho * y.dot(hy) + rho) * (s * s.transpose());
+    inverse.noalias() -= rho * (hy * s.transpose() + s * hy.transpose());
+    return true;
+}
+
+std::vector<MethodRegistration> quasiNewtonMethods() {
+    std::vector<MethodRegistration> list;
+    {
+        MethodInfo info = quasiNewtonInfo("bfgs", "BFGS on the inverse Hessian with a strong Wolfe line search");
+        info.options = {choiceOption("line_search", "how the step length is chosen (Armijo alone can give y's <= 0)",
+                                     {"wolfe", "armijo"}, 0),
+                        flagOption("scale_initial", "scale the first model by y's / y'y (Nocedal & Wright eq. 6.20)",
+                                   true)};
+        for (OptionSpec& s : lineSearchOptionSpecs(0.9)) info.options.push_back(std::move(s));
+        const std::vector<OptionSpec> specs = info.options;
+        list.push_back({info,
+                        [specs](const OptionValues& v) {
+                            return std::make_unique<Bfgs>(searchKind(optionChoice(specs, v, "line_search")),
+                                                          lineSearchSettings(specs, v),
+                                                          optionFlag(specs, v, "scale_initial"));
+                        },
+                        [specs](const OptionValues& v) { return lineSearchSettings(specs, v).check(); }});
+    }
+    {
+        MethodInfo info =
+            quasiNewtonInfo("lbfgs", "limited-memory BFGS (two-loop recursion) with a strong Wolfe line search");
+        info.options = {integerOption("memory", "m: the number of (s, y) pairs kept", 10, 1, 1000),
+                        choiceOption("line_search", "how the step length is chosen", {"wolfe", "armijo"}, 0)};
+        for (OptionSpec& s : lineSearchOptionSpecs(0.9)) info.options.push_back(std::move(s));
+        const std::vector<OptionSpec> specs = info.options;
+        list.push_back({info,
+                        [specs](const OptionValues& v) {
+                            return std::make_unique<Lbfgs>(static_cast<int>(optionNumber(specs, v, "memory")),
+                                                           searchKind(optionChoice(specs, v, "line_search")),
+                                                           lineSearchSettings(specs, v));
+                        },
+                        [specs](const OptionValues& v) { return lineSearchSettings(specs, v).check(); }});
+    }
+    return list;
+}
 
 }  // namespace sw::solve

@@ -1,0 +1,229 @@
+// Each method of this file's families on small problems whose answers are known by hand:
+// a convex quadratic (minimiser (0.2, 0.4), f* = -0.3; common practice, no published source)
+// and Rosenbrock's function (minimiser (1, 1), f* = 0; Rosenbrock 1960, value from memory).
+#include "core/solve/method.h"
+#include "core/solve/quasi_newton.h"
+#include "tests/core/solve/solve_test_problems.h"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+namespace sw::solve {
+namespace {
+
+using problems::point;
+
+struct Case {
+    const char* method;
+    OptionValues options;
+    int maxIterations;
+};
+
+void PrintTo(const Case& c, std::ostream* os) { *os << c.method; }
+
+class EveryMethodOnTheQuadratic : public ::testing::TestWithParam<Case> {};
+
+TEST_P(EveryMethodOnTheQuadratic, ReachesTheMinimiser) {
+    const Case& c = GetParam();
+    const FunctionObjective f = problems::convexQuadratic();
+    StoppingRules rules;
+    rules.maxIterations = c.maxIterations;
+    rules.gradientTolerance = 1e-9;
+    solve::Run run = solve(c.method, f, point(2, -1), c.options, rules);
+    EXPECT_TRUE(isConvergence(run.termination)) << c.method << ": " << run.message;
+    EXPECT_NEAR(run.x[0], 0.2, 1e-6) << c.method;
+    EXPECT_NEAR(run.x[1], 0.4, 1e-6) << c.method;
+    EXPECT_NEAR(run.value, -0.3, 1e-10) << c.method;
+    EXPECT_EQ(run.endPoint.kind, PointKind::Minimum) << run.endPoint.description;
+    EXPECT_EQ(run.endPoint.index, 0);
+}
+
+INSTANTIATE_TEST_SUITE_P(
+    Solve, EveryMethodOnTheQuadratic,
+    ::testing::Values(Case{"gradient-descent", {}, 500}, Case{"gradient-descent", {{"line_search", "wolfe"}}, 500},
+                      Case{"gradient-descent", {{"line_search", "fixed"}, {"step_size", "0.2"}}, 500},
+                      Case{"momentum", {{"step_size", "0.05"}, {"momentum", "0.5"}}, 2000},
+                      Case{"nesterov", {{"step_size", "0.05"}, {"momentum", "0.5"}}, 2000},
+                      Case{"adam", {{"step_size", "0.01"}}, 20000}, Case{"newton", {}, 5},
+                      Case{"damped-newton", {}, 5}, Case{"modified-newton", {}, 5},
+                      Case{"saddle-free-newton", {}, 5}, Case{"bfgs", {}, 50}, Case{"lbfgs", {}, 50},
+                      Case{"lbfgs", {{"memory", "1"}}, 50}, Case{"cg-fletcher-reeves", {}, 100},
+                      Case{"cg-polak-ribiere", {}, 100}),
+    [](const ::testing::TestParamInfo<Case>& param) {
+        std::string name = param.param.method;
+        for (char& ch : name)
+            if (ch == '-') ch = '_';
+        return name + "_" + std::to_string(param.index);
+    });
+
+TEST(Newton, ConvergesInOneStepOnAConvexQuadratic) {
+    // Common practice, no published source: the Newton step on a quadratic is exact.
+    const FunctionObjective f = problems::convexQuadratic();
+    solve::Run run = solve("newton", f, point(2, -1));
+    EXPECT_EQ(run.termination, Termination::GradientTolerance) << run.message;
+    EXPECT_EQ(run.iterations(), 1);
+    EXPECT_EQ(run.trace[0].stepKind, StepKind::Newton);
+    EXPECT_DOUBLE_EQ(run.trace[0].stepLength, 1.0);
+    EXPECT_NEAR(run.trace[0].predictedDecrease, run.trace[0].actualDecrease, 1e-12);
+    EXPECT_EQ(run.evaluations.hessian, 2);
+}
+
+TEST(NelderMead, FindsTheQuadraticsMinimiserFromValuesAlone) {
+    const FunctionObjective f = problems::convexQuadratic();
+    StoppingRules rules;
+    rules.maxIterations = 1000;
+    solve::Run run = solve("nelder-mead", f, point(2, -1), {}, rules);
+    EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
+    EXPECT_NE(run.message.find("simplex size"), std::string::npos);
+    EXPECT_NEAR(run.x[0], 0.2, 1e-6);
+    EXPECT_NEAR(run.x[1], 0.4, 1e-6);
+    EXPECT_EQ(run.evaluations.gradient, 0);
+    EXPECT_EQ(run.evaluations.hessian, 0);
+    EXPECT_FALSE(run.trace[1].note.empty());
+    EXPECT_EQ(run.trace[1].stepKind, StepKind::Simplex);
+}
+
+TEST(NelderMead, AdaptiveParametersAlsoSolveRosenbrock) {
+    const FunctionObjective f = problems::rosenbrock();
+    StoppingRules rules;
+    rules.maxIterations = 2000;
+    for (const char* adaptive : {"false", "true"}) {
+        solve::Run run = solve("nelder-mead", f, point(-1.2, 1), {{"adaptive", adaptive}}, rules);
+        EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
+        EXPECT_NEAR(run.x[0], 1, 1e-6) << adaptive;
+        EXPECT_NEAR(run.x[1], 1, 1e-6) << adaptive;
+    }
+}
+
+class RobustMethodsOnRosenbrock : public ::testing::TestWithParam<const char*> {};
+
+TEST_P(RobustMethodsOnRosenbrock, ReachTheMinimumFromTheStandardStart) {
+    // Start (-1.2, 1), minimiser (1, 1), f* = 0: Moré, Garbow & Hillstrom (1981), problem 1.
+    const FunctionObjective f = problems::rosenbrock();
+    StoppingRules rules;
+    rules.maxIterations = 5000;
+    solve::Run run = solve(GetParam(), f, point(-1.2, 1), {}, rules);
+    EXPECT_EQ(run.termination, Termination::GradientTolerance) << GetParam() << ": " << run.message;
+    EXPECT_NEAR(run.x[0], 1, 1e-6);
+    EXPECT_NEAR(run.x[1], 1, 1e-6);
+    EXPECT_LT(run.value, 1e-14);
+    EXPECT_EQ(run.endPoint.kind, PointKind::Minimum);
+}
+
+INSTANTIATE_TEST_SUITE_P(Solve, RobustMethodsOnRosenbrock,
+                         ::testing::Values("damped-newton", "modified-newton", "saddle-free-newton", "bfgs", "lbfgs",
+                                           "cg-polak-ribiere", "cg-fletcher-reeves"),
+                         [](const ::testing::TestParamInfo<const char*>& param) {
+                             std::string name = param.param;
+                             for (char& ch : name)
+                                 if (ch == '-') ch = '_';
+                             return name;
+                         });
+
+TEST(Bfgs, FewerIterationsThanGradientDescentOnRosenbrock) {
+    const FunctionObjective f = problems::rosenbrock();
+    StoppingRules rules;
+    rules.maxIterations = 100000;
+    solve::Run bfgs = solve("bfgs", f, point(-1.2, 1), {}, rules);
+    solve::Run gd = solve("gradient-descent", f, point(-1.2, 1), {}, rules);
+    EXPECT_LT(bfgs.iterations(), 60);
+    EXPECT_GT(gd.iterations(), 10 * bfgs.iterations());
+}
+
+TEST(BfgsUpdate, SkipsWhenCurvatureIsNotPositive) {
+    Matrix h = Matrix::Identity(2, 2);
+    std::string note;
+    EXPECT_FALSE(updateInverseBfgs(h, point(1, 0), point(-1, 0), false, note));
+    EXPECT_EQ(h, Matrix::Identity(2, 2));
+    EXPECT_NE(note.find("BFGS update skipped: y's = -1 <= 0"), std::string::npos) << note;
+    EXPECT_FALSE(updateInverseBfgs(h, point(1, 0), point(0, 1), false, note));  // y's = 0
+}
+
+TEST(BfgsUpdate, SatisfiesTheSecantEquationAndStaysSymmetricPositiveDefinite) {
+    Matrix h = Matrix::Identity(2, 2);
+    std::string note;
+    const Vector s = point(0.3, -0.2), y = point(1.0, 0.4);  // y's = 0.22 > 0
+    ASSERT_TRUE(updateInverseBfgs(h, s, y, true, note));
+    EXPECT_NEAR((h * y - s).norm(), 0, 1e-14);  // H+ y = s (Nocedal & Wright eq. 6.7 for the inverse)
+    EXPECT_NEAR((h - h.transpose()).norm(), 0, 1e-15);
+    EXPECT_EQ(Eigen::LLT<Matrix>(h).info(), Eigen::Success);
+}
+
+TEST(Bfgs, RecordsSkippedUpdatesWithArmijoSteps) {
+    // Backtracking alone does not enforce y's > 0; on Himmelblau from a point near the
+    // maximum some accepted steps cross to falling slope, and the note must say so.
+    const FunctionObjective f = problems::himmelblau();
+    StoppingRules rules;
+    rules.maxIterations = 200;
+    bool sawSkip = false;
+    for (const Vector& start : {point(-0.3, -0.9), point(0, 0), point(-1, 1), point(1, -1)}) {
+        solve::Run run = solve("bfgs", f, start, {{"line_search", "armijo"}}, rules);
+        for (const IterationRecord& r : run.trace)
+            sawSkip = sawSkip || r.note.find("BFGS update skipped") != std::string::npos;
+    }
+    EXPECT_TRUE(sawSkip);
+}
+
+TEST(ModifiedNewton, RecordsTheShiftWhereTheHessianIsIndefinite) {
+    const FunctionObjective f = problems::himmelblau();
+    // Near the local maximum (-0.270845, -0.923039) the Hessian is negative definite.
+    solve::Run run = solve("modified-newton", f, point(-0.3, -0.9));
+    ASSERT_TRUE(isConvergence(run.termination)) << run.message;
+    EXPECT_EQ(run.trace[0].stepKind, StepKind::ModifiedNewton);
+    EXPECT_EQ(run.trace[0].dampingName, "tau");
+    EXPECT_GT(run.trace[0].damping, 0);
+    EXPECT_NE(run.trace[0].note.find("added tau"), std::string::npos);
+    EXPECT_EQ(run.endPoint.kind, PointKind::Minimum);
+    EXPECT_LT(run.value, 1e-14);  // Himmelblau's minima have f = 0
+}
+
+TEST(DampedNewton, FallsBackToSteepestDescentAndSaysSo) {
+    // At (-0.3, -0.9), near Himmelblau's maximum, H is negative definite, so the Newton
+    // direction points uphill.
+    const FunctionObjective f = problems::himmelblau();
+    solve::Run run = solve("damped-newton", f, point(-0.3, -0.9));
+    ASSERT_GE(run.trace.size(), 2u);
+    EXPECT_EQ(run.trace[0].stepKind, StepKind::Gradient);
+    EXPECT_NE(run.trace[0].note.find("fell back to steepest descent"), std::string::npos) << run.trace[0].note;
+    EXPECT_LT(run.trace[1].value, run.trace[0].value);
+}
+
+TEST(Newton, FailsCleanlyOnASingularHessian) {
+    // f = x^4 + y^2 at x = 0: the Hessian diag(0, 2) is singular.
+    FunctionObjective f({"x", "y"}, [](const Vector& v) { return std::pow(v[0], 4) + v[1] * v[1]; },
+                        [](const Vector& v, Vector& g) {
+                            g[0] = 4 * std::pow(v[0], 3);
+                            g[1] = 2 * v[1];
+                        },
+                        [](const Vector& v, Matrix& h) { h << 12 * v[0] * v[0], 0, 0, 2; });
+    solve::Run run = solve("newton", f, point(0, 1));
+    EXPECT_EQ(run.termination, Termination::Failed);
+    EXPECT_NE(run.message.find("Hessian is singular"), std::string::npos) << run.message;
+}
+
+TEST(Adam, FollowsKingmaAndBaWithBiasCorrection) {
+    // With bias correction the first Adam step has length step_size in every coordinate:
+    // m1/(1-b1) = g, sqrt(v1/(1-b2)) = |g| (Kingma & Ba 2015, Section 2; epsilon negligible).
+    const FunctionObjective f = problems::rosenbrock();
+    StoppingRules rules;
+    rules.maxIterations = 1;
+    solve::Run run = solve("adam", f, point(-1.2, 1), {{"step_size", "0.01"}}, rules);
+    ASSERT_EQ(run.trace.size(), 2u);
+    EXPECT_NEAR(std::abs(run.trace[0].step[0]), 0.01, 1e-9);
+    EXPECT_NEAR(std::abs(run.trace[0].step[1]), 0.01, 1e-9);
+}
+
+TEST(Momentum, HeavyBallStepsCombineGradientAndPreviousStep) {
+    const FunctionObjective f = problems::convexQuadratic();
+    StoppingRules rules;
+    rules.maxIterations = 2;
+    solve::Run run = solve("momentum", f, point(2, -1), {{"step_size", "0.1"}, {"momentum", "0.5"}}, rules);
+    ASSERT_EQ(run.trace.size(), 3u);
+    const Vector expected = 0.5 * run.trace[0].step - 0.1 * run.trace[1].gradient;  // Polyak (1964)
+    EXPECT_NEAR((run.trace[1].step - expected).norm(), 0, 1e-14);
+    EXPECT_EQ(run.trace[1].dampingName, "momentum");
+}
+
+}  // namespace
+}  // namespace sw::solve
