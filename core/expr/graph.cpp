@@ -212,10 +212,11 @@ const Node* Graph::simplify(Op op, const Node* a, const Node* b, const Node* c) 
         if (a->op == Op::Sign) return a;
         break;
     case Op::Add:
-        // a + b == b + a exactly: a canonical order makes x+y and y+x one node.
-        if (b->isConstant() || (!a->isConstant() && b->id < a->id)) std::swap(a, b);
-        if (isZero(a)) return b;
-        if (isNegativeConstant(a)) return simplify(Op::Sub, b, intern(Op::Constant, nullptr, nullptr, nullptr, -a->value, -1), nullptr);
+        // a + b == b + a exactly: a canonical order (constants last, then by age) makes x+y
+        // and y+x one node.
+        if (a->isConstant() || (!b->isConstant() && b->id < a->id)) std::swap(a, b);
+        if (isZero(b)) return a;
+        if (isNegativeConstant(b)) return simplify(Op::Sub, a, intern(Op::Constant, nullptr, nullptr, nullptr, -b->value, -1), nullptr);
         if (b->op == Op::Neg) return simplify(Op::Sub, a, b->a, nullptr);
         if (a->op == Op::Neg) return simplify(Op::Sub, b, a->a, nullptr);
         break;
