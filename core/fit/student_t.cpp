@@ -134,3 +134,26 @@ double studentTQuantile(double p, double dof) {
 }
 
 }  // namespace sw::fit
+
+namespace sw::fit {
+
+double normalQuantile(double p) {
+    if (!(p > 0) || !(p < 1)) return std::numeric_limits<double>::quiet_NaN();
+    if (p == 0.5) return 0.0;
+    // Newton on the tail Q(z) = erfc(z / sqrt 2) / 2, which keeps relative accuracy far out.
+    const double tail = p < 0.5 ? p : 1.0 - p;
+    double z = std::sqrt(-2.0 * std::log(tail));  // a start above the root
+    for (int i = 0; i < 100; ++i) {
+        const double q = 0.5 * std::erfc(z / std::sqrt(2.0));
+        const double density = std::exp(-0.5 * z * z) / std::sqrt(2.0 * M_PI);
+        const double next = z + (q - tail) / density;
+        if (std::fabs(next - z) <= 1e-16 * std::fabs(next)) {
+            z = next;
+            break;
+        }
+        z = next;
+    }
+    return p < 0.5 ? -z : z;
+}
+
+}  // namespace sw::fit

@@ -13,3 +13,8 @@ double studentTDistribution(double t, double dof);
 double studentTQuantile(double p, double dof);
 
 }  // namespace sw::fit
+
+namespace sw::fit {
+// The standard normal quantile: z with Phi(z) = p, 0 < p < 1 (NaN outside).
+double normalQuantile(double p);
+}  // namespace sw::fit

@@ -145,9 +145,12 @@ std::string singularValueText(const Vector& s) {
 // the column norms of J, lambda found for the radius, radius updated from rho.
 
 struct LevenbergMarquardtOptions {
-    double initialRadiusFactor = 100;   // radius_0 = factor * |D x_0| (factor when x_0 = 0)
-    double functionTolerance = 1e-12;   // relative reduction of |r|^2, actual and predicted
-    double stepTolerance = 1e-12;       // radius <= this * |D x|
+    // radius_0 = factor * |D x_0| (factor when x_0 = 0). MINPACK suggests 100; we start at 1,
+    // which keeps the first steps from far starts on the data's scale (NIST StRD BoxBOD from
+    // start 1 jumps onto a plateau with 100 and converges with 1).
+    double initialRadiusFactor = 1;
+    double functionTolerance = 1e-15;   // relative reduction of |r|^2, actual and predicted
+    double stepTolerance = 1e-15;       // radius <= this * |D x|
     double orthogonalityTolerance = 0;  // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
     double acceptRatio = 1e-4;          // rho above which a step is accepted
     double radiusTolerance = 0.1;       // |D p| within (1 +- this) radius
@@ -371,11 +374,11 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         lm.info.needsGradient = true;
         lm.info.needsResiduals = true;
         lm.info.options = {
-            realOption("initial_radius_factor", "first trust radius = factor x |D x0| (factor when x0 = 0)", 100, 0,
+            realOption("initial_radius_factor", "first trust radius = factor x |D x0| (factor when x0 = 0)", 1, 0,
                        1e300, true, false),
             realOption("function_tolerance", "stop when the relative reduction of the sum of squares is below this",
-                       1e-12, 0, 1, false, true),
-            realOption("step_tolerance", "stop when the trust radius is below this x |D x|", 1e-12, 0, 1, false, true),
+                       1e-15, 0, 1, false, true),
+            realOption("step_tolerance", "stop when the trust radius is below this x |D x|", 1e-15, 0, 1, false, true),
             realOption("orthogonality_tolerance",
                        "stop when every Jacobian column is this close to orthogonal to r (0 = off)", 0, 0, 1, false,
                        true),
