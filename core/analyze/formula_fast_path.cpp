@@ -2,14 +2,10 @@
 
 #include <utility>
 
-#if __has_include("core/objective/formula_objective.h")
 #include "core/objective/formula_objective.h"
-#define SW_ANALYZE_HAVE_FORMULA_OBJECTIVE 1
-#endif
 
 namespace sw::analyze {
 
-#ifdef SW_ANALYZE_HAVE_FORMULA_OBJECTIVE
 namespace {
 
 class FormulaRowSampler final : public RowSampler {
@@ -60,11 +56,5 @@ std::unique_ptr<RowSampler> makeFormulaRowSampler(const Objective& objective, co
     if (!sampler->usable()) return nullptr;
     return sampler;
 }
-
-#else
-
-std::unique_ptr<RowSampler> makeFormulaRowSampler(const Objective&, const Vector&, int, int) { return nullptr; }
-
-#endif
 
 }  // namespace sw::analyze

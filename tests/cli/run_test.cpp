@@ -1,0 +1,199 @@
+// saddlewise run STUDY: the built executable on every bundled sample and on bad studies.
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include <array>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <random>
+#include <set>
+#include <string>
+#include <sys/wait.h>
+
+namespace {
+
+namespace fs = std::filesystem;
+using Json = nlohmann::json;
+
+struct Outcome {
+    int exitCode = -1;
+    std::string out;  // stdout and stderr together when mergeErrors
+};
+
+std::string quoted(const std::string& text) {
+    std::string q = "'";
+    for (char c : text) q += c == '\'' ? std::string("'\\''") : std::string(1, c);
+    return q + "'";
+}
+
+Outcome runSaddlewise(const std::string& arguments, bool mergeErrors = false) {
+    const std::string command = quoted(SW_EXECUTABLE) + " " + arguments + (mergeErrors ? " 2>&1" : " 2>/dev/null");
+    Outcome outcome;
+    FILE* pipe = ::popen(command.c_str(), "r");
+    if (!pipe) return outcome;
+    std::array<char, 4096> buffer{};
+    std::size_t n = 0;
+    while ((n = std::fread(buffer.data(), 1, buffer.size(), pipe)) > 0) outcome.out.append(buffer.data(), n);
+    const int status = ::pclose(pipe);
+    outcome.exitCode = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+    return outcome;
+}
+
+std::vector<fs::path> sampleStudies() {
+    std::vector<fs::path> studies;
+    for (const auto& entry : fs::directory_iterator(fs::path(SW_SOURCE_DIR) / "samples"))
+        if (entry.path().extension() == ".json") studies.push_back(entry.path());
+    std::sort(studies.begin(), studies.end());
+    return studies;
+}
+
+TEST(RunVerb, EverySampleRunsEveryEnabledMethodAndReportsItInJson) {
+    const auto studies = sampleStudies();
+    ASSERT_GE(studies.size(), 3u);
+    for (const fs::path& path : studies) {
+        SCOPED_TRACE(path.filename().string());
+        const Json study = Json::parse(std::ifstream(path));
+        std::vector<std::string> enabled;
+        for (const Json& entry : study["methods"])
+            if (entry.value("enabled", true)) enabled.push_back(entry.value("label", entry["method"].get<std::string>()));
+        ASSERT_GE(study["methods"].size(), 4u) << "a sample shows 4 to 6 methods";
+        ASSERT_LE(study["methods"].size(), 6u);
+
+        const Outcome outcome = runSaddlewise("run " + quoted(path.string()) + " --json");
+        ASSERT_EQ(outcome.exitCode, 0) << outcome.out;
+        const Json result = Json::parse(outcome.out);
+        EXPECT_EQ(result["study"]["title"], study["title"]);
+        ASSERT_EQ(result["runs"].size(), enabled.size());
+        for (std::size_t k = 0; k < enabled.size(); ++k) {
+            const Json& run = result["runs"][k];
+            EXPECT_EQ(run["label"], enabled[k]);
+            EXPECT_FALSE(run["termination"].get<std::string>().empty());
+            EXPECT_GE(run["trace"].size(), 1u);
+            EXPECT_EQ(run["trace"].size(), run["iterations"].get<std::size_t>() + 1);
+            EXPECT_TRUE(run.contains("end_point"));
+        }
+    }
+}
+
+TEST(RunVerb, SamplesHaveDistinctColoursAndMarkersAndNotes) {
+    for (const fs::path& path : sampleStudies()) {
+        SCOPED_TRACE(path.filename().string());
+        const Json study = Json::parse(std::ifstream(path));
+        EXPECT_FALSE(study["title"].get<std::string>().empty());
+        EXPECT_GT(study["notes"].get<std::string>().size(), 100u);
+        std::set<std::string> colours, markers;
+        for (const Json& entry : study["methods"]) {
+            colours.insert(entry["colour"].get<std::string>());
+            markers.insert(entry.value("marker", "circle"));
+        }
+        EXPECT_EQ(colours.size(), study["methods"].size());
+        EXPECT_EQ(markers.size(), study["methods"].size());
+    }
+}
+
+// What each formula sample is meant to show (see its notes) actually happens.
+TEST(RunVerb, TheSaddleSampleShowsNewtonStoppingOnASaddleWhileOthersEscape) {
+    const Outcome outcome =
+        runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/two-valve-saddles.json") + " --json");
+    ASSERT_EQ(outcome.exitCode, 0);
+    const Json result = Json::parse(outcome.out);
+    for (const Json& run : result["runs"]) {
+        SCOPED_TRACE(run["label"].get<std::string>());
+        const std::string kind = run["end_point"]["kind"];
+        if (run["method"] == "newton") {
+            EXPECT_EQ(kind, "saddle");
+            EXPECT_EQ(run["end_point"]["index"], 1);
+        } else {
+            EXPECT_EQ(kind, "minimum");
+        }
+    }
+}
+
+TEST(RunVerb, TheBadlyScaledSampleLeavesSteepestDescentShortOfTheMinimum) {
+    const Outcome outcome = runSaddlewise(
+        "run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/heater-power-and-duty.json") + " --json");
+    ASSERT_EQ(outcome.exitCode, 0);
+    for (const Json& run : Json::parse(outcome.out)["runs"]) {
+        if (run["method"] == "gradient-descent") {
+            EXPECT_EQ(run["termination"], "iteration-limit");
+            EXPECT_GT(run["value"].get<double>(), 1.0);
+        }
+        if (run["method"] == "newton") {
+            EXPECT_LE(run["iterations"].get<int>(), 2);
+            EXPECT_NEAR(run["x"]["power"].get<double>(), 1200, 1e-6);
+            EXPECT_NEAR(run["x"]["duty"].get<double>(), 0.35, 1e-9);
+        }
+    }
+}
+
+TEST(RunVerb, TheTableNamesEveryEnabledMethod) {
+    const Outcome outcome =
+        runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/pump-flow-calibration.json"));
+    ASSERT_EQ(outcome.exitCode, 0);
+    for (const char* label : {"steepest descent", "BFGS", "dogleg", "Nelder-Mead", "ended by", "end point"})
+        EXPECT_NE(outcome.out.find(label), std::string::npos) << label;
+}
+
+TEST(RunVerb, MaxIterationsOverridesTheStudy) {
+    const Outcome outcome = runSaddlewise(
+        "run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/pump-flow-calibration.json") +
+        " --json --max-iterations 3");
+    ASSERT_EQ(outcome.exitCode, 0);
+    for (const Json& run : Json::parse(outcome.out)["runs"]) EXPECT_LE(run["iterations"].get<int>(), 3);
+}
+
+class BadStudyFile : public ::testing::Test {
+protected:
+    void SetUp() override {
+        std::random_device seed;
+        folder_ = fs::temp_directory_path() / ("saddlewise-run-test-" + std::to_string(seed()));
+        fs::create_directories(folder_);
+    }
+    void TearDown() override {
+        std::error_code ignored;
+        fs::remove_all(folder_, ignored);
+    }
+    std::string write(const std::string& text) {
+        const fs::path path = folder_ / "study.json";
+        std::ofstream(path) << text;
+        return path.string();
+    }
+    fs::path folder_;
+};
+
+TEST_F(BadStudyFile, IsRefusedWithExitCodeTwoAndThePlaceOfTheProblem) {
+    std::ifstream in(fs::path(SW_SOURCE_DIR) / "samples" / "pump-flow-calibration.json");
+    Json study = Json::parse(in);
+    study["methods"][3]["options"]["initial_radius"] = -1;
+    const Outcome outcome = runSaddlewise("run " + quoted(write(study.dump())), true);
+    EXPECT_EQ(outcome.exitCode, 2);
+    EXPECT_NE(outcome.out.find("methods[3].options.initial_radius: must be > 0 (got -1)"), std::string::npos)
+        << outcome.out;
+}
+
+TEST_F(BadStudyFile, ANewerFormatVersionIsRefused) {
+    std::ifstream in(fs::path(SW_SOURCE_DIR) / "samples" / "two-valve-saddles.json");
+    Json study = Json::parse(in);
+    study["version"] = 2;
+    const Outcome outcome = runSaddlewise("run " + quoted(write(study.dump())), true);
+    EXPECT_EQ(outcome.exitCode, 2);
+    EXPECT_NE(outcome.out.find("version: this file is format version 2"), std::string::npos) << outcome.out;
+}
+
+TEST_F(BadStudyFile, AMissingFileOrNoArgumentIsBadUsage) {
+    EXPECT_EQ(runSaddlewise("run " + quoted((folder_ / "absent.json").string())).exitCode, 2);
+    EXPECT_EQ(runSaddlewise("run").exitCode, 2);
+    EXPECT_EQ(runSaddlewise("run a.json b.json").exitCode, 2);
+}
+
+TEST_F(BadStudyFile, AStudyWithNothingEnabledSaysSo) {
+    std::ifstream in(fs::path(SW_SOURCE_DIR) / "samples" / "two-valve-saddles.json");
+    Json study = Json::parse(in);
+    for (Json& entry : study["methods"]) entry["enabled"] = false;
+    const Outcome outcome = runSaddlewise("run " + quoted(write(study.dump())), true);
+    EXPECT_EQ(outcome.exitCode, 2);
+    EXPECT_NE(outcome.out.find("no enabled methods"), std::string::npos) << outcome.out;
+}
+
+}  // namespace
