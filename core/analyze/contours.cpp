@@ -11,8 +11,12 @@
 // repeats its first point at the end, so it draws as a closed curve.
 #include "core/analyze/analyze.h"
 
+#include <algorithm>
 #include <array>
+#include <atomic>
 #include <cmath>
+#include <limits>
+#include <thread>
 
 namespace sw::analyze {
 
@@ -22,16 +26,21 @@ namespace {
 // H + j*nx + i, where H = (nx-1)*ny is the number of horizontal edges.
 class Tracer {
 public:
-    Tracer(const Field& field)
+    // cellLow/cellHigh: per cell, the smallest and largest corner (+inf/-inf when a corner is
+    // not finite), shared by every level so most cells are passed over with two comparisons.
+    Tracer(const Field& field, const std::vector<double>& cellLow, const std::vector<double>& cellHigh)
         : field_(field), nx_(field.nx), ny_(field.ny), horizontalEdges_(static_cast<long>(nx_ - 1) * ny_),
           firstSegment_(horizontalEdges_ + static_cast<long>(nx_) * (ny_ - 1), -1),
-          secondSegment_(firstSegment_.size(), -1) {}
+          secondSegment_(firstSegment_.size(), -1), cellLow_(cellLow), cellHigh_(cellHigh) {}
 
     ContourSet trace(double level) {
         level_ = level;
         segments_.clear();
-        for (int j = 0; j + 1 < ny_; ++j)
-            for (int i = 0; i + 1 < nx_; ++i) cell(i, j);
+        for (int j = 0; j + 1 < ny_; ++j) {
+            const std::size_t row = static_cast<std::size_t>(j) * (nx_ - 1);
+            for (int i = 0; i + 1 < nx_; ++i)
+                if (cellHigh_[row + i] >= level && cellLow_[row + i] < level) cell(i, j);
+        }
         ContourSet set;
         set.level = level;
         join(set);
@@ -152,6 +161,8 @@ private:
     long horizontalEdges_;
     std::vector<int> firstSegment_, secondSegment_;  // the (at most two) segments through each edge point
     std::vector<std::array<long, 2>> segments_;
+    const std::vector<double>& cellLow_;
+    const std::vector<double>& cellHigh_;
     double level_ = 0;
 };
 
@@ -162,12 +173,39 @@ std::vector<ContourSet> contourLines(const Field& field, const std::vector<doubl
     if (field.nx < 2 || field.ny < 2 ||
         field.values.size() != static_cast<std::size_t>(field.nx) * static_cast<std::size_t>(field.ny))
         return sets;
-    Tracer tracer(field);
-    sets.reserve(levels.size());
-    for (double level : levels) {
-        if (!std::isfinite(level)) continue;
-        sets.push_back(tracer.trace(level));
-    }
+    std::vector<double> finiteLevels;
+    for (double level : levels)
+        if (std::isfinite(level)) finiteLevels.push_back(level);
+    if (finiteLevels.empty()) return sets;
+
+    const int nx = field.nx, ny = field.ny;
+    const double inf = std::numeric_limits<double>::infinity();
+    std::vector<double> cellLow(static_cast<std::size_t>(nx - 1) * (ny - 1)), cellHigh(cellLow.size());
+    for (int j = 0; j + 1 < ny; ++j)
+        for (int i = 0; i + 1 < nx; ++i) {
+            const double a = field.at(i, j), b = field.at(i + 1, j), c = field.at(i, j + 1), d = field.at(i + 1, j + 1);
+            const std::size_t k = static_cast<std::size_t>(j) * (nx - 1) + i;
+            const bool finite = std::isfinite(a) && std::isfinite(b) && std::isfinite(c) && std::isfinite(d);
+            cellLow[k] = finite ? std::min(std::min(a, b), std::min(c, d)) : inf;
+            cellHigh[k] = finite ? std::max(std::max(a, b), std::max(c, d)) : -inf;
+        }
+
+    // Levels are independent: trace them on every hardware thread, each with its own tracer.
+    sets.resize(finiteLevels.size());
+    const unsigned hardware = std::max(1u, std::thread::hardware_concurrency());
+    const long cells = static_cast<long>(cellLow.size()) * static_cast<long>(finiteLevels.size());
+    const unsigned workers =
+        cells < 200000 ? 1u : std::min<unsigned>(hardware, static_cast<unsigned>(finiteLevels.size()));
+    std::atomic<std::size_t> next{0};
+    auto work = [&]() {
+        Tracer tracer(field, cellLow, cellHigh);
+        for (std::size_t k = next.fetch_add(1); k < finiteLevels.size(); k = next.fetch_add(1))
+            sets[k] = tracer.trace(finiteLevels[k]);
+    };
+    std::vector<std::thread> threads;
+    for (unsigned t = 1; t < workers; ++t) threads.emplace_back(work);
+    work();
+    for (std::thread& t : threads) t.join();
     return sets;
 }
 
