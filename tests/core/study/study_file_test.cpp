@@ -202,3 +202,24 @@ TEST(DataFitStudy, MovingTheStudyKeepsTheDataPathPointingAtTheSameFile) {
 
 }  // namespace
 }  // namespace sw::study
+
+namespace sw::study {
+namespace {
+
+TEST(Samples, EveryBundledSampleLoadsAndRoundTripsExactly) {
+    int count = 0;
+    for (const auto& entry : fs::directory_iterator(fs::path(SW_SOURCE_DIR) / "samples")) {
+        if (entry.path().extension() != ".json") continue;
+        SCOPED_TRACE(entry.path().filename().string());
+        ++count;
+        const Study study = loadFile(entry.path().string());
+        EXPECT_FALSE(study.title.empty());
+        const Study again = fromJson(toJson(study), directoryOf(entry.path().string()));
+        EXPECT_EQ(again, study);
+        EXPECT_NO_THROW(makeObjective(study, directoryOf(entry.path().string())));
+    }
+    EXPECT_GE(count, 3);
+}
+
+}  // namespace
+}  // namespace sw::study
