@@ -10,6 +10,8 @@ namespace sw::window {
 // reference to it. Only one step job touches a session at a time (stepBusy_).
 struct JobRunner::StepSession {
     std::shared_ptr<const Objective> objective;
+    Vector start;
+    std::vector<RunEntry> entries;
     std::vector<std::unique_ptr<solve::Solver>> solvers;  // null where the input was rejected
     std::vector<std::shared_ptr<const solve::Run>> rejected;
     bool finished = false;
@@ -77,6 +79,8 @@ void JobRunner::runAll(const RunRequest& request) {
         auto batch = std::make_shared<RunBatch>();
         batch->generation = generation;
         batch->objective = request.objective;
+        batch->start = request.start;
+        batch->entries = request.entries;
         const double entryCount = std::max<std::size_t>(1, request.entries.size());
         double lastReport = -1;
         for (std::size_t i = 0; i < request.entries.size(); ++i) {
@@ -116,12 +120,16 @@ void JobRunner::beginSteps(const RunRequest& request) {
     CancelFlag cancelled = startGeneration(Runs, generation);
     auto session = std::make_shared<StepSession>();
     session->objective = request.objective;
+    session->start = request.start;
+    session->entries = request.entries;
     session_ = session;
     stepBusy_ = true;
     launch(Runs, [this, request, generation, cancelled, session] {
         auto batch = std::make_shared<RunBatch>();
         batch->generation = generation;
         batch->objective = request.objective;
+        batch->start = request.start;
+        batch->entries = request.entries;
         batch->stepping = true;
         bool allFinished = true;
         for (const RunEntry& entry : request.entries) {
@@ -164,6 +172,8 @@ bool JobRunner::stepAll() {
         auto batch = std::make_shared<RunBatch>();
         batch->generation = generation;
         batch->objective = session->objective;
+        batch->start = session->start;
+        batch->entries = session->entries;
         batch->stepping = true;
         bool allFinished = true;
         for (std::size_t i = 0; i < session->solvers.size(); ++i) {
@@ -175,6 +185,7 @@ bool JobRunner::stepAll() {
             if (!cancelled->load() && !solver->finished()) solver->step();
             allFinished = allFinished && solver->finished();
             auto run = std::make_shared<solve::Run>(solver->run());
+            run->label = session->entries[i].label;
             batch->runs.push_back(run);
         }
         session->finished = allFinished;

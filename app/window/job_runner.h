@@ -27,6 +27,10 @@ struct RunEntry {
     std::string label;
     std::string methodId;
     solve::OptionValues options;
+    // How the entry is drawn; carried through so results and looks always match.
+    QColor colour;
+    widgets::Marker marker = widgets::Marker::Circle;
+    bool usesTrustRegion = false;
 };
 
 struct RunRequest {
@@ -41,6 +45,8 @@ struct RunRequest {
 struct RunBatch {
     quint64 generation = 0;
     std::shared_ptr<const Objective> objective;
+    Vector start;
+    std::vector<RunEntry> entries;
     std::vector<std::shared_ptr<const solve::Run>> runs;
     bool stepping = false;   // produced by single steps (runs may still be going)
     bool allFinished = false;

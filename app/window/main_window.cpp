@@ -1,0 +1,1033 @@
+// expr.h first: its Program::Workspace has a member named `slots`, which Qt defines as a macro.
+#include "core/expr/expr.h"
+
+#include "app/window/main_window.h"
+
+#include "app/window/lineup_editor.h"
+#include "app/window/objective_editor.h"
+#include "core/solve/solver.h"
+#include "widgets/curvature_view.h"
+#include "widgets/landscape_view.h"
+#include "widgets/local_model_view.h"
+#include "widgets/progress_view.h"
+#include "widgets/slice_view.h"
+#include "widgets/steps_table.h"
+#include "widgets/theme.h"
+
+#include <QAction>
+#include <QApplication>
+#include <QCloseEvent>
+#include <QComboBox>
+#include <QCoreApplication>
+#include <QDialog>
+#include <QDialogButtonBox>
+#include <QDir>
+#include <QDockWidget>
+#include <QElapsedTimer>
+#include <QFileDialog>
+#include <QFileInfo>
+#include <QFormLayout>
+#include <QHBoxLayout>
+#include <QLabel>
+#include <QLineEdit>
+#include <QMenuBar>
+#include <QMessageBox>
+#include <QProgressBar>
+#include <QPushButton>
+#include <QSaveFile>
+#include <QSettings>
+#include <QSpinBox>
+#include <QStatusBar>
+#include <QThread>
+#include <QToolBar>
+#include <QToolButton>
+#include <algorithm>
+#include <cmath>
+
+namespace sw::window {
+
+namespace {
+
+constexpr int kMaxRecentFiles = 8;
+
+QString settingsGroup() { return QStringLiteral("window"); }
+
+// A small formula study so the window opens on something meaningful without a file.
+study::Study defaultStudy() {
+    study::Study s;
+    s.title = "Untitled";
+    s.formula = "(x - 1)^2 + 8*(y - x^2)^2";
+    s.variables = {{"x", -1.0, -2.0, 2.0}, {"y", 1.5, -1.0, 3.0}};
+    const char* ids[] = {"gradient-descent", "newton", "bfgs", "trust-region-dogleg"};
+    int i = 0;
+    for (const char* id : ids) {
+        if (!solve::findMethod(id)) continue;
+        study::MethodEntry e;
+        e.method = id;
+        e.label = id;
+        e.colour = widgets::lineupColour(i).name().toStdString();
+        e.marker = widgets::markerName(widgets::lineupMarker(i)).toStdString();
+        s.methods.push_back(e);
+        ++i;
+    }
+    return s;
+}
+
+QString humanNumber(double v) { return QString::number(v, 'g', 4); }
+
+}  // namespace
+
+MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
+    setObjectName("SaddlewiseMainWindow");
+    jobs_ = new JobRunner(this);
+    createViews();
+    createDocks();
+    createActions();
+    createMenus();
+    createToolBars();
+    createStatusBar();
+    defaultLayout_ = saveState();
+
+    connect(jobs_, &JobRunner::runsReady, this, &MainWindow::showRuns);
+    connect(jobs_, &JobRunner::fieldReady, this,
+            [this](std::shared_ptr<const widgets::FieldSnapshot> f, quint64) { showField(std::move(f)); });
+    connect(jobs_, &JobRunner::progress, this, &MainWindow::onJobProgress);
+    connect(jobs_, &JobRunner::jobStarted, this, &MainWindow::onJobStateChanged);
+    connect(jobs_, &JobRunner::jobEnded, this, &MainWindow::onJobStateChanged);
+
+    animation_.setInterval(200);
+    connect(&animation_, &QTimer::timeout, this, &MainWindow::animationTick);
+    heldResample_.setSingleShot(true);
+    heldResample_.setInterval(60);
+    connect(&heldResample_, &QTimer::timeout, this, &MainWindow::requestField);
+
+    readSettings();
+    newStudy();
+}
+
+MainWindow::~MainWindow() { jobs_->cancelAll(); }
+
+// ---------------------------------------------------------------- views and docks
+
+void MainWindow::createViews() {
+    landscape_ = new widgets::LandscapeView(this);
+    localModel_ = new widgets::LocalModelView(this);
+    curvature_ = new widgets::CurvatureView(this);
+    progress_ = new widgets::ProgressView(this);
+    slice_ = new widgets::SliceView(this);
+    steps_ = new widgets::StepsTable(this);
+    objectiveEditor_ = new ObjectiveEditor(this);
+    lineupEditor_ = new LineupEditor(this);
+
+    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
+                                    static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
+                                    static_cast<widgets::PlotView*>(slice_)})
+        connect(view, &widgets::PlotView::selectionRequested, this, &MainWindow::setSelection);
+    connect(steps_, &widgets::StepsTable::selectionRequested, this, &MainWindow::setSelection);
+    connect(landscape_, &widgets::LandscapeView::startMoved, this, &MainWindow::moveStart);
+    connect(landscape_, &widgets::LandscapeView::startPlaced, this, &MainWindow::moveStart);
+    connect(landscape_, &widgets::LandscapeView::viewBoxChanged, this, &MainWindow::setViewBox);
+    connect(landscape_, &widgets::LandscapeView::logColourChanged, this, [this](bool on) {
+        if (study_.view.logColour == on) return;
+        study_.view.logColour = on;
+        setModified(true);
+    });
+    connect(objectiveEditor_, &ObjectiveEditor::edited, this, &MainWindow::rebuildObjective);
+    connect(objectiveEditor_, &ObjectiveEditor::plotAxesChanged, this, &MainWindow::onPlotAxesChanged);
+    connect(lineupEditor_, &LineupEditor::edited, this, &MainWindow::onLineupEdited);
+}
+
+void MainWindow::createDocks() {
+    setDockNestingEnabled(true);
+    setDockOptions(QMainWindow::AnimatedDocks | QMainWindow::AllowNestedDocks | QMainWindow::AllowTabbedDocks);
+    auto makeDock = [this](const QString& name, const QString& title, QWidget* content, const QString& tip) {
+        auto* dock = new QDockWidget(title, this);
+        dock->setObjectName(name);
+        dock->setWidget(content);
+        dock->setToolTip(tip);
+        dock->toggleViewAction()->setToolTip(tr("Show or hide the %1 panel").arg(title));
+        docks_[name] = dock;
+        return dock;
+    };
+    QDockWidget* objective = makeDock("objective", tr("Objective"), objectiveEditor_,
+                                      tr("The function to minimise, its variables and its exact derivatives"));
+    QDockWidget* lineup = makeDock("lineup", tr("Methods"), lineupEditor_, tr("The methods run side by side"));
+    QDockWidget* landscape = makeDock("landscape", tr("Landscape"), landscape_,
+                                      tr("The objective over two variables, with every method's path; drag the start"));
+    QDockWidget* local = makeDock("local-model", tr("Local model"), localModel_,
+                                  tr("The quadratic model at the selected iterate over the true contours"));
+    QDockWidget* curvature = makeDock("curvature", tr("Curvature"), curvature_,
+                                      tr("Hessian eigenvalues and condition number along each path"));
+    QDockWidget* progress = makeDock("progress", tr("Progress"), progress_,
+                                     tr("Distance to the best value and gradient length per iteration"));
+    QDockWidget* slice = makeDock("slice", tr("Slice"), slice_,
+                                  tr("The objective along the selected step, with the line-search trials"));
+    QDockWidget* steps = makeDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
+
+    // No central widget: every view is a dock the user may move, stack or float.
+    setCentralWidget(nullptr);
+    addDockWidget(Qt::LeftDockWidgetArea, objective);
+    splitDockWidget(objective, lineup, Qt::Vertical);
+    addDockWidget(Qt::RightDockWidgetArea, landscape);
+    splitDockWidget(landscape, local, Qt::Horizontal);
+    splitDockWidget(landscape, steps, Qt::Vertical);
+    splitDockWidget(local, progress, Qt::Vertical);
+    tabifyDockWidget(progress, curvature);
+    tabifyDockWidget(curvature, slice);
+    progress->raise();
+    resizeDocks({objective, landscape, local}, {330, 640, 430}, Qt::Horizontal);
+    resizeDocks({landscape, steps}, {600, 260}, Qt::Vertical);
+    resizeDocks({objective, lineup}, {480, 380}, Qt::Vertical);
+}
+
+// ---------------------------------------------------------------- actions
+
+QAction* MainWindow::action(const QString& name) const {
+    auto it = actions_.find(name);
+    return it == actions_.end() ? nullptr : it->second;
+}
+
+void MainWindow::createActions() {
+    auto make = [this](const QString& name, const QString& text, const QString& tip, const QKeySequence& key,
+                       QStyle::StandardPixmap icon = QStyle::SP_CustomBase) {
+        auto* a = new QAction(text, this);
+        a->setObjectName(name);
+        a->setStatusTip(tip);
+        a->setToolTip(key.isEmpty() ? tip : QStringLiteral("%1 (%2)").arg(tip, key.toString(QKeySequence::NativeText)));
+        if (!key.isEmpty()) a->setShortcut(key);
+        if (icon != QStyle::SP_CustomBase) a->setIcon(style()->standardIcon(icon));
+        actions_[name] = a;
+        return a;
+    };
+    connect(make("new", tr("&New"), tr("Start a new study with a small example formula"), QKeySequence::New,
+                 QStyle::SP_FileIcon),
+            &QAction::triggered, this, [this] {
+                if (maybeSave()) newStudy();
+            });
+    connect(make("open", tr("&Open…"), tr("Open a study file"), QKeySequence::Open, QStyle::SP_DialogOpenButton),
+            &QAction::triggered, this, &MainWindow::openDialog);
+    connect(make("save", tr("&Save"), tr("Save the study"), QKeySequence::Save, QStyle::SP_DialogSaveButton),
+            &QAction::triggered, this, &MainWindow::save);
+    connect(make("save-as", tr("Save &As…"), tr("Save the study under a new name"), QKeySequence::SaveAs),
+            &QAction::triggered, this, &MainWindow::saveAsDialog);
+    connect(make("quit", tr("&Quit"), tr("Close the window"), QKeySequence::Quit), &QAction::triggered, this,
+            &QWidget::close);
+
+    connect(make("run-all", tr("&Run all"), tr("Run every enabled method to the end"), QKeySequence(Qt::CTRL | Qt::Key_R),
+                 QStyle::SP_MediaSeekForward),
+            &QAction::triggered, this, &MainWindow::runAll);
+    connect(make("step-all", tr("&Step all"), tr("Advance every method by one iteration"), QKeySequence(Qt::Key_F10),
+                 QStyle::SP_MediaSkipForward),
+            &QAction::triggered, this, &MainWindow::stepAll);
+    QAction* play = make("play", tr("&Play"), tr("Animate: step every method at the chosen speed"),
+                         QKeySequence(Qt::Key_F5), QStyle::SP_MediaPlay);
+    play->setCheckable(true);
+    connect(play, &QAction::toggled, this, &MainWindow::setPlaying);
+    connect(make("reset", tr("R&eset"), tr("Back to the start: every method at its first iterate"),
+                 QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_R), QStyle::SP_MediaSkipBackward),
+            &QAction::triggered, this, &MainWindow::resetRuns);
+    connect(make("cancel", tr("&Cancel jobs"), tr("Stop the running computations"), QKeySequence(Qt::Key_Escape),
+                 QStyle::SP_BrowserStop),
+            &QAction::triggered, this, &MainWindow::cancelJobs);
+
+    connect(make("export-view", tr("&Export view…"), tr("Save a view as PNG, SVG or PDF at a chosen size"),
+                 QKeySequence(Qt::CTRL | Qt::Key_E)),
+            &QAction::triggered, this, &MainWindow::exportViewDialog);
+    connect(make("export-steps", tr("Export steps as &CSV…"), tr("Save every method's iterations as a CSV table"),
+                 QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_E)),
+            &QAction::triggered, this, &MainWindow::exportStepsDialog);
+    connect(make("reset-layout", tr("Reset &layout"), tr("Put every panel back where it started"), QKeySequence()),
+            &QAction::triggered, this, &MainWindow::resetLayout);
+    connect(make("about", tr("&About Saddlewise"), tr("What this program is"), QKeySequence::HelpContents),
+            &QAction::triggered, this, &MainWindow::about);
+}
+
+void MainWindow::createMenus() {
+    QMenu* file = menuBar()->addMenu(tr("&File"));
+    file->addAction(action("new"));
+    file->addAction(action("open"));
+    recentMenu_ = file->addMenu(tr("Open &recent"));
+    recentMenu_->setToolTipsVisible(true);
+    samplesMenu_ = file->addMenu(tr("Sa&mples"));
+    samplesMenu_->setToolTipsVisible(true);
+    file->addAction(action("save"));
+    file->addAction(action("save-as"));
+    file->addSeparator();
+    file->addAction(action("export-view"));
+    file->addAction(action("export-steps"));
+    file->addSeparator();
+    file->addAction(action("quit"));
+
+    QMenu* run = menuBar()->addMenu(tr("&Run"));
+    for (const char* name : {"run-all", "step-all", "play", "reset", "cancel"}) run->addAction(action(name));
+
+    viewMenu_ = menuBar()->addMenu(tr("&View"));
+    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps"})
+        viewMenu_->addAction(docks_[name]->toggleViewAction());
+    viewMenu_->addSeparator();
+    viewMenu_->addAction(action("reset-layout"));
+
+    QMenu* help = menuBar()->addMenu(tr("&Help"));
+    help->addAction(action("about"));
+    for (QMenu* m : {file, run, viewMenu_, help}) m->setToolTipsVisible(true);
+    updateSamplesMenu();
+}
+
+void MainWindow::createToolBars() {
+    QToolBar* bar = addToolBar(tr("Run"));
+    bar->setObjectName("run-toolbar");
+    bar->setToolTip(tr("Running the methods"));
+    bar->setToolButtonStyle(Qt::ToolButtonTextBesideIcon);
+    bar->addAction(action("open"));
+    bar->addAction(action("save"));
+    bar->addSeparator();
+    for (const char* name : {"run-all", "step-all", "play", "reset"}) bar->addAction(action(name));
+    auto* speedLabel = new QLabel(tr(" Speed "), bar);
+    speed_ = new QSpinBox(bar);
+    speed_->setRange(1, 60);
+    speed_->setValue(5);
+    speed_->setSuffix(tr(" steps/s"));
+    speed_->setToolTip(tr("How many iterations per second the animation shows"));
+    speedLabel->setToolTip(speed_->toolTip());
+    connect(speed_, &QSpinBox::valueChanged, this, [this](int perSecond) { animation_.setInterval(1000 / perSecond); });
+    bar->addWidget(speedLabel);
+    bar->addWidget(speed_);
+    bar->addSeparator();
+    bar->addAction(action("export-view"));
+}
+
+void MainWindow::createStatusBar() {
+    statusSummary_ = new QLabel(this);
+    statusSummary_->setToolTip(tr("Summary of the last run"));
+    statusProgress_ = new QProgressBar(this);
+    statusProgress_->setRange(0, 100);
+    statusProgress_->setMaximumWidth(160);
+    statusProgress_->setToolTip(tr("Progress of the running computation"));
+    statusProgress_->setVisible(false);
+    statusCancel_ = new QToolButton(this);
+    statusCancel_->setDefaultAction(action("cancel"));
+    statusCancel_->setVisible(false);
+    statusBar()->addWidget(statusSummary_, 1);
+    statusBar()->addPermanentWidget(statusProgress_);
+    statusBar()->addPermanentWidget(statusCancel_);
+}
+
+// ---------------------------------------------------------------- settings
+
+void MainWindow::readSettings() {
+    QSettings settings;
+    settings.beginGroup(settingsGroup());
+    const QByteArray geometry = settings.value("geometry").toByteArray();
+    if (geometry.isEmpty())
+        resize(1500, 940);
+    else
+        restoreGeometry(geometry);
+    const QByteArray state = settings.value("layout").toByteArray();
+    if (!state.isEmpty()) restoreState(state);
+    speed_->setValue(settings.value("animation-speed", 5).toInt());
+    settings.endGroup();
+    updateRecentMenu();
+}
+
+void MainWindow::writeSettings() {
+    QSettings settings;
+    settings.beginGroup(settingsGroup());
+    settings.setValue("geometry", saveGeometry());
+    settings.setValue("layout", saveState());
+    settings.setValue("animation-speed", speed_->value());
+    settings.endGroup();
+}
+
+void MainWindow::resetLayout() {
+    for (auto& [name, dock] : docks_) {
+        dock->setFloating(false);
+        dock->show();
+    }
+    restoreState(defaultLayout_);
+}
+
+void MainWindow::addRecentFile(const QString& path) {
+    QSettings settings;
+    QStringList files = settings.value("recent-files").toStringList();
+    const QString absolute = QFileInfo(path).absoluteFilePath();
+    files.removeAll(absolute);
+    files.prepend(absolute);
+    while (files.size() > kMaxRecentFiles) files.removeLast();
+    settings.setValue("recent-files", files);
+    updateRecentMenu();
+}
+
+void MainWindow::updateRecentMenu() {
+    recentMenu_->clear();
+    const QStringList files = QSettings().value("recent-files").toStringList();
+    for (const QString& file : files) {
+        QAction* a = recentMenu_->addAction(QFileInfo(file).fileName());
+        a->setToolTip(file);
+        a->setStatusTip(file);
+        connect(a, &QAction::triggered, this, [this, file] {
+            if (!maybeSave()) return;
+            QString error;
+            if (!openStudy(file, &error)) QMessageBox::warning(this, tr("Cannot open study"), error);
+        });
+    }
+    recentMenu_->setEnabled(!files.isEmpty());
+}
+
+QStringList MainWindow::sampleFiles() {
+    QStringList dirs;
+    const QString env = qEnvironmentVariable("SADDLEWISE_SAMPLES");
+    if (!env.isEmpty()) dirs << env;
+    dirs << QCoreApplication::applicationDirPath() + "/../share/saddlewise/samples";
+#ifdef SW_SAMPLES_DIR
+    dirs << QStringLiteral(SW_SAMPLES_DIR);
+#endif
+    QStringList files;
+    for (const QString& dir : dirs) {
+        const QFileInfoList found = QDir(dir).entryInfoList({"*.json"}, QDir::Files, QDir::Name);
+        for (const QFileInfo& f : found) files << f.absoluteFilePath();
+        if (!files.isEmpty()) break;  // the first folder with samples wins
+    }
+    return files;
+}
+
+void MainWindow::updateSamplesMenu() {
+    samplesMenu_->clear();
+    for (const QString& file : sampleFiles()) {
+        QString title = QFileInfo(file).completeBaseName();
+        QString tip = file;
+        try {
+            const study::Study s = study::loadFile(file.toStdString());
+            if (!s.title.empty()) title = QString::fromStdString(s.title);
+            if (!s.notes.empty()) tip = QString::fromStdString(s.notes);
+        } catch (const std::exception&) {
+            // Listed anyway: opening it shows the problem with its place.
+        }
+        QAction* a = samplesMenu_->addAction(title);
+        a->setToolTip(tip);
+        a->setStatusTip(QFileInfo(file).fileName());
+        connect(a, &QAction::triggered, this, [this, file] {
+            if (!maybeSave()) return;
+            QString error;
+            if (!openStudy(file, &error)) QMessageBox::warning(this, tr("Cannot open sample"), error);
+        });
+    }
+    if (samplesMenu_->isEmpty()) samplesMenu_->addAction(tr("(no samples found)"))->setEnabled(false);
+}
+
+// ---------------------------------------------------------------- document
+
+void MainWindow::newStudy() {
+    study_ = defaultStudy();
+    studyPath_.clear();
+    baseDirectory_ = QDir::currentPath();
+    loading_ = true;
+    objectiveEditor_->setStudy(study_, baseDirectory_);
+    lineupEditor_->setEntries(study_.methods);
+    loading_ = false;
+    hasViewBox_ = false;
+    selection_ = {};
+    objective_.reset();
+    rebuildObjective();
+    setModified(false);
+}
+
+bool MainWindow::openStudy(const QString& path, QString* error) {
+    study::Study loaded;
+    try {
+        loaded = study::loadFile(path.toStdString());
+    } catch (const study::StudyError& e) {
+        if (error) *error = QStringLiteral("%1: %2: %3").arg(path, QString::fromStdString(e.place()), QString::fromStdString(e.problem()));
+        return false;
+    } catch (const std::exception& e) {
+        if (error) *error = QStringLiteral("%1: %2").arg(path, QString::fromUtf8(e.what()));
+        return false;
+    }
+    jobs_->cancelAll();
+    setPlaying(false);
+    study_ = loaded;
+    studyPath_ = QFileInfo(path).absoluteFilePath();
+    baseDirectory_ = QFileInfo(path).absolutePath();
+    loading_ = true;
+    objectiveEditor_->setStudy(study_, baseDirectory_);
+    lineupEditor_->setEntries(study_.methods);
+    landscape_->setLogColour(study_.view.logColour);
+    loading_ = false;
+    hasViewBox_ = false;
+    selection_ = {};
+    objective_.reset();
+    rebuildObjective();
+    setModified(false);
+    addRecentFile(studyPath_);
+    return true;
+}
+
+bool MainWindow::saveStudy(const QString& path, QString* error) {
+    study::Study toSave = study_;
+    // A data file is referenced relative to the study: re-base it when saving elsewhere.
+    if (toSave.fit && !toSave.fit->dataPath.empty()) {
+        const QString absolute = QDir(baseDirectory_).absoluteFilePath(QString::fromStdString(toSave.fit->dataPath));
+        toSave.fit->dataPath = QFileInfo(path).absoluteDir().relativeFilePath(absolute).toStdString();
+    }
+    std::string text;
+    try {
+        text = study::toJson(toSave);
+    } catch (const std::exception& e) {
+        if (error) *error = QString::fromUtf8(e.what());
+        return false;
+    }
+    QSaveFile file(path);
+    if (!file.open(QIODevice::WriteOnly) || file.write(text.data(), static_cast<qint64>(text.size())) < 0 ||
+        !file.commit()) {
+        if (error) *error = tr("Cannot write %1: %2").arg(path, file.errorString());
+        return false;
+    }
+    study_ = toSave;
+    studyPath_ = QFileInfo(path).absoluteFilePath();
+    baseDirectory_ = QFileInfo(path).absolutePath();
+    setModified(false);
+    addRecentFile(studyPath_);
+    return true;
+}
+
+void MainWindow::openDialog() {
+    if (!maybeSave()) return;
+    const QString dir = studyPath_.isEmpty() ? QDir::homePath() : QFileInfo(studyPath_).absolutePath();
+    const QString path =
+        QFileDialog::getOpenFileName(this, tr("Open study"), dir, tr("Saddlewise studies (*.json);;All files (*)"));
+    if (path.isEmpty()) return;
+    QString error;
+    if (!openStudy(path, &error)) QMessageBox::warning(this, tr("Cannot open study"), error);
+}
+
+bool MainWindow::save() {
+    if (studyPath_.isEmpty()) return saveAsDialog();
+    QString error;
+    if (!saveStudy(studyPath_, &error)) {
+        QMessageBox::warning(this, tr("Cannot save study"), error);
+        return false;
+    }
+    statusBar()->showMessage(tr("Saved %1").arg(studyPath_), 4000);
+    return true;
+}
+
+bool MainWindow::saveAsDialog() {
+    const QString suggested = studyPath_.isEmpty() ? QDir::home().filePath("study.json") : studyPath_;
+    QString path = QFileDialog::getSaveFileName(this, tr("Save study"), suggested, tr("Saddlewise studies (*.json)"));
+    if (path.isEmpty()) return false;
+    if (QFileInfo(path).suffix().isEmpty()) path += ".json";
+    QString error;
+    if (!saveStudy(path, &error)) {
+        QMessageBox::warning(this, tr("Cannot save study"), error);
+        return false;
+    }
+    return true;
+}
+
+bool MainWindow::maybeSave() {
+    if (!modified_) return true;
+    const auto answer = QMessageBox::warning(this, tr("Unsaved changes"),
+                                             tr("The study has changes that are not saved. Save them?"),
+                                             QMessageBox::Save | QMessageBox::Discard | QMessageBox::Cancel);
+    if (answer == QMessageBox::Save) return save();
+    return answer == QMessageBox::Discard;
+}
+
+void MainWindow::closeEvent(QCloseEvent* event) {
+    if (maybeSave()) {
+        writeSettings();
+        jobs_->cancelAll();
+        event->accept();
+    } else {
+        event->ignore();
+    }
+}
+
+void MainWindow::setModified(bool modified) {
+    modified_ = modified;
+    updateTitle();
+}
+
+void MainWindow::updateTitle() {
+    const QString name = studyPath_.isEmpty() ? tr("Untitled") : QFileInfo(studyPath_).fileName();
+    setWindowTitle(QStringLiteral("%1%2 — Saddlewise").arg(name, modified_ ? "*" : ""));
+}
+
+void MainWindow::about() {
+    QMessageBox::about(this, tr("About Saddlewise"),
+                       tr("<b>Saddlewise</b> %1<br>A workbench for watching optimization methods step across an "
+                          "objective: exact gradients and Hessians, paths side by side, the local quadratic model "
+                          "and the Hessian's eigenvalues at every iterate.")
+                           .arg(QCoreApplication::applicationVersion()));
+}
+
+// ---------------------------------------------------------------- objective, lineup, runs
+
+void MainWindow::rebuildObjective() {
+    if (loading_) return;
+    study::Study candidate = study_;
+    objectiveEditor_->apply(candidate);
+    candidate.methods = lineupEditor_->entries();
+    std::shared_ptr<const Objective> built;
+    try {
+        built = study::makeObjective(candidate, baseDirectory_.toStdString());
+    } catch (const expr::FormulaError& e) {
+        objectiveEditor_->showFormulaError(QString::fromStdString(e.reason()), e.position());
+        return;  // the last good objective and its results stay on screen
+    } catch (const study::StudyError& e) {
+        objectiveEditor_->showProblem(QStringLiteral("%1: %2").arg(QString::fromStdString(e.place()),
+                                                                    QString::fromStdString(e.problem())));
+        return;
+    } catch (const std::exception& e) {
+        objectiveEditor_->showProblem(QString::fromUtf8(e.what()));
+        return;
+    }
+    if (!built) {
+        objectiveEditor_->showProblem(tr("This objective cannot be built"));
+        return;
+    }
+    objectiveEditor_->clearProblem();
+    const bool changed = objective_ != nullptr;
+    const bool sameRanges = objective_ && study_.variables.size() == candidate.variables.size() &&
+                            std::equal(study_.variables.begin(), study_.variables.end(), candidate.variables.begin(),
+                                       [](const study::Variable& a, const study::Variable& b) {
+                                           return a.lower == b.lower && a.upper == b.upper;
+                                       });
+    if (!sameRanges) hasViewBox_ = false;
+    study_ = candidate;
+    objective_ = built;
+    objectiveEditor_->showDerivatives(study_);
+    if (changed) setModified(true);
+    restart();
+}
+
+void MainWindow::onLineupEdited() {
+    if (loading_) return;
+    study_.methods = lineupEditor_->entries();
+    setModified(true);
+    if (objective_) {
+        jobs_->endStepSession();
+        runAll();
+    }
+}
+
+void MainWindow::onPlotAxesChanged() {
+    if (loading_) return;
+    objectiveEditor_->apply(study_);
+    hasViewBox_ = false;
+    setModified(true);
+    if (snapshot_) {
+        auto copy = std::make_shared<widgets::Snapshot>(*snapshot_);
+        copy->plotX = study_.view.plotX;
+        copy->plotY = study_.view.plotY;
+        pushSnapshot(copy);
+    }
+    requestField();
+}
+
+void MainWindow::restart() {
+    if (!objective_) return;
+    setPlaying(false);
+    requestField();
+    runAll();
+}
+
+Vector MainWindow::start() const {
+    Vector x(static_cast<Eigen::Index>(study_.variables.size()));
+    for (std::size_t i = 0; i < study_.variables.size(); ++i) x(static_cast<Eigen::Index>(i)) = study_.variables[i].start;
+    return x;
+}
+
+RunRequest MainWindow::runRequest() const {
+    RunRequest request;
+    request.objective = objective_;
+    request.start = start();
+    request.rules.maxIterations = study_.maxIterations;
+    request.rules.gradientTolerance = study_.gradientTolerance;
+    int index = 0;
+    for (const auto& e : study_.methods) {
+        const int slot = index++;
+        if (!e.enabled) continue;
+        RunEntry entry;
+        entry.label = e.label;
+        entry.methodId = e.method;
+        entry.options = e.options;
+        entry.colour = QColor(QString::fromStdString(e.colour));
+        if (!entry.colour.isValid()) entry.colour = widgets::lineupColour(slot);
+        bool ok = false;
+        entry.marker = widgets::markerFromName(QString::fromStdString(e.marker), &ok);
+        if (const auto* info = solve::findMethod(e.method))
+            entry.usesTrustRegion = info->family == "trust-region" || e.method == "levenberg-marquardt";
+        request.entries.push_back(entry);
+    }
+    return request;
+}
+
+void MainWindow::runAll() {
+    if (!objective_) return;
+    setPlaying(false);
+    jobs_->runAll(runRequest());
+}
+
+void MainWindow::stepAll() {
+    if (!objective_) return;
+    if (!jobs_->hasStepSession())
+        jobs_->beginSteps(runRequest());
+    else
+        jobs_->stepAll();
+}
+
+void MainWindow::setPlaying(bool on) {
+    if (QAction* play = action("play")) {
+        const QSignalBlocker block(play);
+        play->setChecked(on);
+        play->setText(on ? tr("&Pause") : tr("&Play"));
+        play->setIcon(style()->standardIcon(on ? QStyle::SP_MediaPause : QStyle::SP_MediaPlay));
+    }
+    if (on == animation_.isActive()) return;
+    if (on) {
+        if (!objective_) return;
+        if (!jobs_->hasStepSession() || jobs_->stepSessionFinished()) jobs_->beginSteps(runRequest());
+        animation_.start(1000 / std::max(1, speed_->value()));
+    } else {
+        animation_.stop();
+    }
+}
+
+void MainWindow::animationTick() {
+    if (!jobs_->hasStepSession()) {
+        setPlaying(false);
+        return;
+    }
+    if (jobs_->stepSessionFinished()) {
+        setPlaying(false);
+        return;
+    }
+    jobs_->stepAll();  // skipped while the previous step is still busy
+}
+
+void MainWindow::resetRuns() {
+    if (!objective_) return;
+    setPlaying(false);
+    jobs_->beginSteps(runRequest());
+}
+
+void MainWindow::cancelJobs() {
+    setPlaying(false);
+    jobs_->cancelAll();
+}
+
+void MainWindow::moveStart(const Vector& point) {
+    if (!objective_) return;
+    const int n = static_cast<int>(study_.variables.size());
+    Vector x = start();
+    if (point.size() == n) {
+        x = point;
+    } else if (point.size() == 2) {
+        x(study_.view.plotX) = point(0);
+        x(study_.view.plotY) = point(1);
+    } else {
+        return;
+    }
+    for (int i = 0; i < n; ++i) study_.variables[static_cast<std::size_t>(i)].start = x(i);
+    objectiveEditor_->setStart(x);
+    landscape_->setStart(x);
+    setModified(true);
+    const bool wasStepping = jobs_->hasStepSession() && !animation_.isActive();
+    if (animation_.isActive()) {
+        jobs_->beginSteps(runRequest());
+    } else if (wasStepping && snapshot_ && !snapshot_->tracks.empty() && snapshot_->tracks[0].run &&
+               !snapshot_->tracks[0].run->finished()) {
+        jobs_->beginSteps(runRequest());
+    } else {
+        jobs_->runAll(runRequest());
+    }
+    if (study_.variables.size() > 2) heldResample_.start();
+}
+
+void MainWindow::setViewBox(const analyze::Box& box) {
+    viewBox_ = box;
+    hasViewBox_ = true;
+    requestField();
+}
+
+analyze::Box MainWindow::homeBox() const {
+    analyze::Box box;
+    const auto& vars = study_.variables;
+    const int x = study_.view.plotX, y = study_.view.plotY;
+    if (x < static_cast<int>(vars.size()) && y < static_cast<int>(vars.size())) {
+        box.xMin = vars[static_cast<std::size_t>(x)].lower;
+        box.xMax = vars[static_cast<std::size_t>(x)].upper;
+        box.yMin = vars[static_cast<std::size_t>(y)].lower;
+        box.yMax = vars[static_cast<std::size_t>(y)].upper;
+    }
+    return box;
+}
+
+Vector MainWindow::heldVector() const {
+    if (snapshot_ && selection_.valid() && selection_.track < static_cast<int>(snapshot_->tracks.size())) {
+        const auto& run = snapshot_->tracks[static_cast<std::size_t>(selection_.track)].run;
+        if (run && selection_.iteration < static_cast<int>(run->trace.size())) {
+            const Vector& x = run->trace[static_cast<std::size_t>(selection_.iteration)].x;
+            if (x.size() == static_cast<Eigen::Index>(study_.variables.size())) return x;
+        }
+    }
+    return start();
+}
+
+void MainWindow::requestField() {
+    if (!objective_) return;
+    const int n = objective_->dimension();
+    if (n < 1) return;
+    FieldRequest request;
+    request.objective = objective_;
+    request.held = heldVector();
+    request.xVariable = std::clamp(study_.view.plotX, 0, n - 1);
+    request.yVariable = std::clamp(study_.view.plotY, 0, n - 1);
+    if (!hasViewBox_) {
+        viewBox_ = homeBox();
+        landscape_->setHomeBox(viewBox_);
+    }
+    request.box = viewBox_;
+    request.nx = request.ny = std::clamp(study_.view.gridCells, 20, 2000);
+    request.contourCount = std::clamp(study_.view.contourCount, 2, 100);
+    request.logColour = landscape_->logColour();
+    jobs_->sampleField(request);
+    updateHeldText();
+}
+
+void MainWindow::updateHeldText() {
+    const int n = static_cast<int>(study_.variables.size());
+    if (n <= 2) {
+        objectiveEditor_->setHeldText({});
+        return;
+    }
+    const Vector held = heldVector();
+    QStringList parts;
+    for (int i = 0; i < n; ++i) {
+        if (i == study_.view.plotX || i == study_.view.plotY) continue;
+        parts << QStringLiteral("%1 = %2").arg(QString::fromStdString(study_.variables[static_cast<std::size_t>(i)].name),
+                                               humanNumber(held(i)));
+    }
+    objectiveEditor_->setHeldText(tr("Held at the selected iterate: %1").arg(parts.join(", ")));
+}
+
+void MainWindow::showRuns(std::shared_ptr<const RunBatch> batch) {
+    if (!batch || batch->objective != objective_) return;  // results of a replaced objective
+    auto snap = std::make_shared<widgets::Snapshot>();
+    snap->objective = batch->objective;
+    for (const auto& v : study_.variables) snap->variableNames.push_back(QString::fromStdString(v.name));
+    snap->plotX = study_.view.plotX;
+    snap->plotY = study_.view.plotY;
+    for (std::size_t i = 0; i < batch->runs.size() && i < batch->entries.size(); ++i) {
+        widgets::RunTrack track;
+        track.label = QString::fromStdString(batch->entries[i].label);
+        track.colour = batch->entries[i].colour;
+        track.marker = batch->entries[i].marker;
+        track.run = batch->runs[i];
+        track.usesTrustRegion = batch->entries[i].usesTrustRegion;
+        snap->tracks.push_back(track);
+    }
+    // Keep the selected iterate where it still exists; otherwise select the first start.
+    if (!selection_.valid() || selection_.track >= static_cast<int>(snap->tracks.size())) selection_ = {0, 0};
+    if (!snap->tracks.empty()) {
+        const auto& run = snap->tracks[static_cast<std::size_t>(selection_.track)].run;
+        const int last = run ? static_cast<int>(run->trace.size()) - 1 : -1;
+        if (batch->stepping && last >= 0) selection_.iteration = last;  // follow the animation
+        selection_.iteration = std::min(selection_.iteration, last);
+        if (selection_.iteration < 0) selection_ = {};
+    } else {
+        selection_ = {};
+    }
+    snap->held = heldVector();
+    if (snap->held.size() != objective_->dimension()) snap->held = batch->start;
+    landscape_->setStart(batch->start);
+    shownRunGeneration_ = batch->generation;
+    pushSnapshot(snap);
+
+    // Status bar summary.
+    int converged = 0, failed = 0;
+    double best = std::numeric_limits<double>::infinity();
+    QString bestLabel;
+    for (const auto& t : snap->tracks) {
+        if (!t.run) continue;
+        if (solve::isConvergence(t.run->termination)) ++converged;
+        if (t.run->termination == solve::Termination::Failed || t.run->termination == solve::Termination::NonFinite)
+            ++failed;
+        if (std::isfinite(t.run->value) && t.run->value < best) {
+            best = t.run->value;
+            bestLabel = t.label;
+        }
+    }
+    const int count = static_cast<int>(snap->tracks.size());
+    if (batch->stepping && !batch->allFinished) {
+        const int k = snap->tracks.empty() || !snap->tracks[0].run ? 0 : snap->tracks[0].run->iterations();
+        summary_ = tr("Stepping %n method(s): iteration %1", nullptr, count).arg(k);
+    } else {
+        summary_ = tr("Last run: %n method(s) in %1 ms; %2 converged", nullptr, count)
+                       .arg(batch->seconds * 1e3, 0, 'f', 1)
+                       .arg(converged);
+        if (failed > 0) summary_ += tr(", %1 failed").arg(failed);
+        if (batch->cancelled) summary_ += tr(" (cancelled)");
+    }
+    if (!bestLabel.isEmpty()) summary_ += tr("; lowest f = %1 (%2)").arg(humanNumber(best), bestLabel);
+    statusSummary_->setText(summary_);
+    if (study_.variables.size() > 2) heldResample_.start();
+    emit runsShown();
+}
+
+void MainWindow::pushSnapshot(std::shared_ptr<const widgets::Snapshot> snapshot) {
+    snapshot_ = std::move(snapshot);
+    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
+                                    static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
+                                    static_cast<widgets::PlotView*>(slice_)}) {
+        view->setSnapshot(snapshot_);
+        view->setSelection(selection_);
+    }
+    steps_->setSnapshot(snapshot_);
+    steps_->setSelection(selection_);
+}
+
+void MainWindow::showField(std::shared_ptr<const widgets::FieldSnapshot> field) {
+    field_ = std::move(field);
+    landscape_->setField(field_);
+    emit fieldShown();
+}
+
+void MainWindow::setSelection(const widgets::Selection& selection) {
+    if (selection == selection_) return;
+    selection_ = selection;
+    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
+                                    static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
+                                    static_cast<widgets::PlotView*>(slice_)})
+        view->setSelection(selection_);
+    steps_->setSelection(selection_);
+    if (study_.variables.size() > 2) {
+        updateHeldText();
+        heldResample_.start();
+    }
+}
+
+QString MainWindow::lastSummary() const { return summary_; }
+
+void MainWindow::onJobProgress(int /*kind*/, double fraction) {
+    statusProgress_->setValue(static_cast<int>(std::lround(100 * std::clamp(fraction, 0.0, 1.0))));
+}
+
+void MainWindow::onJobStateChanged() {
+    const bool busy = jobs_->anyBusy();
+    // Short jobs (a drag rerun) should not flash the bar: it shows only while busy.
+    statusProgress_->setVisible(busy);
+    statusCancel_->setVisible(busy);
+    if (!busy) statusProgress_->setValue(0);
+}
+
+bool MainWindow::waitForIdle(int timeoutMs) {
+    QElapsedTimer clock;
+    clock.start();
+    while (clock.elapsed() < timeoutMs) {
+        QCoreApplication::processEvents(QEventLoop::AllEvents, 5);
+        if (!jobs_->anyBusy() && !heldResample_.isActive()) {
+            QCoreApplication::processEvents();
+            if (!jobs_->anyBusy()) return true;
+        }
+        QThread::usleep(200);
+    }
+    return false;
+}
+
+// ---------------------------------------------------------------- exports
+
+QStringList MainWindow::viewNames() const {
+    return {QStringLiteral("landscape"), QStringLiteral("local-model"), QStringLiteral("curvature"),
+            QStringLiteral("progress"), QStringLiteral("slice")};
+}
+
+widgets::PlotView* MainWindow::viewByName(const QString& name) const {
+    if (name == "landscape") return landscape_;
+    if (name == "local-model") return localModel_;
+    if (name == "curvature") return curvature_;
+    if (name == "progress") return progress_;
+    if (name == "slice") return slice_;
+    return nullptr;
+}
+
+bool MainWindow::exportView(const QString& viewName, const QString& path, int width, int height, QString* error) {
+    widgets::PlotView* view = viewByName(viewName);
+    if (!view) {
+        if (error) *error = tr("unknown view '%1'; known: %2").arg(viewName, viewNames().join(", "));
+        return false;
+    }
+    return widgets::exportPlot(view->plot(), path, width, height, error);
+}
+
+bool MainWindow::exportStepsCsv(const QString& path, QString* error) {
+    if (!snapshot_) {
+        if (error) *error = tr("there are no runs to export yet");
+        return false;
+    }
+    const QByteArray text = widgets::StepsModel::toCsv(*snapshot_).toUtf8();
+    QSaveFile file(path);
+    if (!file.open(QIODevice::WriteOnly) || file.write(text) != text.size() || !file.commit()) {
+        if (error) *error = tr("cannot write %1: %2").arg(path, file.errorString());
+        return false;
+    }
+    return true;
+}
+
+void MainWindow::exportViewDialog() {
+    QDialog dialog(this);
+    dialog.setWindowTitle(tr("Export view"));
+    auto* view = new QComboBox(&dialog);
+    const QStringList titles = {tr("Landscape"), tr("Local model"), tr("Curvature"), tr("Progress"), tr("Slice")};
+    const QStringList names = viewNames();
+    for (int i = 0; i < names.size(); ++i) view->addItem(titles[i], names[i]);
+    view->setToolTip(tr("Which view to save"));
+    auto* width = new QSpinBox(&dialog);
+    auto* height = new QSpinBox(&dialog);
+    for (QSpinBox* s : {width, height}) {
+        s->setRange(100, 8000);
+        s->setSuffix(tr(" px"));
+    }
+    width->setValue(1200);
+    height->setValue(900);
+    width->setToolTip(tr("Width of the saved image (PDF and SVG: in points)"));
+    height->setToolTip(tr("Height of the saved image (PDF and SVG: in points)"));
+    auto* format = new QComboBox(&dialog);
+    format->addItems({"png", "svg", "pdf"});
+    format->setToolTip(tr("PNG for pictures, SVG or PDF for scalable drawings"));
+    auto* buttons = new QDialogButtonBox(QDialogButtonBox::Save | QDialogButtonBox::Cancel, &dialog);
+    auto* form = new QFormLayout(&dialog);
+    form->addRow(tr("View"), view);
+    form->addRow(tr("Width"), width);
+    form->addRow(tr("Height"), height);
+    form->addRow(tr("Format"), format);
+    form->addRow(buttons);
+    connect(buttons, &QDialogButtonBox::accepted, &dialog, &QDialog::accept);
+    connect(buttons, &QDialogButtonBox::rejected, &dialog, &QDialog::reject);
+    if (dialog.exec() != QDialog::Accepted) return;
+    const QString suffix = format->currentText();
+    QString path = QFileDialog::getSaveFileName(this, tr("Export view"),
+                                                QDir::home().filePath(view->currentData().toString() + "." + suffix),
+                                                suffix.toUpper() + QStringLiteral(" (*.%1)").arg(suffix));
+    if (path.isEmpty()) return;
+    if (QFileInfo(path).suffix().isEmpty()) path += "." + suffix;
+    QString error;
+    if (!exportView(view->currentData().toString(), path, width->value(), height->value(), &error))
+        QMessageBox::warning(this, tr("Cannot export"), error);
+    else
+        statusBar()->showMessage(tr("Saved %1").arg(path), 4000);
+}
+
+void MainWindow::exportStepsDialog() {
+    QString path = QFileDialog::getSaveFileName(this, tr("Export steps"), QDir::home().filePath("steps.csv"),
+                                                tr("CSV tables (*.csv)"));
+    if (path.isEmpty()) return;
+    if (QFileInfo(path).suffix().isEmpty()) path += ".csv";
+    QString error;
+    if (!exportStepsCsv(path, &error))
+        QMessageBox::warning(this, tr("Cannot export"), error);
+    else
+        statusBar()->showMessage(tr("Saved %1").arg(path), 4000);
+}
+
+}  // namespace sw::window
