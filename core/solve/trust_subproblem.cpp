@@ -6,7 +6,8 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
-#include <sstream>
+#include <charconv>
+#include <string>
 
 namespace sw::solve {
 
@@ -14,11 +15,13 @@ namespace {
 
 constexpr double kEps = std::numeric_limits<double>::epsilon();
 
+// Three significant digits for notes; to_chars is locale-free and cheap inside a solve loop.
 std::string formatNumber(double v) {
-    std::ostringstream out;
-    out.precision(3);
-    out << v;
-    return out.str();
+    if (std::isnan(v)) return "nan";
+    if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
+    char buffer[32];
+    auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, 3);
+    return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
 }
 
 // The roots tau of |z + tau d| = radius (z strictly inside or on the ball), smaller first.
@@ -273,11 +276,28 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
 SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double radius) {
     SubproblemResult result;
     const double gnorm = g.norm();
+    {
+        // lambda = 0 when B is positive definite and the Newton step fits: one Cholesky
+        // factorisation settles it (Moré & Sorensen 1983 begin the same way), and the
+        // eigendecomposition below is only needed otherwise.
+        const Eigen::LLT<Matrix> llt(b);
+        if (llt.info() == Eigen::Success) {
+            Vector newton = -llt.solve(g);
+            if (newton.allFinite() && newton.norm() <= radius) {
+                result.step = std::move(newton);
+                result.kind = StepKind::Interior;
+                result.note = "Newton step inside the region (lambda = 0)";
+                result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+                return result;
+            }
+        }
+    }
     const Eigenbasis eb(g, b);
     const double lambda1 = eb.lambda(0);
     const double zeroTol = 1e-12 * eb.scale;
 
-    // lambda = 0 when B is positive definite and the Newton step fits.
+    // lambda = 0 when B is positive definite and the Newton step fits (checked again in the
+    // eigenbasis for a B too close to singular for the Cholesky test above).
     if (lambda1 > zeroTol) {
         const Vector newton = eb.step(lambda1);  // mu = 0
         if (newton.norm() <= radius) {

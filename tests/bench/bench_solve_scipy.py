@@ -1,0 +1,115 @@
+#!/usr/bin/python3
+"""SciPy side of scripts/bench_solve: times scipy.optimize.minimize on the same problems and
+method families as tests/bench/bench_solve.cpp and prints the side-by-side table.
+
+    bench_solve_scipy.py PROBLEMS_JSON OURS_JSON [--markdown]
+
+PROBLEMS_JSON comes from `bench_solve --problems-json`, OURS_JSON from
+`bench_solve --benchmark_format=json`. SciPy gets exact derivatives compiled from the same
+formula text by SymPy (lambdify to NumPy), so both sides use exact gradients and Hessians.
+Times are CPU time per solve on both sides (process time here, Google Benchmark's cpu_time
+for ours), so other load on the machine inflates neither side.
+"""
+import json
+import sys
+import time
+import warnings
+
+import numpy as np
+import scipy
+import scipy.optimize
+import sympy
+
+NEEDS_HESSIAN = {"trust-exact", "trust-ncg", "dogleg", "Newton-CG", "trust-krylov"}
+NEEDS_GRADIENT = NEEDS_HESSIAN | {"BFGS", "L-BFGS-B", "CG"}
+
+
+def compile_problem(problem):
+    symbols = sympy.symbols(problem["variables"], real=True)
+    names = {str(s): s for s in symbols}
+    names.update({"sign": sympy.sign, "atan": sympy.atan, "exp": sympy.exp, "sqrt": sympy.sqrt,
+                  "log": sympy.log, "pi": sympy.pi})
+    expr = sympy.parse_expr(problem["formula"].replace("^", "**"), local_dict=names)
+    grad = [sympy.diff(expr, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols]
+    hess = [[sympy.diff(gi, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols] for gi in grad]
+    f = sympy.lambdify(symbols, expr, "numpy")
+    g = sympy.lambdify(symbols, grad, "numpy")
+    h = sympy.lambdify(symbols, hess, "numpy")
+    return (lambda x: float(f(*x)),
+            lambda x: np.array(g(*x), dtype=float),
+            lambda x: np.array(h(*x), dtype=float))
+
+
+def scipy_solve(method, funcs, x0, gtol):
+    f, g, h = funcs
+    kwargs = {}
+    options = {"maxiter": 5000}
+    if method in NEEDS_GRADIENT:
+        kwargs["jac"] = g
+        options["gtol"] = gtol
+    if method in NEEDS_HESSIAN:
+        kwargs["hess"] = h
+    if method == "L-BFGS-B":
+        options = {"maxiter": 5000, "gtol": gtol, "ftol": 0.0}  # projected-gradient test only, like ours
+    if method == "Nelder-Mead":
+        options = {"maxiter": 5000, "xatol": 1e-8, "fatol": 1e-14}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return scipy.optimize.minimize(f, x0, method=method, options=options, **kwargs)
+
+
+def time_per_solve(method, funcs, x0, gtol, min_seconds=0.3):
+    result = scipy_solve(method, funcs, x0, gtol)
+    count, start = 0, time.process_time()
+    while True:
+        scipy_solve(method, funcs, x0, gtol)
+        count += 1
+        elapsed = time.process_time() - start
+        if elapsed >= min_seconds and count >= 3:
+            return elapsed / count, result
+
+
+def main():
+    problems = json.load(open(sys.argv[1]))
+    ours = json.load(open(sys.argv[2]))
+    markdown = "--markdown" in sys.argv
+    our_runs = {}
+    for b in ours["benchmarks"]:
+        unit = {"ns": 1e-9, "us": 1e-6, "ms": 1e-3, "s": 1.0}[b.get("time_unit", "ns")]
+        our_runs[b["name"]] = {"seconds": b["cpu_time"] * unit, "iterations": int(b.get("solver_iterations", -1)),
+                               "value": float(b.get("final_value", float("nan")))}
+    rows = []
+    for problem in problems["problems"]:
+        funcs = compile_problem(problem)
+        x0 = np.array(problem["start"], dtype=float)
+        for pair in problems["pairs"]:
+            key = pair["ours"] + "/" + problem["name"]
+            if key not in our_runs:
+                continue
+            mine = our_runs[key]
+            seconds, result = time_per_solve(pair["scipy"], funcs, x0, problems["gtol"])
+            rows.append((problem["name"], pair["ours"], pair["scipy"], mine["seconds"], seconds,
+                         seconds / mine["seconds"], mine["iterations"], int(getattr(result, "nit", -1)),
+                         mine["value"], float(result.fun)))
+    print("SciPy %s scipy.optimize.minimize vs Saddlewise, CPU time per solve (same start, exact derivatives, "
+          "gtol %g)" % (scipy.__version__, problems["gtol"]))
+    header = ("problem", "ours", "SciPy", "ours [us]", "SciPy [us]", "ratio", "ours it", "SciPy it", "ours f", "SciPy f")
+    if markdown:
+        print("| " + " | ".join(header) + " |")
+        print("|" + "---|" * len(header))
+    else:
+        print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s" % header)
+    for r in rows:
+        cells = (r[0], r[1], r[2], "%.1f" % (r[3] * 1e6), "%.1f" % (r[4] * 1e6), "%.0fx" % r[5], str(r[6]), str(r[7]),
+                 "%.3g" % r[8], "%.3g" % r[9])
+        if markdown:
+            print("| " + " | ".join(cells) + " |")
+        else:
+            print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s" % cells)
+    ratios = [r[5] for r in rows]
+    if ratios:
+        print("median ratio %.0fx, smallest %.0fx" % (float(np.median(ratios)), min(ratios)))
+
+
+if __name__ == "__main__":
+    main()
