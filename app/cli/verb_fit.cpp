@@ -1,16 +1,261 @@
-// Placeholder until the verb is built; replaced by its owner.
+// saddlewise fit: fit a model formula to a CSV table and report estimates with their
+// uncertainty, goodness of fit and warnings.
 #include "app/cli/cli.h"
+#include "app/cli/run_report.h"
+#include "core/fit/run_fit.h"
 
+#include <nlohmann/json.hpp>
+
+#include <cmath>
+#include <cstdio>
+#include <iomanip>
 #include <ostream>
+#include <sstream>
 
 namespace sw::cli {
 
+namespace {
+
+const char* kHelp =
+    "Usage: saddlewise fit --data FILE.csv --model FORMULA --response COLUMN --start NAME=VALUE,...\n"
+    "                      [--loss least-squares|weighted|huber|cauchy|bernoulli-logit|poisson-log]\n"
+    "                      [--weights COLUMN] [--sigma COLUMN] [--scale S] [--method ID]\n"
+    "                      [--option NAME=VALUE ...] [--separator auto|comma|semicolon|tab]\n"
+    "                      [--drop-incomplete] [--max-iterations N] [--confidence LEVEL]\n"
+    "                      [--summary] [--json]\n"
+    "\n"
+    "Fits FORMULA, written in the table's columns and the parameters named in --start, to the\n"
+    "response column, with exact symbolic derivatives, and reports the estimates, standard\n"
+    "errors, correlations, confidence intervals, goodness of fit and warnings.\n"
+    "\n"
+    "  --data FILE.csv        a table with a header row; comma, semicolon or tab separated\n"
+    "                         ('#' lines are comments; numbers use '.' as the decimal point)\n"
+    "  --model FORMULA        the model, e.g. 'a*exp(-k*t) + c'\n"
+    "  --response COLUMN      the column the model predicts\n"
+    "  --start b1=1,b2=0.5    the parameters, in order, and their start values\n"
+    "  --loss NAME            least-squares (default): 1/2 sum r^2, r = y - model\n"
+    "                         weighted: 1/2 sum w r^2 (needs --weights or --sigma)\n"
+    "                         huber, cauchy: robust losses with scale --scale\n"
+    "                         bernoulli-logit: logistic regression; model = linear predictor, y in {0,1}\n"
+    "                         poisson-log: counts with mean exp(model)\n"
+    "  --weights COLUMN       row weights (>= 0); any loss\n"
+    "  --sigma COLUMN         standard deviations of y (> 0); weights 1/sigma^2\n"
+    "  --scale S              the Huber / Cauchy scale, in the response's units (default 1)\n"
+    "  --method ID            default: levenberg-marquardt for (weighted) least squares, a\n"
+    "                         Hessian method otherwise; 'saddlewise methods' lists them\n"
+    "  --option NAME=VALUE    an option of the method\n"
+    "  --separator S          auto (default; the detected separator is reported), comma, semicolon, tab\n"
+    "  --drop-incomplete      skip rows with empty or NA cells (the count is reported)\n"
+    "  --max-iterations N     iteration limit (default 1000)\n"
+    "  --confidence LEVEL     confidence level of the intervals, in (0, 1) (default 0.95)\n"
+    "  --summary              leave out the per-iteration table (and the JSON trace)\n"
+    "  --json                 one JSON object\n"
+    "\n"
+    "Example:\n"
+    "  saddlewise fit --data samples/sensor-warmup.csv --model 'a - b*exp(-t/tau)' --response temp \\\n"
+    "                 --start a=20,b=5,tau=10\n"
+    "\n"
+    "Exit codes: 0 the fit ran (converged or at a limit; see the warnings), 1 the run broke down,\n"
+    "2 bad usage or input.\n";
+
+const char* kCaution =
+    "Caution: a fit is only as good as the model and the data. Verify it before relying on it, and\n"
+    "defer to local codes and licensed practice where safety is involved.\n";
+
+nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+nlohmann::json matrixJson(const Matrix& m) {
+    nlohmann::json rows = nlohmann::json::array();
+    for (Eigen::Index i = 0; i < m.rows(); ++i) {
+        nlohmann::json row = nlohmann::json::array();
+        for (Eigen::Index j = 0; j < m.cols(); ++j) row.push_back(number(m(i, j)));
+        rows.push_back(row);
+    }
+    return rows;
+}
+
+std::string cell(double v, int width, int precision = 6) {
+    std::ostringstream s;
+    s << std::setw(width) << (std::isfinite(v) ? formatNumber(v, precision) : std::string(std::isnan(v) ? "nan" : "inf"));
+    return s.str();
+}
+
+std::string padded(const std::string& text, std::size_t width) {
+    return text.size() >= width ? text : text + std::string(width - text.size(), ' ');
+}
+
+int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
+    const ParsedArgs parsed =
+        parseArgs(args, {"json", "summary", "drop-incomplete"},
+                  {"data", "model", "response", "start", "loss", "weights", "sigma", "scale", "method", "option",
+                   "separator", "max-iterations", "confidence"});
+    if (!parsed.positional.empty())
+        throw UsageError("unexpected argument '" + parsed.positional[0] + "' (quote the model formula after --model)");
+    for (const char* required : {"data", "model", "response", "start"})
+        if (!parsed.has(required)) throw UsageError(std::string("--") + required + " is required");
+
+    TableReadOptions readOptions;
+    if (!parseSeparator(parsed.get("separator", "auto"), readOptions.separator))
+        throw UsageError("--separator must be one of: auto, comma, semicolon, tab (got '" + parsed.get("separator") +
+                         "')");
+    readOptions.dropIncompleteRows = parsed.has("drop-incomplete");
+
+    fit::FitRequest request;
+    FitDefinition& def = request.definition;
+    def.model = parsed.get("model");
+    def.response = parsed.get("response");
+    for (const auto& [name, value] : parseAssignments(parsed.get("start"), "start")) {
+        def.parameters.push_back(name);
+        request.start.push_back(value);
+    }
+    if (parsed.has("loss") && !parseLoss(parsed.get("loss"), def.loss))
+        throw UsageError("--loss must be one of: " + lossList() + " (got '" + parsed.get("loss") + "')");
+    def.weights = parsed.get("weights");
+    def.sigma = parsed.get("sigma");
+    if (parsed.has("scale")) def.scale = parseNumber(parsed.get("scale"), "--scale");
+    if (parsed.has("scale") && !(def.scale > 0)) throw UsageError("--scale must be > 0");
+    if (parsed.has("scale") && def.loss != Loss::Huber && def.loss != Loss::Cauchy)
+        throw UsageError("--scale applies only to --loss huber or cauchy");
+    request.method = parsed.get("method");
+    if (!request.method.empty() && !solve::findMethod(request.method))
+        throw UsageError("unknown method '" + request.method + "'; known: " + solve::methodIdList());
+    const std::string method = request.method.empty() ? fit::defaultFitMethod(def.loss) : request.method;
+    if (parsed.has("option")) request.options = distributeOptions({method}, parsed.all("option")).front();
+    if (parsed.has("max-iterations"))
+        request.rules.maxIterations =
+            static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+    if (parsed.has("confidence")) {
+        request.confidenceLevel = parseNumber(parsed.get("confidence"), "--confidence");
+        if (!(request.confidenceLevel > 0 && request.confidenceLevel < 1))
+            throw UsageError("--confidence must be in (0, 1), e.g. 0.95");
+    }
+
+    std::shared_ptr<Table> table;
+    try {
+        table = std::make_shared<Table>(readTable(parsed.get("data"), readOptions));
+    } catch (const TableError& e) {
+        throw UsageError(e.what());
+    }
+    fit::FitResult result;
+    try {
+        result = fit::runFit(table, request);
+    } catch (const FitError& e) {
+        throw UsageError(e.what());
+    }
+    const fit::FitStatistics& st = result.statistics;
+    const solve::Run& run = result.run;
+    const std::vector<std::string>& names = def.parameters;
+    const bool withTrace = !parsed.has("summary");
+
+    if (parsed.has("json")) {
+        nlohmann::json j = runToJson(run, names, withTrace);
+        j["data"] = {{"file", parsed.get("data")},
+                     {"rows", table->rowCount()},
+                     {"columns", table->columnNames},
+                     {"separator", toString(table->separator)},
+                     {"separator_detected", table->separatorDetected},
+                     {"dropped_rows", table->droppedRows}};
+        j["model"] = def.model;
+        j["response"] = def.response;
+        j["loss"] = toString(def.loss);
+        if (def.loss == Loss::Huber || def.loss == Loss::Cauchy) j["scale"] = def.scale;
+        nlohmann::json parameters = nlohmann::json::object(), errors = nlohmann::json::object(),
+                       intervals = nlohmann::json::object();
+        for (std::size_t k = 0; k < names.size(); ++k) {
+            const auto i = static_cast<Eigen::Index>(k);
+            parameters[names[k]] = number(st.estimates[i]);
+            errors[names[k]] = number(st.standardErrors[i]);
+            intervals[names[k]] = {number(st.lower[i]), number(st.upper[i])};
+        }
+        j["parameters"] = parameters;
+        j["standard_errors"] = errors;
+        j["confidence_intervals"] = intervals;
+        j["confidence_level"] = st.confidenceLevel;
+        j["critical_value"] = number(st.criticalValue);
+        j["covariance"] = matrixJson(st.covariance);
+        j["correlation"] = matrixJson(st.correlation);
+        j["covariance_method"] = st.covarianceMethod;
+        j["residual_sum_of_squares"] = number(st.residualSumOfSquares);
+        j["residual_standard_deviation"] = number(st.residualStandardDeviation);
+        j["degrees_of_freedom"] = st.degreesOfFreedom;
+        j["objective_value"] = number(st.objectiveValue);
+        if (st.likelihood) {
+            j["log_likelihood"] = number(st.logLikelihood);
+            j["deviance"] = number(st.deviance);
+        }
+        nlohmann::json singular = nlohmann::json::array();
+        for (Eigen::Index i = 0; i < st.singularValues.size(); ++i) singular.push_back(number(st.singularValues[i]));
+        j["jacobian"] = {{"rank", st.rank}, {"scaled_condition", number(st.scaledCondition)},
+                         {"scaled_singular_values", singular}};
+        j["warnings"] = result.warnings;
+        j["converged"] = result.converged();
+        out << j.dump(2) << '\n';
+        return exitCodeFor({run});
+    }
+
+    out << "Data: " << table->source << ": " << table->summary() << '\n';
+    out << "Model: " << def.response << " ~ " << def.model << "\n";
+    out << "Loss: " << toString(def.loss);
+    if (def.loss == Loss::Huber || def.loss == Loss::Cauchy) out << " (scale " << formatNumber(def.scale, 6) << ")";
+    if (!def.weights.empty()) out << ", weights from column '" << def.weights << "'";
+    if (!def.sigma.empty()) out << ", weights 1/sigma^2 from column '" << def.sigma << "'";
+    out << "; method: " << run.methodId << "\n\n";
+    if (withTrace) {
+        printTrace(out, run, names);
+        out << '\n';
+    }
+    printSummary(out, run, names);
+    out << '\n';
+
+    std::size_t nameWidth = 9;
+    for (const auto& n : names) nameWidth = std::max(nameWidth, n.size() + 1);
+    const int percent = static_cast<int>(std::lround(st.confidenceLevel * 100));
+    std::ostringstream intervalHead;
+    intervalHead << percent << "% interval (" << (st.likelihood ? "normal" : "t, " + std::to_string(st.degreesOfFreedom) + " dof")
+                 << ")";
+    out << padded("Parameter", nameWidth) << std::setw(16) << "Estimate" << std::setw(14) << "Std. error"
+        << "   " << intervalHead.str() << '\n';
+    for (std::size_t k = 0; k < names.size(); ++k) {
+        const auto i = static_cast<Eigen::Index>(k);
+        out << padded(names[k], nameWidth) << cell(st.estimates[i], 16, 10) << cell(st.standardErrors[i], 14)
+            << "   [" << formatNumber(st.lower[i], 6) << ", " << formatNumber(st.upper[i], 6) << "]\n";
+    }
+    out << "\nCorrelation of the estimates (" << st.covarianceMethod << "):\n";
+    out << padded("", nameWidth);
+    for (const auto& n : names) out << std::setw(10) << n;
+    out << '\n';
+    for (std::size_t k = 0; k < names.size(); ++k) {
+        out << padded(names[k], nameWidth);
+        for (std::size_t l = 0; l < names.size(); ++l) {
+            char buffer[32];
+            std::snprintf(buffer, sizeof buffer, "%10.4f",
+                          st.correlation(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(l)));
+            out << buffer;
+        }
+        out << '\n';
+    }
+    out << '\n';
+    out << "Rows: " << st.rows << ", parameters: " << st.parameters << ", degrees of freedom: " << st.degreesOfFreedom
+        << '\n';
+    out << "Residual sum of squares: " << formatNumber(st.residualSumOfSquares, 10)
+        << ", residual standard deviation: " << formatNumber(st.residualStandardDeviation, 8) << '\n';
+    if (st.likelihood)
+        out << "Log-likelihood: " << formatNumber(st.logLikelihood, 10) << ", deviance: " << formatNumber(st.deviance, 10)
+            << '\n';
+    out << "Jacobian with unit-norm columns: rank " << st.rank << " of " << st.parameters << ", condition number "
+        << formatNumber(st.scaledCondition, 4) << '\n';
+    if (!result.warnings.empty()) {
+        out << "\nWarnings:\n";
+        for (const auto& w : result.warnings) out << "  - " << w << '\n';
+    }
+    out << '\n' << kCaution;
+    return exitCodeFor({run});
+}
+
+}  // namespace
+
 Verb fitVerb() {
-    return {"fit", "(not built yet)", "(not built yet)",
-            [](const std::vector<std::string>&, std::ostream&, std::ostream& err) {
-                err << "saddlewise: the 'fit' verb is not built yet\n";
-                return 1;
-            }};
+    return {"fit", "fit a model formula to a CSV table; estimates, standard errors, warnings", kHelp, runFitVerb};
 }
 
 }  // namespace sw::cli

@@ -18,6 +18,7 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 constexpr double kNearlyDeficientCondition = 1e8;  // common practice, no published source
 constexpr double kUnidentifiableCorrelation = 0.99;
 constexpr double kScaleSpread = 1e6;
+constexpr double kPoorlyDetermined = 100;  // standard error / |estimate|; common practice, no published source
 
 std::string num(double v, int digits = 4) {
     char buffer[40];
@@ -187,6 +188,14 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
                                      s.names[static_cast<std::size_t>(j)] +
                                      " are nearly unidentifiable together: correlation " +
                                      num(s.correlation(i, j), 6) + ".");
+    for (int j = 0; j < p; ++j) {
+        const double estimate = std::fabs(x[j]), se = s.standardErrors[j];
+        if (estimate > 0 && se > kPoorlyDetermined * estimate)
+            s.warnings.push_back("Parameter " + s.names[static_cast<std::size_t>(j)] +
+                                 " is poorly determined: its standard error " + num(se) + " is more than " +
+                                 num(kPoorlyDetermined) + " times its estimate " + num(x[j]) +
+                                 " (the model hardly depends on it here; try another start or model).");
+    }
     int smallest = -1, largest = -1;
     for (int j = 0; j < p; ++j) {
         const double a = std::fabs(x[j]);
