@@ -1,16 +1,126 @@
-// Placeholder until the verb is built; replaced by its owner.
+// saddlewise minimize: run one or several methods on a formula from one start point.
 #include "app/cli/cli.h"
+#include "app/cli/run_report.h"
+#include "core/objective/formula_objective.h"
+#include "core/solve/solver.h"
 
 #include <ostream>
 
 namespace sw::cli {
 
+namespace {
+
+const char* kHelp =
+    "Usage: saddlewise minimize FORMULA --from NAME=VALUE,... --method ID [--method ID ...]\n"
+    "                           [--option NAME=VALUE ...] [--constants NAME=VALUE,...]\n"
+    "                           [--max-iterations N] [--max-evaluations N] [--gradient-tolerance X]\n"
+    "                           [--summary] [--json]\n"
+    "\n"
+    "Minimizes FORMULA over the variables named in --from, starting at their values, with\n"
+    "exact symbolic gradient and Hessian. Several --method flags run side by side from the\n"
+    "same start and print a comparison table.\n"
+    "\n"
+    "  --from x=-1.2,y=1        the variables, in order, and the start point (required)\n"
+    "  --method ID              a method id; 'saddlewise methods' lists them with their options\n"
+    "  --option NAME=VALUE      a method option; applies to every chosen method that has it.\n"
+    "                           Qualify it as METHOD.NAME=VALUE for one method only\n"
+    "  --constants a=1,b=2      further names in the formula held fixed\n"
+    "  --max-iterations N       iteration limit per run (default 200)\n"
+    "  --max-evaluations N      value + gradient + Hessian evaluations per run (default 100000)\n"
+    "  --gradient-tolerance X   converged when the gradient norm is <= X (default 1e-8)\n"
+    "  --summary                leave out the per-iteration table (and the JSON trace)\n"
+    "  --json                   one JSON object (several methods: {\"runs\": [...]})\n"
+    "\n"
+    "Example:\n"
+    "  saddlewise minimize '100*(y-x^2)^2+(1-x)^2' --from x=-1.2,y=1 --method bfgs --method newton\n"
+    "\n"
+    "Exit codes: 0 the runs finished (converged or at a limit), 1 a run broke down\n"
+    "(non-finite values or a method failure), 2 bad usage or input.\n";
+
+int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
+    const ParsedArgs parsed = parseArgs(args, {"json", "summary"},
+                                        {"from", "method", "option", "constants", "max-iterations",
+                                         "max-evaluations", "gradient-tolerance"});
+    if (parsed.positional.size() != 1)
+        throw UsageError(parsed.positional.empty() ? "give the formula to minimize"
+                                                   : "give exactly one formula (quote it); got " +
+                                                         std::to_string(parsed.positional.size()) + " words");
+    if (!parsed.has("from")) throw UsageError("give the variables and the start point with --from x=-1.2,y=1");
+    const auto start = parseAssignments(parsed.get("from"), "from");
+    std::vector<std::string> names;
+    Vector x0(static_cast<Eigen::Index>(start.size()));
+    for (std::size_t i = 0; i < start.size(); ++i) {
+        names.push_back(start[i].first);
+        x0[static_cast<Eigen::Index>(i)] = start[i].second;
+    }
+    std::vector<std::pair<std::string, double>> constants;
+    if (parsed.has("constants")) constants = parseAssignments(parsed.get("constants"), "constants");
+    for (const auto& [constant, unused] : constants)
+        for (const std::string& v : names)
+            if (v == constant) throw UsageError("'" + constant + "' is given both in --from and in --constants");
+
+    const std::vector<std::string>& methodIds = parsed.all("method");
+    if (methodIds.empty()) throw UsageError("give at least one --method ID (saddlewise methods lists them)");
+    for (const std::string& id : methodIds)
+        if (!solve::findMethod(id)) throw UsageError("unknown method '" + id + "'; known: " + solve::methodIdList());
+    const std::vector<solve::OptionValues> options = distributeOptions(methodIds, parsed.all("option"));
+
+    solve::StoppingRules rules;
+    if (parsed.has("max-iterations"))
+        rules.maxIterations = static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+    if (parsed.has("max-evaluations"))
+        rules.maxEvaluations = parseInteger(parsed.get("max-evaluations"), "--max-evaluations", 1, 1000000000000L);
+    if (parsed.has("gradient-tolerance")) {
+        rules.gradientTolerance = parseNumber(parsed.get("gradient-tolerance"), "--gradient-tolerance");
+        if (rules.gradientTolerance < 0) throw UsageError("--gradient-tolerance must be >= 0");
+    }
+
+    const FormulaObjective objective(parsed.positional[0], names, constants);  // FormulaError -> exit 2
+
+    std::vector<solve::Run> runs;
+    for (std::size_t i = 0; i < methodIds.size(); ++i) {
+        solve::SolverOrError made = solve::makeSolver(methodIds[i], objective, x0, options[i], rules);
+        if (!made.solver) throw UsageError(made.error);
+        runs.push_back(solve::solve(*made.solver));
+    }
+
+    const bool withTrace = !parsed.has("summary");
+    if (parsed.has("json")) {
+        if (runs.size() == 1) {
+            out << runToJson(runs[0], names, withTrace).dump(2) << '\n';
+        } else {
+            nlohmann::json all = nlohmann::json::array();
+            for (const solve::Run& r : runs) all.push_back(runToJson(r, names, withTrace));
+            out << nlohmann::json{{"runs", all}}.dump(2) << '\n';
+        }
+        return exitCodeFor(runs);
+    }
+    out << "minimize " << parsed.positional[0] << '\n';
+    if (runs.size() == 1) {
+        if (withTrace) {
+            out << '\n';
+            printTrace(out, runs[0], names);
+        }
+        out << '\n';
+        printSummary(out, runs[0], names);
+    } else {
+        out << '\n';
+        printComparison(out, runs);
+        out << '\n';
+        for (const solve::Run& r : runs) out << r.label << ": " << r.message << '\n';
+        if (withTrace)
+            for (const solve::Run& r : runs) {
+                out << "\n--- " << r.label << " ---\n";
+                printTrace(out, r, names);
+            }
+    }
+    return exitCodeFor(runs);
+}
+
+}  // namespace
+
 Verb minimizeVerb() {
-    return {"minimize", "(not built yet)", "(not built yet)",
-            [](const std::vector<std::string>&, std::ostream&, std::ostream& err) {
-                err << "saddlewise: the 'minimize' verb is not built yet\n";
-                return 1;
-            }};
+    return {"minimize", "minimize a formula with one or several methods from one start point", kHelp, runMinimize};
 }
 
 }  // namespace sw::cli

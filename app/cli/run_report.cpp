@@ -1,0 +1,240 @@
+// Reporting solver runs: JSON, tables and summaries.
+#include "app/cli/run_report.h"
+
+#include "app/cli/cli.h"
+
+#include <algorithm>
+#include <cmath>
+#include <iomanip>
+#include <ostream>
+#include <sstream>
+
+namespace sw::cli {
+
+namespace {
+
+using nlohmann::json;
+
+json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
+
+json vectorJson(const Vector& v) {
+    json a = json::array();
+    for (Eigen::Index i = 0; i < v.size(); ++i) a.push_back(number(v[i]));
+    return a;
+}
+
+json countsJson(const solve::EvaluationCounts& c) {
+    return {{"value", c.value}, {"gradient", c.gradient}, {"hessian", c.hessian}};
+}
+
+std::string name(const std::vector<std::string>& names, Eigen::Index i) {
+    const auto k = static_cast<std::size_t>(i);
+    return k < names.size() ? names[k] : "x" + std::to_string(i + 1);
+}
+
+// Numbers in tables: 6 significant digits, C locale.
+std::string num(double v, int significant = 6) { return formatNumber(v, significant); }
+
+std::string countsText(const solve::EvaluationCounts& c) {
+    return std::to_string(c.value) + "/" + std::to_string(c.gradient) + "/" + std::to_string(c.hessian);
+}
+
+// A plain text table: columns padded to their widest cell, numbers right-aligned.
+class Table {
+public:
+    explicit Table(std::vector<std::string> header) { rows_.push_back(std::move(header)); }
+    void add(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
+    void print(std::ostream& out, std::size_t lastColumnUnpadded = 1) const {
+        std::vector<std::size_t> width(rows_[0].size(), 0);
+        for (const auto& row : rows_)
+            for (std::size_t c = 0; c < row.size() && c < width.size(); ++c) width[c] = std::max(width[c], row[c].size());
+        for (const auto& row : rows_) {
+            std::string line;
+            for (std::size_t c = 0; c < row.size(); ++c) {
+                const bool last = c + lastColumnUnpadded >= row.size();
+                line += c ? "  " : "";
+                line += last ? row[c] : row[c] + std::string(width[c] - row[c].size(), ' ');
+            }
+            while (!line.empty() && line.back() == ' ') line.pop_back();
+            out << line << '\n';
+        }
+    }
+
+private:
+    std::vector<std::vector<std::string>> rows_;
+};
+
+}  // namespace
+
+json recordToJson(const solve::IterationRecord& r) {
+    json trials = json::array();
+    for (const solve::LineSearchTrial& t : r.trials)
+        trials.push_back({{"alpha", number(t.alpha)},
+                          {"value", number(t.value)},
+                          {"slope", number(t.slope)},
+                          {"accepted", t.accepted},
+                          {"failed", t.failed}});
+    return {{"iteration", r.iteration},
+            {"x", vectorJson(r.x)},
+            {"value", number(r.value)},
+            {"gradient", vectorJson(r.gradient)},
+            {"gradient_norm", number(r.gradientNorm)},
+            {"step", vectorJson(r.step)},
+            {"step_kind", solve::toString(r.stepKind)},
+            {"step_length", number(r.stepLength)},
+            {"step_norm", number(r.stepNorm)},
+            {"trials", trials},
+            {"trust_radius", number(r.trustRadius)},
+            {"ratio", number(r.ratio)},
+            {"damping", number(r.damping)},
+            {"damping_name", r.dampingName},
+            {"predicted_decrease", number(r.predictedDecrease)},
+            {"actual_decrease", number(r.actualDecrease)},
+            {"accepted", r.accepted},
+            {"hessian_eigenvalues", vectorJson(r.hessianEigenvalues)},
+            {"condition_number", number(r.conditionNumber)},
+            {"angle_to_steepest_descent", number(r.angleToSteepestDescent)},
+            {"jacobian_rank", r.jacobianRank},
+            {"jacobian_condition", number(r.jacobianCondition)},
+            {"evaluations", countsJson(r.evaluations)},
+            {"note", r.note}};
+}
+
+json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
+    json j = {{"method", run.methodId},
+              {"label", run.label},
+              {"termination", solve::toString(run.termination)},
+              {"converged", solve::isConvergence(run.termination)},
+              {"message", run.message},
+              {"variables", names},
+              {"x", vectorJson(run.x)},
+              {"value", number(run.value)},
+              {"gradient_norm", number(run.gradientNorm)},
+              {"iterations", run.iterations()},
+              {"evaluations", countsJson(run.evaluations)},
+              {"end_point",
+               {{"kind", solve::toString(run.endPoint.kind)},
+                {"index", run.endPoint.index},
+                {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
+                {"tolerance", number(run.endPoint.tolerance)},
+                {"description", run.endPoint.description}}}};
+    if (withTrace) {
+        json trace = json::array();
+        for (const solve::IterationRecord& r : run.trace) trace.push_back(recordToJson(r));
+        j["trace"] = std::move(trace);
+    }
+    return j;
+}
+
+void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {
+    const Eigen::Index n = run.trace.empty() ? 0 : run.trace.front().x.size();
+    const bool showX = n <= 4;
+    std::vector<std::string> header = {"k"};
+    if (showX)
+        for (Eigen::Index i = 0; i < n; ++i) header.push_back(name(names, i));
+    for (const char* h : {"f", "|g|", "step", "alpha", "|step|", "evals v/g/h", "note"}) header.push_back(h);
+    Table table(header);
+    for (const solve::IterationRecord& r : run.trace) {
+        std::vector<std::string> row = {std::to_string(r.iteration)};
+        if (showX)
+            for (Eigen::Index i = 0; i < n; ++i) row.push_back(num(r.x[i], 8));
+        row.push_back(num(r.value, 10));
+        row.push_back(num(r.gradientNorm, 3));
+        row.push_back(r.stepKind == solve::StepKind::None ? "-" : solve::toString(r.stepKind));
+        row.push_back(std::isnan(r.stepLength) ? "-" : num(r.stepLength, 3));
+        row.push_back(std::isnan(r.stepNorm) ? "-" : num(r.stepNorm, 3));
+        row.push_back(countsText(r.evaluations));
+        std::string note = r.note;
+        if (!r.accepted) note = "rejected" + std::string(note.empty() ? "" : "; ") + note;
+        row.push_back(note);
+        table.add(row);
+    }
+    table.print(out);
+}
+
+void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {
+    std::string x;
+    for (Eigen::Index i = 0; i < run.x.size(); ++i) x += (i ? ", " : "") + name(names, i) + " = " + formatNumber(run.x[i]);
+    const solve::EvaluationCounts& c = run.evaluations;
+    out << "method:        " << run.label << (run.label != run.methodId ? " (" + run.methodId + ")" : "") << '\n'
+        << "termination:   " << solve::toString(run.termination) << " - " << run.message << '\n'
+        << "iterations:    " << run.iterations() << '\n'
+        << "evaluations:   " << c.value << " values, " << c.gradient << " gradients, " << c.hessian << " Hessians\n"
+        << "x:             " << (x.empty() ? "-" : x) << '\n'
+        << "value:         " << formatNumber(run.value) << '\n'
+        << "gradient norm: " << num(run.gradientNorm, 3) << '\n'
+        << "end point:     " << (run.endPoint.description.empty() ? "-" : run.endPoint.description) << '\n';
+}
+
+void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
+    Table table({"method", "iterations", "evals v/g/h", "final value", "|g|", "termination", "end point"});
+    for (const solve::Run& r : runs) {
+        std::string end = solve::toString(r.endPoint.kind);
+        if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
+        table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),
+                   num(r.gradientNorm, 3), solve::toString(r.termination), end});
+    }
+    table.print(out);
+}
+
+std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string>& methodIds,
+                                                   const std::vector<std::string>& optionTexts) {
+    std::vector<solve::OptionValues> result(methodIds.size());
+    auto hasOption = [](const std::string& id, const std::string& option) {
+        const solve::MethodInfo* info = solve::findMethod(id);
+        return info && solve::findOption(info->options, option) != nullptr;
+    };
+    for (const std::string& text : optionTexts) {
+        const auto eq = text.find('=');
+        if (eq == std::string::npos || eq == 0)
+            throw UsageError("--option '" + text + "' is not of the form name=value or method.name=value");
+        std::string key = text.substr(0, eq);
+        const std::string value = text.substr(eq + 1);
+        if (value.empty()) throw UsageError("--option " + key + " has no value");
+        if (const auto dot = key.find('.'); dot != std::string::npos) {
+            const std::string method = key.substr(0, dot), option = key.substr(dot + 1);
+            bool chosen = false;
+            for (std::size_t i = 0; i < methodIds.size(); ++i)
+                if (methodIds[i] == method) {
+                    chosen = true;
+                    if (!hasOption(method, option)) {
+                        const solve::MethodInfo* info = solve::findMethod(method);
+                        std::string known;
+                        if (info)
+                            for (const solve::OptionSpec& s : info->options) known += (known.empty() ? "" : ", ") + s.name;
+                        throw UsageError("--option " + key + ": method " + method + " has no option '" + option +
+                                         "'" + (known.empty() ? " (it takes none)" : "; its options: " + known));
+                    }
+                    result[i][option] = value;
+                }
+            if (!chosen) throw UsageError("--option " + key + ": method '" + method + "' is not among the --method choices");
+            continue;
+        }
+        bool used = false;
+        for (std::size_t i = 0; i < methodIds.size(); ++i)
+            if (hasOption(methodIds[i], key)) {
+                result[i][key] = value;
+                used = true;
+            }
+        if (!used) {
+            std::string known;
+            for (const std::string& id : methodIds) {
+                const solve::MethodInfo* info = solve::findMethod(id);
+                std::string list;
+                if (info)
+                    for (const solve::OptionSpec& s : info->options) list += (list.empty() ? "" : ", ") + s.name;
+                known += (known.empty() ? "" : "; ") + id + ": " + (list.empty() ? "(none)" : list);
+            }
+            throw UsageError("--option " + key + ": no chosen method has this option (" + known + ")");
+        }
+    }
+    return result;
+}
+
+int exitCodeFor(const std::vector<solve::Run>& runs) {
+    for (const solve::Run& r : runs)
+        if (r.termination == solve::Termination::NonFinite || r.termination == solve::Termination::Failed) return 1;
+    return 0;
+}
+
+}  // namespace sw::cli
