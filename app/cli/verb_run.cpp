@@ -37,7 +37,9 @@ const char* kHelp =
     "\n"
     "Exit codes: 0 every method ran (whether or not it converged), 2 bad usage or a bad study.\n";
 
-Json number(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
+Json number(double v) {
+    return std::isfinite(v) ? Json(v) : Json(nullptr);
+}
 
 Json vectorJson(const Vector& v) {
     Json list = Json::array();
@@ -200,6 +202,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
 
 }  // namespace
 
-Verb runVerb() { return {"run", "run a study's method lineup and compare the results", kHelp, &run}; }
+Verb runVerb() {
+    return {"run", "run a study's method lineup and compare the results", kHelp, &run};
+}
 
 }  // namespace sw::cli

@@ -22,7 +22,7 @@ struct Field {
     Box box;
     int nx = 0, ny = 0;
     int xVariable = 0, yVariable = 1;
-    std::vector<double> values;   // nx*ny, row-major, x fastest: values[j*nx + i]
+    std::vector<double> values;           // nx*ny, row-major, x fastest: values[j*nx + i]
     double finiteMin = 0, finiteMax = 0;  // over finite cells only
     long nonFiniteCells = 0;
     double x(int i) const { return box.xMin + (box.xMax - box.xMin) * i / (nx - 1); }
@@ -76,19 +76,19 @@ struct QuadraticModel {
     double value = 0;
     Vector gradient;
     Matrix hessian;
-    Vector eigenvalues;     // ascending
-    Matrix eigenvectors;    // columns, matching eigenvalues
-    bool hasNewtonPoint = false;  // H nonsingular
-    Vector newtonPoint;     // x - H^{-1} g (the model's stationary point), in x coordinates
-    std::string verdict;    // "bowl", "saddle", "ridge", "flat direction", "dome" + a short reason
+    Vector eigenvalues;                // ascending
+    Matrix eigenvectors;               // columns, matching eigenvalues
+    bool hasNewtonPoint = false;       // H nonsingular
+    Vector newtonPoint;                // x - H^{-1} g (the model's stationary point), in x coordinates
+    std::string verdict;               // "bowl", "saddle", "ridge", "flat direction", "dome" + a short reason
     double at(const Vector& p) const;  // m(p), p a displacement from center
 
     // Added: the same verdict in parts, for views that style them separately.
     Shape shape = Shape::Unknown;
-    std::string reason;            // e.g. "curves up along 1 direction and down along 1 (-2 and 2)"
-    double zeroTolerance = 1e-8;   // relative tolerance used for "zero" eigenvalues
-    double conditionNumber = 0;    // max|lambda| / min|lambda| (inf when one is zero)
-    bool finite = false;           // value, gradient and Hessian all finite
+    std::string reason;           // e.g. "curves up along 1 direction and down along 1 (-2 and 2)"
+    double zeroTolerance = 1e-8;  // relative tolerance used for "zero" eigenvalues
+    double conditionNumber = 0;   // max|lambda| / min|lambda| (inf when one is zero)
+    bool finite = false;          // value, gradient and Hessian all finite
     // Model along a line: m(t d) for t in ts (d in x coordinates, a displacement).
     std::vector<double> along(const Vector& direction, const std::vector<double>& ts) const;
 };
@@ -112,7 +112,7 @@ std::vector<double> sufficientDecreaseLine(double value, const Vector& gradient,
 // objective's exact Hessian (when objective is non-null and n <= maxDimension).
 struct SpectrumPoint {
     int iteration = 0;
-    Vector eigenvalues;            // ascending; empty when unavailable
+    Vector eigenvalues;  // ascending; empty when unavailable
     double conditionNumber = solve::kNaN;
     bool negativeCurvature = false;  // smallest eigenvalue < 0 (beyond the zero tolerance)
     bool fromRecord = false;         // true when taken from the solver's record
@@ -132,8 +132,8 @@ struct DerivativeCheck {
     double hessianError = 0;   // max_ij |H_ij - est_ij| / max(1, |H_ij|)
     int worstGradientIndex = -1;
     int worstHessianRow = -1, worstHessianColumn = -1;
-    bool passed = false;       // both errors <= tolerance
-    std::string message;       // one line, naming the worst entry
+    bool passed = false;  // both errors <= tolerance
+    std::string message;  // one line, naming the worst entry
 };
 DerivativeCheck checkDerivatives(const Objective& objective, const Vector& x, double tolerance = 1e-5);
 

@@ -29,9 +29,14 @@ public:
     // cellLow/cellHigh: per cell, the smallest and largest corner (+inf/-inf when a corner is
     // not finite), shared by every level so most cells are passed over with two comparisons.
     Tracer(const Field& field, const std::vector<double>& cellLow, const std::vector<double>& cellHigh)
-        : field_(field), nx_(field.nx), ny_(field.ny), horizontalEdges_(static_cast<long>(nx_ - 1) * ny_),
+        : field_(field),
+          nx_(field.nx),
+          ny_(field.ny),
+          horizontalEdges_(static_cast<long>(nx_ - 1) * ny_),
           firstSegment_(horizontalEdges_ + static_cast<long>(nx_) * (ny_ - 1), -1),
-          secondSegment_(firstSegment_.size(), -1), cellLow_(cellLow), cellHigh_(cellHigh) {}
+          secondSegment_(firstSegment_.size(), -1),
+          cellLow_(cellLow),
+          cellHigh_(cellHigh) {}
 
     ContourSet trace(double level) {
         level_ = level;
@@ -57,8 +62,8 @@ private:
         const double v00 = field_.at(i, j), v10 = field_.at(i + 1, j);
         const double v11 = field_.at(i + 1, j + 1), v01 = field_.at(i, j + 1);
         if (!std::isfinite(v00) || !std::isfinite(v10) || !std::isfinite(v11) || !std::isfinite(v01)) return;
-        const int index = (v00 >= level_ ? 1 : 0) | (v10 >= level_ ? 2 : 0) | (v11 >= level_ ? 4 : 0) |
-                          (v01 >= level_ ? 8 : 0);
+        const int index =
+            (v00 >= level_ ? 1 : 0) | (v10 >= level_ ? 2 : 0) | (v11 >= level_ ? 4 : 0) | (v01 >= level_ ? 8 : 0);
         if (index == 0 || index == 15) return;
         const long south = bottom(i, j), north = bottom(i, j + 1);
         const long west = left(i, j), east = left(i + 1, j);

@@ -11,9 +11,10 @@ namespace {
 class FormulaRowSampler final : public RowSampler {
 public:
     // inputs: the program inputs at the held point (variables, then any fixed constants).
-    FormulaRowSampler(const expr::DerivativeSet& derivatives, std::vector<double> inputs, int xVariable,
-                      int yVariable)
-        : valueOnly_(derivatives.function(), 0), held_(std::move(inputs)), xVariable_(xVariable),
+    FormulaRowSampler(const expr::DerivativeSet& derivatives, std::vector<double> inputs, int xVariable, int yVariable)
+        : valueOnly_(derivatives.function(), 0),
+          held_(std::move(inputs)),
+          xVariable_(xVariable),
           yVariable_(yVariable) {}
 
     bool usable() const { return valueOnly_.program().inputCount() == static_cast<int>(held_.size()); }
@@ -51,8 +52,8 @@ std::unique_ptr<RowSampler> makeFormulaRowSampler(const Objective& objective, co
                                                   int yVariable) {
     const auto* formula = dynamic_cast<const FormulaObjective*>(&objective);
     if (!formula) return nullptr;
-    auto sampler = std::make_unique<FormulaRowSampler>(formula->derivatives(), formula->inputsFor(held), xVariable,
-                                                       yVariable);
+    auto sampler =
+        std::make_unique<FormulaRowSampler>(formula->derivatives(), formula->inputsFor(held), xVariable, yVariable);
     if (!sampler->usable()) return nullptr;
     return sampler;
 }

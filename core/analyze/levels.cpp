@@ -55,7 +55,9 @@ LevelPlan planLevels(const Field& field) {
 
 }  // namespace
 
-bool levelsAreLogSpaced(const Field& field) { return planLevels(field).logSpaced; }
+bool levelsAreLogSpaced(const Field& field) {
+    return planLevels(field).logSpaced;
+}
 
 std::vector<double> chooseLevels(const Field& field, int count) {
     std::vector<double> levels;

@@ -10,17 +10,25 @@ namespace sw::analyze {
 
 const char* toString(Shape shape) {
     switch (shape) {
-        case Shape::Bowl: return "bowl";
-        case Shape::Dome: return "dome";
-        case Shape::Saddle: return "saddle";
-        case Shape::FlatDirection: return "flat direction";
-        case Shape::Ridge: return "ridge";
-        case Shape::Unknown: break;
+        case Shape::Bowl:
+            return "bowl";
+        case Shape::Dome:
+            return "dome";
+        case Shape::Saddle:
+            return "saddle";
+        case Shape::FlatDirection:
+            return "flat direction";
+        case Shape::Ridge:
+            return "ridge";
+        case Shape::Unknown:
+            break;
     }
     return "unknown";
 }
 
-double QuadraticModel::at(const Vector& p) const { return value + gradient.dot(p) + 0.5 * p.dot(hessian * p); }
+double QuadraticModel::at(const Vector& p) const {
+    return value + gradient.dot(p) + 0.5 * p.dot(hessian * p);
+}
 
 std::vector<double> QuadraticModel::along(const Vector& direction, const std::vector<double>& ts) const {
     // m(t d) = f + t g'd + t^2/2 d'Hd
@@ -49,7 +57,9 @@ std::string eigenvalueList(const Vector& eigenvalues) {
     return list;
 }
 
-std::string directions(int count) { return std::to_string(count) + (count == 1 ? " direction" : " directions"); }
+std::string directions(int count) {
+    return std::to_string(count) + (count == 1 ? " direction" : " directions");
+}
 
 }  // namespace
 
@@ -78,9 +88,12 @@ QuadraticModel quadraticModel(const Objective& objective, const Vector& x, doubl
     int positive = 0, negative = 0, flat = 0;
     for (Eigen::Index k = 0; k < n; ++k) {
         const double lambda = model.eigenvalues(k);
-        if (std::abs(lambda) <= zero) ++flat;
-        else if (lambda > 0) ++positive;
-        else ++negative;
+        if (std::abs(lambda) <= zero)
+            ++flat;
+        else if (lambda > 0)
+            ++positive;
+        else
+            ++negative;
     }
     const double smallest = n ? model.eigenvalues.cwiseAbs().minCoeff() : 0.0;
     model.conditionNumber = smallest > 0 ? largest / smallest : std::numeric_limits<double>::infinity();

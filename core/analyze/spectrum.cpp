@@ -36,7 +36,8 @@ std::vector<SpectrumPoint> spectrumAlong(const solve::Run& run, const Objective*
             objective->valueGradientHessian(record.x, gradient, hessian);
             if (hessian.allFinite()) {
                 const Matrix symmetric = 0.5 * (hessian + hessian.transpose());
-                point.eigenvalues = Eigen::SelfAdjointEigenSolver<Matrix>(symmetric, Eigen::EigenvaluesOnly).eigenvalues();
+                point.eigenvalues =
+                    Eigen::SelfAdjointEigenSolver<Matrix>(symmetric, Eigen::EigenvaluesOnly).eigenvalues();
                 point.conditionNumber = conditionOf(point.eigenvalues);
             }
         }

@@ -65,8 +65,10 @@ std::shared_ptr<const Objective> makeFitObjective(const Study& study, const Data
     definition.parameters = study.variableNames();
     if (!parseLoss(fit.loss, definition.loss))
         throw StudyError("objective.loss", "must be one of: " + lossList() + " (got \"" + fit.loss + "\")");
-    if (fit.weightsKind == "sigma") definition.sigma = fit.weights;
-    else definition.weights = fit.weights;
+    if (fit.weightsKind == "sigma")
+        definition.sigma = fit.weights;
+    else
+        definition.weights = fit.weights;
     definition.scale = fit.lossScale;
     try {
         return std::make_shared<const FitObjective>(std::move(table), std::move(definition));

@@ -37,11 +37,11 @@ struct Variable {
 };
 
 struct MethodEntry {
-    std::string label;             // shown in legends; unique within the study
-    std::string method;            // registry id
+    std::string label;   // shown in legends; unique within the study
+    std::string method;  // registry id
     solve::OptionValues options;
-    std::string colour;            // "#rrggbb"
-    std::string marker;            // "circle", "square", "triangle", "diamond", "cross", "plus", "star"
+    std::string colour;  // "#rrggbb"
+    std::string marker;  // "circle", "square", "triangle", "diamond", "cross", "plus", "star"
     bool enabled = true;
     bool operator==(const MethodEntry&) const = default;
 };
@@ -49,21 +49,21 @@ struct MethodEntry {
 const std::vector<std::string>& markerNames();
 
 struct DataFit {
-    std::string dataPath;          // relative to the study file
-    std::string checksum;          // "sha256:..." of the data file when saved
-    std::string model;             // formula in columns and parameters
-    std::string response;          // column name
+    std::string dataPath;  // relative to the study file
+    std::string checksum;  // "sha256:..." of the data file when saved
+    std::string model;     // formula in columns and parameters
+    std::string response;  // column name
     std::string loss = "least-squares";
-    std::string weights;           // column name, optional
+    std::string weights;                  // column name, optional
     std::string weightsKind = "weights";  // "weights" or "sigma"
-    double lossScale = 1.0;        // Huber/Cauchy scale
-    std::string separator = "auto";   // "auto", "comma", "semicolon", "tab"
-    bool dropIncompleteRows = false;  // skip rows with empty cells (the count is reported)
+    double lossScale = 1.0;               // Huber/Cauchy scale
+    std::string separator = "auto";       // "auto", "comma", "semicolon", "tab"
+    bool dropIncompleteRows = false;      // skip rows with empty cells (the count is reported)
     bool operator==(const DataFit&) const = default;
 };
 
 struct ViewSettings {
-    int plotX = 0, plotY = 1;      // indices into variables
+    int plotX = 0, plotY = 1;  // indices into variables
     bool logColour = false;
     int contourCount = 14;
     int gridCells = 200;
@@ -73,9 +73,9 @@ struct ViewSettings {
 struct Study {
     std::string title;
     std::string notes;
-    std::string formula;                 // formula mode; empty in data-fit mode
-    std::optional<DataFit> fit;          // data-fit mode
-    std::vector<Variable> variables;     // formula variables, or fit parameters
+    std::string formula;              // formula mode; empty in data-fit mode
+    std::optional<DataFit> fit;       // data-fit mode
+    std::vector<Variable> variables;  // formula variables, or fit parameters
     std::vector<MethodEntry> methods;
     int maxIterations = 200;
     double gradientTolerance = 1e-8;
@@ -109,7 +109,7 @@ struct Study {
 //                   "relative_gradient_tolerance": 0, "step_tolerance": 1e-14, "function_tolerance": 0 },
 //     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 } }
 Study fromJson(const std::string& text, const std::string& baseDirectory);
-std::string toJson(const Study& study);  // stable key order, 2-space indent
+std::string toJson(const Study& study);   // stable key order, 2-space indent
 Study loadFile(const std::string& path);  // throws StudyError (place "file" for I/O)
 // Atomic for the command line (temp file + rename); the window uses QSaveFile with toJson.
 void saveFile(const Study& study, const std::string& path);

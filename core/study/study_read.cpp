@@ -29,7 +29,8 @@ namespace sw::study {
 using Json = nlohmann::ordered_json;
 
 StudyError::StudyError(std::string place, std::string problem)
-    : std::runtime_error(place.empty() ? problem : place + ": " + problem), place_(std::move(place)),
+    : std::runtime_error(place.empty() ? problem : place + ": " + problem),
+      place_(std::move(place)),
       problem_(std::move(problem)) {}
 
 const std::vector<std::string>& markerNames() {
@@ -41,15 +42,22 @@ namespace {
 
 std::string jsonTypeName(const Json& value) {
     switch (value.type()) {
-        case Json::value_t::null: return "null";
-        case Json::value_t::boolean: return "true/false";
-        case Json::value_t::string: return "text";
-        case Json::value_t::array: return "a list";
-        case Json::value_t::object: return "an object";
+        case Json::value_t::null:
+            return "null";
+        case Json::value_t::boolean:
+            return "true/false";
+        case Json::value_t::string:
+            return "text";
+        case Json::value_t::array:
+            return "a list";
+        case Json::value_t::object:
+            return "an object";
         case Json::value_t::number_integer:
         case Json::value_t::number_unsigned:
-        case Json::value_t::number_float: return "a number";
-        default: return "something else";
+        case Json::value_t::number_float:
+            return "a number";
+        default:
+            return "something else";
     }
 }
 
@@ -147,7 +155,9 @@ private:
     std::vector<std::string> keys_;
 };
 
-std::string item(const std::string& place, std::size_t index) { return place + "[" + std::to_string(index) + "]"; }
+std::string item(const std::string& place, std::size_t index) {
+    return place + "[" + std::to_string(index) + "]";
+}
 
 // Line and column (1-based) of a byte offset in the text.
 std::string lineAndColumn(const std::string& text, std::size_t byte) {
@@ -168,8 +178,10 @@ Json parseDocument(const std::string& text) {
     std::vector<std::set<std::string>> seen;
     std::string duplicate;
     Json::parser_callback_t watch = [&](int, nlohmann::json::parse_event_t event, Json& parsed) {
-        if (event == nlohmann::json::parse_event_t::object_start) seen.emplace_back();
-        else if (event == nlohmann::json::parse_event_t::object_end && !seen.empty()) seen.pop_back();
+        if (event == nlohmann::json::parse_event_t::object_start)
+            seen.emplace_back();
+        else if (event == nlohmann::json::parse_event_t::object_end && !seen.empty())
+            seen.pop_back();
         else if (event == nlohmann::json::parse_event_t::key && !seen.empty() && duplicate.empty() &&
                  !seen.back().insert(parsed.get<std::string>()).second)
             duplicate = parsed.get<std::string>();
@@ -209,8 +221,9 @@ void readHeader(const Json& document) {
         throw StudyError("version", "must be a whole number (got " + shown(version) + ")");
     const long long v = version.get<long long>();
     if (v > kFormatVersion)
-        throw StudyError("version", "this file is format version " + std::to_string(v) + "; this Saddlewise reads up to " +
-                                        std::to_string(kFormatVersion) + " - update Saddlewise");
+        throw StudyError("version", "this file is format version " + std::to_string(v) +
+                                        "; this Saddlewise reads up to " + std::to_string(kFormatVersion) +
+                                        " - update Saddlewise");
     if (v < 1) throw StudyError("version", "must be 1 or more (got " + std::to_string(v) + ")");
 }
 
@@ -245,8 +258,9 @@ std::vector<Variable> readVariables(const Json& document) {
 }
 
 bool validColour(const std::string& colour) {
-    return colour.size() == 7 && colour[0] == '#' &&
-           std::all_of(colour.begin() + 1, colour.end(), [](char c) { return std::isxdigit(static_cast<unsigned char>(c)); });
+    return colour.size() == 7 && colour[0] == '#' && std::all_of(colour.begin() + 1, colour.end(), [](char c) {
+               return std::isxdigit(static_cast<unsigned char>(c));
+           });
 }
 
 std::string lowercase(std::string text) {
@@ -267,14 +281,17 @@ std::string optionText(const solve::OptionSpec& spec, const Json& value, const s
                 ObjectReader::fail(place, "must be " + spec.rangeText() + ", in quotes (got " + shown(value) + ")");
             return value.get<std::string>();
         case Type::Integer: {
-            if (!value.is_number()) ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
+            if (!value.is_number())
+                ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
             const double d = value.get<double>();
             if (d != std::floor(d) || std::abs(d) > 9e15)
-                ObjectReader::fail(place, "must be a whole number, " + spec.rangeText() + " (got " + shown(value) + ")");
+                ObjectReader::fail(place,
+                                   "must be a whole number, " + spec.rangeText() + " (got " + shown(value) + ")");
             return std::to_string(static_cast<long long>(d));
         }
         case Type::Real:
-            if (!value.is_number()) ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
+            if (!value.is_number())
+                ObjectReader::fail(place, "must be " + spec.rangeText() + " (got " + shown(value) + ")");
             return numberText(value.get<double>());
     }
     return "";
@@ -303,7 +320,8 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
         entry.method = in.text("method", "", true);
         const solve::MethodInfo* info = solve::findMethod(entry.method);
         if (!info)
-            ObjectReader::fail(in.at("method"), "unknown method '" + entry.method + "'; known: " + solve::methodIdList());
+            ObjectReader::fail(in.at("method"),
+                               "unknown method '" + entry.method + "'; known: " + solve::methodIdList());
         if (info->needsResiduals && !residualForm)
             ObjectReader::fail(in.at("method"), entry.method +
                                                     " needs a least-squares fit (residual form); this study's "
@@ -312,8 +330,9 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
         if (entry.label.empty()) ObjectReader::fail(in.at("label"), "must not be empty");
         for (const MethodEntry& earlier : entries)
             if (earlier.label == entry.label)
-                ObjectReader::fail(in.at("label"), "'" + entry.label + "' is already used by an earlier entry; labels "
-                                                                       "must be unique (they name the runs)");
+                ObjectReader::fail(in.at("label"), "'" + entry.label +
+                                                       "' is already used by an earlier entry; labels "
+                                                       "must be unique (they name the runs)");
         if (in.has("options")) {
             ObjectReader options(in.get("options"), in.at("options"), {});
             for (const auto& option : in.get("options").items()) {
@@ -324,8 +343,9 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                 if (!spec) {
                     std::vector<std::string> names;
                     for (const solve::OptionSpec& s : info->options) names.push_back(s.name);
-                    ObjectReader::fail(optionPlace, "unknown option for " + entry.method +
-                                                        (names.empty() ? "; it takes no options" : "; its options: " + join(names)));
+                    ObjectReader::fail(optionPlace,
+                                       "unknown option for " + entry.method +
+                                           (names.empty() ? "; it takes no options" : "; its options: " + join(names)));
                 }
                 const std::string text = optionText(*spec, option.value(), optionPlace);
                 const std::string problem = solve::checkOptions(info->options, {{option.key(), text}});
@@ -362,7 +382,8 @@ void readStopping(const Json& document, Study& study) {
     auto nonNegative = [&](const std::string& key, double fallback, double below) {
         const double v = in.number(key, fallback);
         if (!(v >= 0) || !(v < below))
-            ObjectReader::fail(in.at(key), "must be >= 0" + (below < 1e300 ? " and < " + numberText(below) : std::string()) +
+            ObjectReader::fail(in.at(key), "must be >= 0" +
+                                               (below < 1e300 ? " and < " + numberText(below) : std::string()) +
                                                " (got " + numberText(v) + ")");
         return v;
     };
@@ -400,7 +421,9 @@ void readView(const Json& document, Study& study) {
 }
 
 // Checks the objective by building it, so a study that loads is a study that runs.
-void checkObjective(const Study& study, const std::string& baseDirectory) { makeObjective(study, baseDirectory); }
+void checkObjective(const Study& study, const std::string& baseDirectory) {
+    makeObjective(study, baseDirectory);
+}
 
 }  // namespace
 
@@ -421,13 +444,15 @@ Study fromJson(const std::string& text, const std::string& baseDirectory) {
     objective.rejectUnknownKeys();
     const bool formulaMode = objective.has("formula");
     if (formulaMode == objective.has("data"))
-        ObjectReader::fail("objective", formulaMode ? "has both \"formula\" and \"data\"; a study is one or the other"
-                                                    : "needs either \"formula\" (formula mode) or \"data\" (data-fit mode)");
+        ObjectReader::fail("objective", formulaMode
+                                            ? "has both \"formula\" and \"data\"; a study is one or the other"
+                                            : "needs either \"formula\" (formula mode) or \"data\" (data-fit mode)");
     bool residualForm = false;
     if (formulaMode) {
         for (const char* key : {"checksum", "model", "response", "loss", "weights", "sigma", "scale", "separator",
                                 "drop_incomplete_rows"})
-            if (objective.has(key)) ObjectReader::fail(objective.at(key), "belongs to data-fit mode, not to a formula study");
+            if (objective.has(key))
+                ObjectReader::fail(objective.at(key), "belongs to data-fit mode, not to a formula study");
         study.formula = objective.text("formula", "", true);
         if (study.formula.find_first_not_of(" \t\r\n") == std::string::npos)
             ObjectReader::fail(objective.at("formula"), "is empty");
@@ -458,7 +483,8 @@ Study fromJson(const std::string& text, const std::string& baseDirectory) {
         if (loss == Loss::Weighted && fit.weights.empty())
             ObjectReader::fail("objective", "the weighted loss needs a \"weights\" or a \"sigma\" column");
         fit.lossScale = objective.number("scale", fit.lossScale);
-        if (!(fit.lossScale > 0)) ObjectReader::fail(objective.at("scale"), "must be > 0 (got " + numberText(fit.lossScale) + ")");
+        if (!(fit.lossScale > 0))
+            ObjectReader::fail(objective.at("scale"), "must be > 0 (got " + numberText(fit.lossScale) + ")");
         fit.separator = objective.text("separator", fit.separator);
         Separator separator;
         if (!parseSeparator(fit.separator, separator) || fit.separator.size() < 3)

@@ -32,8 +32,10 @@ Json optionValue(const std::string& method, const std::string& name, const std::
     if (!spec) return text;
     using Type = solve::OptionSpec::Type;
     switch (spec->type) {
-        case Type::Boolean: return text == "true" || text == "1" || text == "yes" || text == "on";
-        case Type::Choice: return text;
+        case Type::Boolean:
+            return text == "true" || text == "1" || text == "yes" || text == "on";
+        case Type::Choice:
+            return text;
         case Type::Integer: {
             long long v = 0;
             auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
@@ -103,7 +105,7 @@ std::string toJson(const Study& study) {
 
     auto variableName = [&](int index) {
         return index >= 0 && index < static_cast<int>(study.variables.size()) ? study.variables[index].name
-                                                                                : std::string();
+                                                                              : std::string();
     };
     document["view"] = {{"plot_x", variableName(study.view.plotX)},
                         {"plot_y", variableName(study.view.plotY)},
@@ -122,7 +124,8 @@ void saveFile(const Study& study, const std::string& path) {
     std::string temporary = (folder / ("." + target.filename().string() + ".saving-XXXXXX")).string();
     const int descriptor = ::mkstemp(temporary.data());
     if (descriptor < 0)
-        throw StudyError("file", "cannot create a temporary file in '" + folder.string() + "': " + std::strerror(errno));
+        throw StudyError("file",
+                         "cannot create a temporary file in '" + folder.string() + "': " + std::strerror(errno));
     auto fail = [&](const std::string& what) {
         const std::string reason = std::strerror(errno);
         ::close(descriptor);

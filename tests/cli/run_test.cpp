@@ -56,7 +56,8 @@ TEST(RunVerb, EverySampleRunsEveryEnabledMethodAndReportsItInJson) {
         const Json study = Json::parse(std::ifstream(path));
         std::vector<std::string> enabled;
         for (const Json& entry : study["methods"])
-            if (entry.value("enabled", true)) enabled.push_back(entry.value("label", entry["method"].get<std::string>()));
+            if (entry.value("enabled", true))
+                enabled.push_back(entry.value("label", entry["method"].get<std::string>()));
         ASSERT_GE(study["methods"].size(), 4u) << "a sample shows 4 to 6 methods";
         ASSERT_LE(study["methods"].size(), 6u);
 
@@ -111,8 +112,8 @@ TEST(RunVerb, TheSaddleSampleShowsNewtonStoppingOnASaddleWhileOthersEscape) {
 }
 
 TEST(RunVerb, TheBadlyScaledSampleLeavesSteepestDescentShortOfTheMinimum) {
-    const Outcome outcome = runSaddlewise(
-        "run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/heater-power-and-duty.json") + " --json");
+    const Outcome outcome =
+        runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/heater-power-and-duty.json") + " --json");
     ASSERT_EQ(outcome.exitCode, 0);
     for (const Json& run : Json::parse(outcome.out)["runs"]) {
         if (run["method"] == "gradient-descent") {
@@ -136,9 +137,9 @@ TEST(RunVerb, TheTableNamesEveryEnabledMethod) {
 }
 
 TEST(RunVerb, MaxIterationsOverridesTheStudy) {
-    const Outcome outcome = runSaddlewise(
-        "run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/pump-flow-calibration.json") +
-        " --json --max-iterations 3");
+    const Outcome outcome =
+        runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/pump-flow-calibration.json") +
+                      " --json --max-iterations 3");
     ASSERT_EQ(outcome.exitCode, 0);
     for (const Json& run : Json::parse(outcome.out)["runs"]) EXPECT_LE(run["iterations"].get<int>(), 3);
 }

@@ -96,7 +96,8 @@ TEST(ContourLines, CellsWithANonFiniteCornerAreSkipped) {
     // f = x^2 + y^2 but undefined (NaN) for x < 0: the ring of radius 1 becomes a half ring.
     FunctionObjective halfBowl(
         {"x", "y"}, [](const Vector& v) { return v(0) < 0 ? std::nan("") : v.squaredNorm(); },
-        [](const Vector& v, Vector& g) { g = 2 * v; }, [](const Vector&, Matrix& h) { h = 2 * Matrix::Identity(2, 2); });
+        [](const Vector& v, Vector& g) { g = 2 * v; },
+        [](const Vector&, Matrix& h) { h = 2 * Matrix::Identity(2, 2); });
     Field field;
     ASSERT_TRUE(sampleField(halfBowl, Vector::Zero(2), 0, 1, {-2, 2, -2, 2}, 81, 81, field));
     EXPECT_GT(field.nonFiniteCells, 0);

@@ -13,8 +13,8 @@ namespace {
 
 TEST(CheckDerivatives, PassesExactDerivativesOfACurvedValley) {
     auto valley = testing::curvedValley();
-    for (const Vector& x : {(Vector(2) << -1.2, 1).finished(), (Vector(2) << 0.3, -2).finished(),
-                            (Vector(2) << 150, 2e4).finished()}) {
+    for (const Vector& x :
+         {(Vector(2) << -1.2, 1).finished(), (Vector(2) << 0.3, -2).finished(), (Vector(2) << 150, 2e4).finished()}) {
         const DerivativeCheck check = checkDerivatives(*valley, x);
         EXPECT_TRUE(check.passed) << check.message;
         EXPECT_LT(check.gradientError, 1e-7);

@@ -11,7 +11,9 @@ namespace {
 // Verdicts follow from the signs of the Hessian's eigenvalues: common practice, no
 // published source (any text on second-order optimality conditions).
 
-Vector point(double x, double y) { return (Vector(2) << x, y).finished(); }
+Vector point(double x, double y) {
+    return (Vector(2) << x, y).finished();
+}
 
 TEST(QuadraticModel, APositiveDefiniteHessianIsABowlWhoseNewtonPointIsTheMinimiser) {
     auto bowl = testing::quadratic(1, 4);  // minimiser at the origin

@@ -23,9 +23,7 @@ inline std::unique_ptr<FunctionObjective> curvedValley() {
         [](const Vector& v, Vector& g) {
             g << -400 * v(0) * (v(1) - v(0) * v(0)) - 2 * (1 - v(0)), 200 * (v(1) - v(0) * v(0));
         },
-        [](const Vector& v, Matrix& h) {
-            h << 1200 * v(0) * v(0) - 400 * v(1) + 2, -400 * v(0), -400 * v(0), 200;
-        },
+        [](const Vector& v, Matrix& h) { h << 1200 * v(0) * v(0) - 400 * v(1) + 2, -400 * v(0), -400 * v(0), 200; },
         "curved valley");
 }
 

@@ -70,9 +70,9 @@ TEST(StudyJson, WritesOptionsAsTypedValues) {
 
 struct BadStudy {
     const char* what;
-    std::string json;          // the whole document
-    std::string place;         // expected StudyError::place()
-    std::string problemPart;   // expected inside StudyError::problem()
+    std::string json;         // the whole document
+    std::string place;        // expected StudyError::place()
+    std::string problemPart;  // expected inside StudyError::problem()
 };
 
 std::string edited(const std::function<void(Json&)>& edit) {
@@ -102,7 +102,9 @@ std::vector<BadStudy> badStudies() {
         {"one variable only", edited([](Json& d) { d["variables"].erase(1); }), "variables", "at least two"},
         {"negative radius", edited([](Json& d) { d["methods"][2]["options"]["initial_radius"] = -1; }),
          "methods[2].options.initial_radius", "must be > 0 (got -1)"},
-        {"unknown option", edited([](Json& d) { d["methods"][1]["options"] = {{"radius", 1}}; }),
+        {"unknown option", edited([](Json& d) {
+             d["methods"][1]["options"] = {{"radius", 1}};
+         }),
          "methods[1].options.radius", "unknown option for bfgs"},
         {"option of the wrong type", edited([](Json& d) { d["methods"][2]["options"]["initial_radius"] = "big"; }),
          "methods[2].options.initial_radius", "(got \"big\")"},
@@ -112,8 +114,7 @@ std::vector<BadStudy> badStudies() {
          "unknown method 'bfgss'; known:"},
         {"typo in an entry key", edited([](Json& d) { d["methods"][0]["colur"] = "#000000"; }), "methods[0].colur",
          "unknown key"},
-        {"bad colour", edited([](Json& d) { d["methods"][1]["colour"] = "orange"; }), "methods[1].colour",
-         "#rrggbb"},
+        {"bad colour", edited([](Json& d) { d["methods"][1]["colour"] = "orange"; }), "methods[1].colour", "#rrggbb"},
         {"bad marker", edited([](Json& d) { d["methods"][1]["marker"] = "hexagon"; }), "methods[1].marker",
          "must be one of: circle"},
         {"enabled as text", edited([](Json& d) { d["methods"][1]["enabled"] = "yes"; }), "methods[1].enabled",
@@ -141,7 +142,10 @@ std::vector<BadStudy> badStudies() {
          "must differ"},
         {"grid too fine", edited([](Json& d) { d["view"]["grid_cells"] = 100000; }), "view.grid_cells",
          "from 10 to 2000"},
-        {"methods not a list", edited([](Json& d) { d["methods"] = {{"a", 1}}; }), "methods", "must be a list"},
+        {"methods not a list", edited([](Json& d) {
+             d["methods"] = {{"a", 1}};
+         }),
+         "methods", "must be a list"},
         {"JSON syntax error", "{\n  \"format\": \"saddlewise-study\",\n  \"version\": 1,,\n}", "line 3, column 16",
          "not valid JSON"},
         {"repeated key", "{ \"format\": \"saddlewise-study\", \"version\": 1, \"version\": 1 }", "version", "twice"},

@@ -16,8 +16,8 @@ using Json = nlohmann::ordered_json;
 // never anything else (common practice, no published source: a cheap structured fuzz).
 TEST(StudyJson, AnyMutatedValueGivesAStudyErrorOrAValidStudy) {
     const Json original = Json::parse(testing::validFormulaStudy());
-    const std::vector<Json> replacements = {nullptr, true, "text", 0, -1, 1e308, 2.5, Json::array(), Json::object(),
-                                            Json::array({1, "x"})};
+    const std::vector<Json> replacements = {
+        nullptr, true, "text", 0, -1, 1e308, 2.5, Json::array(), Json::object(), Json::array({1, "x"})};
     std::vector<Json::json_pointer> pointers;
     std::function<void(const Json&, const Json::json_pointer&)> collect = [&](const Json& value,
                                                                               const Json::json_pointer& at) {
