@@ -280,15 +280,43 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
         // lambda = 0 when B is positive definite and the Newton step fits: one Cholesky
         // factorisation settles it (Moré & Sorensen 1983 begin the same way), and the
         // eigendecomposition below is only needed otherwise.
-        const Eigen::LLT<Matrix> llt(b);
+        Eigen::LLT<Matrix> llt(b);
         if (llt.info() == Eigen::Success) {
-            Vector newton = -llt.solve(g);
-            if (newton.allFinite() && newton.norm() <= radius) {
-                result.step = std::move(newton);
+            Vector p = -llt.solve(g);
+            if (p.allFinite() && p.norm() <= radius) {
+                result.step = std::move(p);
                 result.kind = StepKind::Interior;
                 result.note = "Newton step inside the region (lambda = 0)";
                 result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
                 return result;
+            }
+            // B positive definite, Newton step outside: Moré & Sorensen's Newton iteration
+            // lambda += (|p| / |q|)^2 (|p| - radius) / radius with R'R = B + lambda I and
+            // R'q = p (Nocedal & Wright 2006, Alg. 4.3). From lambda = 0 it increases
+            // monotonically to the root, so B + lambda I stays positive definite.
+            const Eigen::Index n = g.size();
+            double lambda = 0;
+            for (int it = 1; it <= 30 && p.allFinite(); ++it) {
+                const double pnorm = p.norm();
+                if (std::abs(pnorm - radius) <= 1e-12 * radius) {
+                    if (pnorm > radius) p *= radius / pnorm;
+                    result.step = std::move(p);
+                    result.kind = StepKind::Boundary;
+                    result.onBoundary = true;
+                    result.multiplier = lambda;
+                    result.innerIterations = it;
+                    result.note = "boundary step, lambda = " + formatNumber(lambda) + " after " + std::to_string(it) +
+                                  " Cholesky-Newton iterations";
+                    result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
+                    return result;
+                }
+                const Vector q = llt.matrixL().solve(p);
+                const double step = (pnorm / q.norm()) * (pnorm / q.norm()) * (pnorm - radius) / radius;
+                if (!(step >= 0) || !std::isfinite(step)) break;  // left the safe side: use the eigenbasis
+                lambda += step;
+                llt.compute(b + lambda * Matrix::Identity(n, n));
+                if (llt.info() != Eigen::Success) break;
+                p = -llt.solve(g);
             }
         }
     }
