@@ -208,9 +208,13 @@ public:
         const double directional = -(jpSq + lambda * stepScaledNorm * stepScaledNorm) / fnormSq;
         record.predictedDecrease = 0.5 * predicted * fnormSq;
 
+        // The trial point is evaluated with its Jacobian in one pass (the compiled programs share
+        // the model's subexpressions): most steps are accepted, and an accepted step then needs
+        // no second pass over the rows.
         const Vector trial = state.x + step;
         Vector trialResiduals;
-        eval.residuals(trial, trialResiduals, nullptr);
+        Matrix trialJacobian;
+        const double trialValue = eval.residuals(trial, trialResiduals, &trialJacobian);
         const bool finite = !eval.sawNonFinite();
         if (!finite) eval.clearNonFinite();
         const double trialNormSq = finite ? trialResiduals.squaredNorm() : std::numeric_limits<double>::infinity();
@@ -238,7 +242,10 @@ public:
         record.accepted = accepted;
         if (accepted) {
             state.x = trial;
-            evaluateWithJacobian(eval, state);
+            state.value = trialValue;
+            r_.swap(trialResiduals);
+            jacobian_.swap(trialJacobian);
+            state.gradient = jacobian_.transpose() * r_;
             const Vector norms = columnNorms();
             scale_ = scale_.cwiseMax(norms);
             ++iterationsDone_;
