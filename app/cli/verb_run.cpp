@@ -1,22 +1,19 @@
 // saddlewise run STUDY: runs every enabled lineup entry of a study from the study's start
 // and prints the side-by-side comparison (or one JSON object with every run).
 #include "app/cli/cli.h"
+#include "app/cli/run_report.h"
 #include "core/solve/solver.h"
 #include "core/study/study.h"
 
 #include <nlohmann/json.hpp>
 
-#include <algorithm>
-#include <cmath>
-#include <iomanip>
 #include <ostream>
-#include <sstream>
 
 namespace sw::cli {
 
 namespace {
 
-using Json = nlohmann::ordered_json;
+using Json = nlohmann::json;
 
 const char* kHelp =
     "Usage: saddlewise run STUDY.json [--json] [--max-iterations N]\n"
@@ -32,99 +29,11 @@ const char* kHelp =
     "\n"
     "Options:\n"
     "  --json               one JSON object: {\"study\": {...}, \"runs\": [...]}, each run with its\n"
-    "                       summary, end point and full per-iteration trace\n"
+    "                       label, options, summary, end point and full per-iteration trace\n"
     "  --max-iterations N   override the study's iteration limit (1 to 1000000)\n"
     "\n"
-    "Exit codes: 0 every method ran (whether or not it converged), 2 bad usage or a bad study.\n";
-
-Json number(double v) {
-    return std::isfinite(v) ? Json(v) : Json(nullptr);
-}
-
-Json vectorJson(const Vector& v) {
-    Json list = Json::array();
-    for (Eigen::Index i = 0; i < v.size(); ++i) list.push_back(number(v(i)));
-    return list;
-}
-
-Json pointJson(const Vector& x, const std::vector<std::string>& names) {
-    Json point = Json::object();
-    for (Eigen::Index i = 0; i < x.size() && i < static_cast<Eigen::Index>(names.size()); ++i)
-        point[names[static_cast<std::size_t>(i)]] = number(x(i));
-    return point;
-}
-
-Json countsJson(const solve::EvaluationCounts& c) {
-    return {{"value", c.value}, {"gradient", c.gradient}, {"hessian", c.hessian}};
-}
-
-Json recordJson(const solve::IterationRecord& r) {
-    Json record = {{"iteration", r.iteration},
-                   {"x", vectorJson(r.x)},
-                   {"value", number(r.value)},
-                   {"gradient_norm", number(r.gradientNorm)},
-                   {"step_kind", solve::toString(r.stepKind)},
-                   {"step_length", number(r.stepLength)},
-                   {"step_norm", number(r.stepNorm)},
-                   {"trust_radius", number(r.trustRadius)},
-                   {"ratio", number(r.ratio)},
-                   {"damping", number(r.damping)},
-                   {"damping_name", r.dampingName},
-                   {"accepted", r.accepted},
-                   {"hessian_eigenvalues", vectorJson(r.hessianEigenvalues)},
-                   {"condition_number", number(r.conditionNumber)},
-                   {"angle_to_steepest_descent", number(r.angleToSteepestDescent)},
-                   {"line_search_trials", r.trials.size()},
-                   {"evaluations", countsJson(r.evaluations)},
-                   {"note", r.note}};
-    return record;
-}
-
-Json runJson(const study::MethodEntry& entry, const solve::Run& run, const std::vector<std::string>& names) {
-    Json trace = Json::array();
-    for (const solve::IterationRecord& r : run.trace) trace.push_back(recordJson(r));
-    return {{"label", entry.label},
-            {"method", run.methodId},
-            {"options", entry.options},
-            {"termination", solve::toString(run.termination)},
-            {"converged", solve::isConvergence(run.termination)},
-            {"message", run.message},
-            {"x", pointJson(run.x, names)},
-            {"value", number(run.value)},
-            {"gradient_norm", number(run.gradientNorm)},
-            {"iterations", run.iterations()},
-            {"evaluations", countsJson(run.evaluations)},
-            {"end_point",
-             {{"kind", solve::toString(run.endPoint.kind)},
-              {"index", run.endPoint.index},
-              {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
-              {"description", run.endPoint.description}}},
-            {"trace", trace}};
-}
-
-std::string endPointText(const solve::EndPoint& p) {
-    if (p.kind == solve::PointKind::Saddle) return "saddle (index " + std::to_string(p.index) + ")";
-    return solve::toString(p.kind);
-}
-
-void printTable(std::ostream& out, const std::vector<std::vector<std::string>>& rows) {
-    std::vector<std::size_t> widths;
-    for (const auto& row : rows)
-        for (std::size_t c = 0; c < row.size(); ++c) {
-            if (widths.size() <= c) widths.push_back(0);
-            widths[c] = std::max(widths[c], row[c].size());
-        }
-    for (std::size_t r = 0; r < rows.size(); ++r) {
-        std::string line;
-        for (std::size_t c = 0; c < rows[r].size(); ++c) {
-            std::string cell = rows[r][c];
-            if (c + 1 < rows[r].size()) cell.resize(widths[c] + 2, ' ');
-            line += cell;
-        }
-        out << "  " << line << '\n';
-        if (r == 0) out << "  " << std::string(line.size(), '-') << '\n';
-    }
-}
+    "Exit codes: 0 every method ran (converged or stopped at a limit), 1 a run broke down\n"
+    "(non-finite values or a method failure), 2 bad usage or a bad study.\n";
 
 int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed = parseArgs(args, {"json"}, {"max-iterations"});
@@ -163,19 +72,26 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
 
     if (parsed.has("json")) {
         Json variables = Json::array();
-        for (const study::Variable& v : study.variables)
+        Json startPoint = Json::object();
+        for (const study::Variable& v : study.variables) {
             variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+            startPoint[v.name] = v.start;
+        }
         Json studyJson = {{"file", path},
                           {"title", study.title},
                           {"objective", objective->description()},
                           {"mode", study.isFit() ? "data-fit" : "formula"},
                           {"variables", variables},
-                          {"start", pointJson(start, names)},
+                          {"start", startPoint},
                           {"max_iterations", rules.maxIterations}};
         Json runList = Json::array();
-        for (std::size_t k = 0; k < runs.size(); ++k) runList.push_back(runJson(*lineup[k], runs[k], names));
+        for (std::size_t k = 0; k < runs.size(); ++k) {
+            Json run = runToJson(runs[k], names);
+            run["options"] = lineup[k]->options;
+            runList.push_back(std::move(run));
+        }
         out << Json({{"study", studyJson}, {"runs", runList}}).dump(2) << '\n';
-        return 0;
+        return exitCodeFor(runs);
     }
 
     out << (study.title.empty() ? path : study.title) << '\n';
@@ -184,20 +100,11 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     for (std::size_t i = 0; i < names.size(); ++i)
         out << (i ? ", " : " ") << names[i] << " = " << formatNumber(start(static_cast<Eigen::Index>(i)), 6);
     out << "\n\n";
-    std::vector<std::vector<std::string>> rows = {
-        {"label", "method", "iters", "evals f/g/H", "final f", "|grad f|", "ended by", "end point"}};
-    for (std::size_t k = 0; k < runs.size(); ++k) {
-        const solve::Run& r = runs[k];
-        rows.push_back({lineup[k]->label, r.methodId, std::to_string(r.iterations()),
-                        std::to_string(r.evaluations.value) + "/" + std::to_string(r.evaluations.gradient) + "/" +
-                            std::to_string(r.evaluations.hessian),
-                        formatNumber(r.value, 8), formatNumber(r.gradientNorm, 3), solve::toString(r.termination),
-                        endPointText(r.endPoint)});
-    }
-    printTable(out, rows);
+    printComparison(out, runs);
     out << '\n';
-    for (std::size_t k = 0; k < runs.size(); ++k) out << "  " << lineup[k]->label << ": " << runs[k].message << '\n';
-    return 0;
+    for (std::size_t k = 0; k < runs.size(); ++k)
+        out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+    return exitCodeFor(runs);
 }
 
 }  // namespace
