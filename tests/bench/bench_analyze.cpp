@@ -3,10 +3,12 @@
 #include "core/analyze/analyze.h"
 #include "core/objective/formula_objective.h"
 #include "core/objective/function_objective.h"
+#include "core/study/study.h"
 
 #include <benchmark/benchmark.h>
 
 #include <cmath>
+#include <filesystem>
 
 namespace {
 
@@ -94,6 +96,22 @@ void BM_Landscape600(benchmark::State& state) {
     }
 }
 BENCHMARK(BM_Landscape600)->Unit(benchmark::kMillisecond)->UseRealTime();
+
+// A data-fit landscape: every cell is a sum over the table's rows (the sensor sample, 121 rows).
+void BM_SampleFieldSensorFit(benchmark::State& state) {
+    const int n = static_cast<int>(state.range(0));
+    // Benchmarks get no source-folder macro: find samples/ from this file's own path.
+    const std::string path =
+        (std::filesystem::path(__FILE__).parent_path().parent_path().parent_path() / "samples" / "sensor-warmup.json")
+            .string();
+    const study::Study study = study::loadFile(path);
+    const auto objective = study::makeObjective(study, study::directoryOf(path));
+    const analyze::Box box{1, 30, 0, 30};
+    analyze::Field field;
+    for (auto _ : state) analyze::sampleField(*objective, study.start(), 2, 1, box, n, n, field);
+    state.SetItemsProcessed(state.iterations() * n * n);
+}
+BENCHMARK(BM_SampleFieldSensorFit)->Arg(150)->Unit(benchmark::kMillisecond)->UseRealTime();
 
 void BM_QuadraticModel(benchmark::State& state) {
     const Vector x = (Vector(2) << 1.3, 0.9).finished();
