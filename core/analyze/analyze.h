@@ -30,12 +30,16 @@ struct Field {
     double at(int i, int j) const { return values[static_cast<std::size_t>(j) * nx + i]; }
 };
 
-// Progress in [0,1]; cancel is polled between rows. Uses every hardware thread.
+// Progress in [0,1]; cancel is polled between rows.
 struct Control {
     const std::atomic<bool>* cancel = nullptr;
     std::function<void(double)> progress;
 };
-// Returns false when cancelled (field then incomplete).
+// Returns false when cancelled (field then incomplete). Uses every hardware thread (the
+// calling thread works too, and is the only one that calls `progress`). A compiled formula
+// (FormulaObjective) is sampled a row at a time by block evaluation; any other objective
+// point by point with Objective::value (a fit objective sums over its rows per cell).
+// Throws std::invalid_argument for a bad box, grid (< 2 x 2), variable pair or held point.
 bool sampleField(const Objective& objective, const Vector& held, int xVariable, int yVariable, const Box& box, int nx,
                  int ny, Field& field, const Control& control = {});
 
@@ -57,6 +61,8 @@ std::vector<double> chooseLevels(const Field& field, int count);
 // Whether chooseLevels picks log spacing for this field (also a hint for a log colour scale).
 bool levelsAreLogSpaced(const Field& field);
 // Marching squares with saddle-cell disambiguation by the cell centre; NaN cells are skipped.
+// One ContourSet per finite level, in order. Closed rings have closed = true and repeat their
+// first point at the end; open lines end on the box edge or at a non-finite region.
 std::vector<ContourSet> contourLines(const Field& field, const std::vector<double>& levels);
 
 // The shape of a quadratic model, from the signs of the Hessian's eigenvalues. An eigenvalue
