@@ -243,6 +243,7 @@ void LineupEditor::setCurrentEntry(int index) {
 }
 
 void LineupEditor::refreshList() {
+    const bool wasUpdating = updating_;
     updating_ = true;
     const int current = list_->currentRow();
     list_->clear();
@@ -263,10 +264,11 @@ void LineupEditor::refreshList() {
         item->setToolTip(tip);
     }
     if (current >= 0 && current < list_->count()) list_->setCurrentRow(current);
-    updating_ = false;
+    updating_ = wasUpdating;
 }
 
 void LineupEditor::refreshDetails() {
+    const bool wasUpdating = updating_;
     updating_ = true;
     const int i = currentEntry();
     const bool has = i >= 0 && i < static_cast<int>(entries_.size());
@@ -280,7 +282,7 @@ void LineupEditor::refreshDetails() {
         label_->clear();
         method_->clear();
         message_->clear();
-        updating_ = false;
+        updating_ = wasUpdating;
         return;
     }
     const study::MethodEntry& e = entries_[static_cast<std::size_t>(i)];
@@ -321,7 +323,7 @@ void LineupEditor::refreshDetails() {
     const std::string why = problem(e);
     message_->setText(QString::fromStdString(why));
     message_->setVisible(!why.empty());
-    updating_ = false;
+    updating_ = wasUpdating;
 }
 
 void LineupEditor::onItemChanged() {

@@ -569,6 +569,7 @@ void MainWindow::rebuildObjective() {
     candidate.methods = lineupEditor_->entries();
     std::shared_ptr<const Objective> built;
     try {
+        objectiveEditor_->parseActiveFormula(candidate);
         built = study::makeObjective(candidate, baseDirectory_.toStdString());
     } catch (const expr::FormulaError& e) {
         objectiveEditor_->showFormulaError(QString::fromStdString(e.reason()), e.position());
@@ -785,7 +786,10 @@ void MainWindow::requestField() {
     request.yVariable = std::clamp(study_.view.plotY, 0, n - 1);
     if (!hasViewBox_) {
         viewBox_ = homeBox();
+        hasViewBox_ = true;
         landscape_->setHomeBox(viewBox_);
+        const QSignalBlocker quiet(landscape_);  // we are sampling this box already
+        landscape_->resetView();
     }
     request.box = viewBox_;
     request.nx = request.ny = std::clamp(study_.view.gridCells, 20, 2000);

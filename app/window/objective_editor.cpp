@@ -136,6 +136,7 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     auto* top = new QWidget(this);
     auto* topLayout = new QVBoxLayout(top);
     topLayout->setContentsMargins(0, 0, 0, 0);
+    modes_->setSizePolicy(QSizePolicy::Preferred, QSizePolicy::Maximum);
     topLayout->addWidget(modes_);
     topLayout->addWidget(message_);
     topLayout->addLayout(buttons);
@@ -154,7 +155,19 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     debounce_.setSingleShot(true);
     debounce_.setInterval(250);
     connect(&debounce_, &QTimer::timeout, this, [this] { emit edited(); });
-    connect(modes_, &QTabWidget::currentChanged, this, [this] { scheduleEdited(); });
+    // Only the current page counts for the tab widget's size, so the short formula page
+    // does not inherit the fit page's height.
+    auto fitPages = [this] {
+        for (int i = 0; i < modes_->count(); ++i)
+            modes_->widget(i)->setSizePolicy(QSizePolicy::Preferred,
+                                             i == modes_->currentIndex() ? QSizePolicy::Preferred : QSizePolicy::Ignored);
+        modes_->updateGeometry();
+    };
+    fitPages();
+    connect(modes_, &QTabWidget::currentChanged, this, [this, fitPages] {
+        fitPages();
+        scheduleEdited();
+    });
 }
 
 ObjectiveEditor::~ObjectiveEditor() = default;
@@ -167,6 +180,7 @@ void ObjectiveEditor::buildFormulaPage(QWidget* page) {
     auto* layout = new QVBoxLayout(page);
     layout->setContentsMargins(4, 4, 4, 4);
     layout->addWidget(formula_);
+    layout->addStretch(1);
 }
 
 void ObjectiveEditor::buildFitPage(QWidget* page) {
@@ -374,6 +388,18 @@ void ObjectiveEditor::clearProblem() {
 }
 
 QString ObjectiveEditor::problemText() const { return message_->text(); }
+
+void ObjectiveEditor::parseActiveFormula(const study::Study& study) const {
+    std::vector<std::string> symbols;
+    for (const auto& v : study.variables) symbols.push_back(v.name);
+    if (!study.fit) {
+        (void)expr::Expression::parse(study.formula, symbols);
+        return;
+    }
+    if (!table_) return;  // without the table the study's own check reports the problem
+    for (const auto& c : table_->columnNames) symbols.push_back(c);
+    (void)expr::Expression::parse(study.fit->model, symbols);
+}
 
 void ObjectiveEditor::showDerivatives(const study::Study& study) {
     QString gradientText, hessianText;

@@ -50,6 +50,10 @@ public:
     QString problemText() const;
     int markedPosition() const { return markedPosition_; }
 
+    // Parses the active formula (the formula, or the model over parameters and columns) so
+    // a problem comes back with its position; throws expr::FormulaError.
+    void parseActiveFormula(const study::Study& study) const;
+
     // Derivative panes for the current (valid) study.
     void showDerivatives(const study::Study& study);
     QString gradientText() const;
