@@ -15,12 +15,37 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <thread>
 
 namespace sw::solve {
 
 namespace {
 
 constexpr double kEps = std::numeric_limits<double>::epsilon();
+
+// Above this many rows, J is reduced to R by two threads: each half of the rows is
+// factorised on its own and the two R's are factorised again (tall-skinny QR; Demmel,
+// Grigori, Hoemmen & Langou, "Communication-optimal parallel and sequential QR and LU
+// factorizations", SIAM J. Sci. Comput. 34 (2012)). R and Q'r are those of J up to the signs
+// of R's rows, which the steps do not depend on.
+constexpr Eigen::Index kParallelQrRows = 20000;
+
+void reduceInParallel(const Vector& r, const Matrix& jacobian, Matrix& reduced, Vector& qtr) {
+    const Eigen::Index m = jacobian.rows(), n = jacobian.cols(), half = m / 2;
+    Matrix stackedR = Matrix::Zero(2 * n, n);
+    Vector stackedQtr(2 * n);
+    auto reduceRows = [&](Eigen::Index begin, Eigen::Index count, Eigen::Index slot) {
+        Eigen::HouseholderQR<Matrix> qr(jacobian.middleRows(begin, count));
+        stackedR.middleRows(slot * n, n) = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
+        stackedQtr.segment(slot * n, n) = (qr.householderQ().transpose() * r.segment(begin, count)).head(n);
+    };
+    std::thread second(reduceRows, half, m - half, Eigen::Index{1});
+    reduceRows(0, half, 0);
+    second.join();
+    Eigen::HouseholderQR<Matrix> qr(stackedR);
+    reduced = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
+    qtr = (qr.householderQ().transpose() * stackedQtr).head(n);
+}
 
 // The linearisation of r at one point, scaled by D, ready for any damping lambda.
 struct Linearization {
@@ -39,7 +64,9 @@ struct Linearization {
         residualNormSq = r.squaredNorm();
         Matrix reduced;   // R, or J itself when there are fewer rows than parameters
         Vector qtr;
-        if (m > n) {
+        if (m >= kParallelQrRows && m >= 8 * n) {
+            reduceInParallel(r, jacobian, reduced, qtr);
+        } else if (m > n) {
             Eigen::HouseholderQR<Matrix> qr(jacobian);
             reduced = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
             qtr = (qr.householderQ().transpose() * r).head(n);

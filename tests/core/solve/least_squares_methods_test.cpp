@@ -197,3 +197,23 @@ TEST(LeastSquaresMethods, RefuseObjectivesWithoutResiduals) {
     EXPECT_EQ(made.solver, nullptr);
     EXPECT_FALSE(made.error.empty());
 }
+
+TEST(LevenbergMarquardt, SplitsTallJacobiansAcrossThreadsWithoutChangingTheAnswer) {
+    // 30,000 rows: the parallel tall-skinny QR path; the answer is still Eigen QR's solution.
+    const int m = 30000;
+    Matrix a(m, 3);
+    Vector b(m);
+    for (int i = 0; i < m; ++i) {
+        const double t = i / double(m);
+        a.row(i) << 1.0, t, std::sin(7.0 * t);
+        b[i] = 0.5 + 2.0 * t - std::sin(7.0 * t) + 0.01 * std::cos(1234.5 * i);
+    }
+    const Vector expected = a.colPivHouseholderQr().solve(b);
+    FunctionObjective f = residualObjective({"p", "q", "s"}, m, [a, b](const Vector& x, Vector& r, Matrix* j) {
+        r = a * x - b;
+        if (j) *j = a;
+    });
+    solve::Run run = solve::solve("levenberg-marquardt", f, Vector::Zero(3), {}, fitRules());
+    EXPECT_TRUE(isConvergence(run.termination)) << run.message;
+    EXPECT_TRUE(run.x.isApprox(expected, 1e-11)) << run.x.transpose() << " vs " << expected.transpose();
+}
