@@ -187,6 +187,22 @@ TEST(ExactTrustRegion, ReturnsTheNewtonStepWhenItFits) {
     EXPECT_NEAR((r.step + b.ldlt().solve(g)).norm(), 0, 1e-14);
 }
 
+TEST(ExactTrustRegion, FindsTheBoundaryMultiplierForAPositiveDefiniteModel) {
+    std::mt19937 rng(23);
+    for (int trial = 0; trial < 100; ++trial) {
+        const int n = 1 + trial % 6;
+        const Matrix b = randomPositiveDefinite(rng, n);
+        const Vector g = randomVector(rng, n);
+        const double radius = 0.5 * b.ldlt().solve(g).norm();  // the Newton step is twice too long
+        const SubproblemResult r = exactTrustRegionStep(g, b, radius);
+        SCOPED_TRACE("trial " + std::to_string(trial));
+        EXPECT_EQ(r.kind, StepKind::Boundary);
+        EXPECT_GT(r.multiplier, 0);
+        EXPECT_NEAR(r.step.norm(), radius, 1e-10 * radius);
+        EXPECT_LE(((b + r.multiplier * Matrix::Identity(n, n)) * r.step + g).norm(), 1e-9 * std::max(1.0, g.norm()));
+    }
+}
+
 TEST(ExactTrustRegion, SatisfiesTheMoreSorensenConditionsOnRandomIndefiniteModels) {
     std::mt19937 rng(3);
     for (int trial = 0; trial < 200; ++trial) {
