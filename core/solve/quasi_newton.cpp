@@ -27,6 +27,10 @@ double firstTrial(const State& state, bool first) {
     return gn > 1 ? 1.0 / gn : 1.0;
 }
 
+// Decrease of the quadratic model m(p) = f + g'p + p'Bp/2 at p = alpha d, where d = -H g
+// and B = H^{-1}, so B d = -g and p'Bp = -alpha^2 g'd: m(0) - m(p) = -alpha g'd (1 - alpha/2).
+double modelDecrease(double slope, double alpha) { return -alpha * slope * (1 - alpha / 2); }
+
 std::string skipNote(double ys, const char* method) {
     return std::string(method) + " update skipped: y's = " + shortNumber(ys) +
            (ys <= 0 ? " <= 0" : " is too small against |s||y| (rounding)");
@@ -55,8 +59,10 @@ public:
         settings.initialStep = firstTrial(state, first_);
         first_ = false;
         const Vector previousGradient = state.gradient;
+        const double slope = previousGradient.dot(direction);
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
+        record.predictedDecrease = modelDecrease(slope, record.stepLength);
         update(record.step, state.gradient - previousGradient, record);
         return outcome;
     }
@@ -98,8 +104,10 @@ public:
         LineSearchSettings settings = settings_;
         settings.initialStep = firstTrial(state, pairs_.empty());
         const Vector previousGradient = state.gradient;
+        const double slope = previousGradient.dot(direction);
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
+        record.predictedDecrease = modelDecrease(slope, record.stepLength);
         const Vector& s = record.step;
         const Vector y = state.gradient - previousGradient;
         const double ys = y.dot(s);

@@ -39,6 +39,8 @@ public:
         begun_ = true;
         state_.x = start_;
         state_.iteration = 0;
+        // Records are the product; growing the trace by doubling would move every record again.
+        run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 4096)) + 1);
         evaluatePoint();
         if (eval_.sawNonFinite()) {
             run_.trace.push_back(pointRecord());

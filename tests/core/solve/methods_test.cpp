@@ -7,6 +7,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 
 namespace sw::solve {
@@ -223,6 +224,72 @@ TEST(Momentum, HeavyBallStepsCombineGradientAndPreviousStep) {
     const Vector expected = 0.5 * run.trace[0].step - 0.1 * run.trace[1].gradient;  // Polyak (1964)
     EXPECT_NEAR((run.trace[1].step - expected).norm(), 0, 1e-14);
     EXPECT_EQ(run.trace[1].dampingName, "momentum");
+}
+
+TEST(QuasiNewton, RecordsTheModelsPredictedDecrease) {
+    const FunctionObjective f = problems::rosenbrock();
+    for (const char* method : {"bfgs", "lbfgs"}) {
+        solve::Run run = solve(method, f, point(-1.2, 1));
+        ASSERT_TRUE(isConvergence(run.termination)) << run.message;
+        for (std::size_t k = 0; k + 1 < run.trace.size(); ++k) {
+            const IterationRecord& r = run.trace[k];
+            EXPECT_GT(r.predictedDecrease, 0) << method << " iteration " << k;
+            EXPECT_GT(r.actualDecrease, 0) << method << " iteration " << k;
+        }
+    }
+}
+
+TEST(Lbfgs, RecordsHowManyPairsItHolds) {
+    const FunctionObjective f = problems::rosenbrock();
+    solve::Run run = solve("lbfgs", f, point(-1.2, 1), {{"memory", "3"}});
+    ASSERT_GE(run.trace.size(), 6u);
+    EXPECT_EQ(run.trace[0].dampingName, "pairs");
+    EXPECT_EQ(run.trace[0].damping, 0);
+    double most = 0;
+    for (const IterationRecord& r : run.trace)
+        if (!std::isnan(r.damping)) most = std::max(most, r.damping);
+    EXPECT_EQ(most, 3);  // never more than the memory
+}
+
+TEST(ConjugateGradient, RestartsEveryNStepsAndSaysSo) {
+    const FunctionObjective f = problems::rosenbrock();
+    solve::Run run = solve("cg-fletcher-reeves", f, point(-1.2, 1), {{"restart_every", "3"}});
+    ASSERT_GE(run.trace.size(), 5u);
+    EXPECT_EQ(run.trace[0].stepKind, StepKind::Gradient);
+    EXPECT_EQ(run.trace[1].stepKind, StepKind::ConjugateGradient);
+    EXPECT_EQ(run.trace[3].stepKind, StepKind::Gradient);
+    EXPECT_NE(run.trace[3].note.find("restart after 3 steps"), std::string::npos) << run.trace[3].note;
+    EXPECT_EQ(run.trace[1].dampingName, "beta");
+}
+
+TEST(ConjugateGradient, PolakRibierePlusNeverTakesANegativeBeta) {
+    const FunctionObjective f = problems::himmelblau();
+    for (const Vector& start : {point(-0.3, -0.9), point(0.1, 2.8), point(-4, 4)}) {
+        solve::Run run = solve("cg-polak-ribiere", f, start);
+        EXPECT_TRUE(isConvergence(run.termination)) << run.message;
+        for (const IterationRecord& r : run.trace)
+            if (!std::isnan(r.damping)) {
+                EXPECT_GE(r.damping, 0);
+            }
+    }
+}
+
+TEST(Nesterov, StepsFollowTheLookAheadForm) {
+    // x_{k+1} - x_k = b^2 v_k - (1 + b) a g_k with v_{k+1} = b v_k - a g_k, v_0 = 0
+    // (Bengio, Boulanger-Lewandowski & Pascanu 2013, the form of Nesterov 1983 used here).
+    const FunctionObjective f = problems::convexQuadratic();
+    StoppingRules rules;
+    rules.maxIterations = 3;
+    const double a = 0.1, b = 0.5;
+    solve::Run run = solve("nesterov", f, point(2, -1), {{"step_size", "0.1"}, {"momentum", "0.5"}}, rules);
+    ASSERT_EQ(run.trace.size(), 4u);
+    Vector v = Vector::Zero(2);
+    for (int k = 0; k < 3; ++k) {
+        const Vector& g = run.trace[static_cast<std::size_t>(k)].gradient;
+        const Vector expected = b * b * v - (1 + b) * a * g;
+        EXPECT_NEAR((run.trace[static_cast<std::size_t>(k)].step - expected).norm(), 0, 1e-14) << k;
+        v = b * v - a * g;
+    }
 }
 
 }  // namespace
