@@ -118,7 +118,9 @@ TEST(LevenbergMarquardt, NeverIncreasesTheSumOfSquaresAndRejectsBadSteps) {
     solve::Run run = solve::solve("levenberg-marquardt", f, point(-1.2, 1.0), {}, fitRules());
     for (std::size_t k = 1; k < run.trace.size(); ++k) EXPECT_LE(run.trace[k].value, run.trace[k - 1].value);
     for (const IterationRecord& r : run.trace)
-        if (!r.accepted) EXPECT_LT(r.ratio, 1e-4);
+        if (!r.accepted) {
+            EXPECT_LT(r.ratio, 1e-4);
+        }
 }
 
 TEST(LevenbergMarquardt, DampedStepsStayNearTheTrustRadius) {
