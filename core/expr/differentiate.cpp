@@ -39,9 +39,50 @@ private:
     const Node* k(double v) { return g_.constant(v); }
     const Node* add(const Node* x, const Node* y) { return zero(x) ? y : zero(y) ? x : g_.make(Op::Add, x, y); }
     const Node* sub(const Node* x, const Node* y) { return zero(y) ? x : zero(x) ? neg(y) : g_.make(Op::Sub, x, y); }
-    const Node* mul(const Node* x, const Node* y) { return (zero(x) || zero(y)) ? zero_ : g_.make(Op::Mul, x, y); }
-    const Node* div(const Node* x, const Node* y) { return zero(x) ? zero_ : g_.make(Op::Div, x, y); }
-    const Node* neg(const Node* x) { return zero(x) ? zero_ : g_.make(Op::Neg, x); }
+    // Products gather their constant factors into one leading constant: the chain rule
+    // otherwise piles up 0.5*(2*(3*u)). This reassociates (mathematically exact, may differ
+    // from the unsimplified product in the last bit), and is used only when building
+    // derivatives, never on the user's own formula.
+    const Node* strip(const Node* n, double& c) {
+        for (;;) {
+            if (n->op == Op::Constant) {
+                c *= n->value;
+                return nullptr;
+            }
+            if (n->op == Op::Neg) {
+                c = -c;
+                n = n->a;
+            } else if (n->op == Op::Mul && n->a->isConstant()) {
+                c *= n->a->value;
+                n = n->b;
+            } else {
+                return n;
+            }
+        }
+    }
+    const Node* scaled(double c, const Node* n) {
+        if (!n) return k(c);
+        if (c == 1) return n;
+        if (c == -1) return g_.make(Op::Neg, n);
+        return g_.make(Op::Mul, k(c), n);
+    }
+    const Node* mul(const Node* x, const Node* y) {
+        if (zero(x) || zero(y)) return zero_;
+        double c = 1;
+        const Node* u = strip(x, c);
+        const Node* v = strip(y, c);
+        if (!std::isfinite(c)) return g_.make(Op::Mul, x, y);
+        const Node* product = !u ? v : !v ? u : g_.make(Op::Mul, u, v);
+        return scaled(c, product);
+    }
+    const Node* div(const Node* x, const Node* y) {
+        if (zero(x)) return zero_;
+        double c = 1;
+        const Node* u = strip(x, c);
+        if (!std::isfinite(c) || !u) return g_.make(Op::Div, x, y);
+        return scaled(c, g_.make(Op::Div, u, y));
+    }
+    const Node* neg(const Node* x) { return zero(x) ? zero_ : mul(k(-1.0), x); }
     const Node* f(Op op, const Node* x, const Node* y = nullptr) { return g_.make(op, x, y); }
     const Node* square(const Node* x) { return g_.make(Op::Pow, x, k(2.0)); }
 

@@ -94,10 +94,11 @@ public:
         std::vector<double> slots;           // one value per register (single-point evaluation)
         std::vector<double> block;           // kBlockSize values per register (block evaluation)
         std::vector<double*> rows;           // where each register's block lives this time
+        std::vector<char> uniform;           // per instruction: same value at every point of the call
         std::uint64_t preparedFor = 0;       // id of the program whose constants are loaded
     };
     // Points per internal block of evaluateBlock (registers of this many doubles).
-    static constexpr std::size_t kBlockSize = 256;
+    static constexpr std::size_t kBlockSize = 128;
     // An input of a block evaluation: `count` values at data[i*stride]; stride 0 means one
     // value for the whole block (e.g. a parameter while rows vary).
     struct BlockInput {
@@ -116,7 +117,8 @@ public:
     // inputs[inputCount()] -> outputs[outputCount()].
     void evaluate(const double* inputs, double* outputs, Workspace& workspace) const;
     // Structure-of-arrays: outputs[o] points to `count` doubles. Any count is accepted;
-    // the program works through it in internal blocks.
+    // the program works through it in internal blocks. Instructions that depend only on
+    // constants and stride-0 inputs are computed once per block and broadcast.
     void evaluateBlock(const BlockInput* inputs, std::size_t count, double* const* outputs,
                        Workspace& workspace) const;
 

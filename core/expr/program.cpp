@@ -6,7 +6,11 @@
 // topological order: a register is released after the last instruction that reads it and
 // reused for the next result (an instruction may write over its own operand; every loop
 // reads element i before writing element i).
+// GCC 12 at -O2 vectorises only loops that need no run-time alias checks; the block
+// loops below need them (an instruction may write over its operand), so ask for more.
+#pragma GCC optimize("tree-vectorize", "vect-cost-model=dynamic")
 #include "core/expr/program_impl.h"
+#include "core/expr/vector_math.h"
 
 #include <algorithm>
 #include <atomic>
@@ -153,8 +157,24 @@ void Program::evaluate(const double* inputs, double* outputs, Workspace& ws) con
     std::copy_n(inputs, p.inputs, r);
     for (const Instruction& in : p.code) {
         switch (in.code) {
-        case Code::Unary: r[in.dst] = apply1(in.op, r[in.a]); break;
-        case Code::Binary: r[in.dst] = apply2(in.op, r[in.a], r[in.b]); break;
+        case Code::Unary:
+            switch (in.op) {
+            case Op::Neg: r[in.dst] = -r[in.a]; break;
+            case Op::Sin: r[in.dst] = std::sin(r[in.a]); break;
+            case Op::Cos: r[in.dst] = std::cos(r[in.a]); break;
+            case Op::Exp: r[in.dst] = std::exp(r[in.a]); break;
+            default: r[in.dst] = apply1(in.op, r[in.a]); break;
+            }
+            break;
+        case Code::Binary:
+            switch (in.op) {
+            case Op::Add: r[in.dst] = r[in.a] + r[in.b]; break;
+            case Op::Sub: r[in.dst] = r[in.a] - r[in.b]; break;
+            case Op::Mul: r[in.dst] = r[in.a] * r[in.b]; break;
+            case Op::Div: r[in.dst] = r[in.a] / r[in.b]; break;
+            default: r[in.dst] = apply2(in.op, r[in.a], r[in.b]); break;
+            }
+            break;
         case Code::Select: r[in.dst] = r[in.a] != 0 ? r[in.b] : r[in.c]; break;
         case Code::Square: r[in.dst] = r[in.a] * r[in.a]; break;
         case Code::Cube: {
@@ -186,17 +206,30 @@ inline void loop2(double* d, const double* a, const double* b, std::size_t m, F 
 }
 
 // One instruction over m points. Each case is its own tight loop so the simple ones vectorize.
-void runBlock(const Instruction& in, double* const* rows, std::size_t m) {
+// Compiled twice (AVX2 and baseline), picked at load time by the processor.
+__attribute__((target_clones("avx2", "default"))) void runBlock(const Instruction& in, double* const* rows, std::size_t m) {
     double* d = rows[in.dst];
     const double* a = rows[in.a];
     switch (in.code) {
     case Code::Unary:
         switch (in.op) {
         case Op::Neg: for (std::size_t i = 0; i < m; ++i) d[i] = -a[i]; return;
-        case Op::Sin: for (std::size_t i = 0; i < m; ++i) d[i] = std::sin(a[i]); return;
-        case Op::Cos: for (std::size_t i = 0; i < m; ++i) d[i] = std::cos(a[i]); return;
-        case Op::Exp: for (std::size_t i = 0; i < m; ++i) d[i] = std::exp(a[i]); return;
-        case Op::Log: for (std::size_t i = 0; i < m; ++i) d[i] = std::log(a[i]); return;
+        case Op::Sin:
+            if (m < 4 || !vecmath::apply1(in.op, d, a, m))
+                for (std::size_t i = 0; i < m; ++i) d[i] = std::sin(a[i]);
+            return;
+        case Op::Cos:
+            if (m < 4 || !vecmath::apply1(in.op, d, a, m))
+                for (std::size_t i = 0; i < m; ++i) d[i] = std::cos(a[i]);
+            return;
+        case Op::Exp:
+            if (m < 4 || !vecmath::apply1(in.op, d, a, m))
+                for (std::size_t i = 0; i < m; ++i) d[i] = std::exp(a[i]);
+            return;
+        case Op::Log:
+            if (m < 4 || !vecmath::apply1(in.op, d, a, m))
+                for (std::size_t i = 0; i < m; ++i) d[i] = std::log(a[i]);
+            return;
         case Op::Sqrt: for (std::size_t i = 0; i < m; ++i) d[i] = std::sqrt(a[i]); return;
         case Op::Abs: for (std::size_t i = 0; i < m; ++i) d[i] = std::fabs(a[i]); return;
         case Op::Sign: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] > 0 ? 1.0 : (a[i] < 0 ? -1.0 : a[i]); return;
@@ -213,7 +246,10 @@ void runBlock(const Instruction& in, double* const* rows, std::size_t m) {
         case Op::Sub: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] - b[i]; return;
         case Op::Mul: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] * b[i]; return;
         case Op::Div: for (std::size_t i = 0; i < m; ++i) d[i] = a[i] / b[i]; return;
-        case Op::Pow: for (std::size_t i = 0; i < m; ++i) d[i] = std::pow(a[i], b[i]); return;
+        case Op::Pow:
+            if (m < 4 || !vecmath::pow(d, a, b, m))
+                for (std::size_t i = 0; i < m; ++i) d[i] = std::pow(a[i], b[i]);
+            return;
         default: {
             const Op op = in.op;
             loop2(d, a, b, m, [op](double x, double y) { return apply2(op, x, y); });
@@ -258,6 +294,21 @@ void Program::evaluateBlock(const BlockInput* inputs, std::size_t count, double*
     for (int k = 0; k < p.inputs; ++k)
         if (inputs[k].stride == 0) std::fill_n(storage + static_cast<std::size_t>(k) * B, B, inputs[k].data[0]);
 
+    // Which instructions see the same operands at every point (constants, stride-0 inputs
+    // and what is computed from them only)? Registers are reused, so track them in order.
+    ws.uniform.assign(p.code.size(), 0);
+    std::vector<char> uniformRegister(p.registers, 0);
+    for (int k = 0; k < p.inputs; ++k) uniformRegister[k] = inputs[k].stride == 0;
+    for (const auto& [r, v] : p.constants) uniformRegister[r] = 1;
+    bool anyUniform = false;
+    for (std::size_t k = 0; k < p.code.size(); ++k) {
+        const Instruction& in = p.code[k];
+        const bool u = uniformRegister[in.a] && (in.b < 0 || uniformRegister[in.b]) && (in.c < 0 || uniformRegister[in.c]);
+        ws.uniform[k] = u;
+        uniformRegister[in.dst] = u;
+        anyUniform = anyUniform || u;
+    }
+
     for (std::size_t start = 0; start < count; start += B) {
         const std::size_t m = std::min(B, count - start);
         for (int k = 0; k < p.inputs; ++k) {
@@ -272,7 +323,20 @@ void Program::evaluateBlock(const BlockInput* inputs, std::size_t count, double*
         }
         for (std::size_t o = 0; o < p.outputRegister.size(); ++o)
             if (p.outputDirect[o]) rows[p.outputRegister[o]] = outputs[o] + start;
-        for (const Instruction& in : p.code) runBlock(in, rows, m);
+        if (!anyUniform) {
+            for (const Instruction& in : p.code) runBlock(in, rows, m);
+        } else {
+            for (std::size_t k = 0; k < p.code.size(); ++k) {
+                const Instruction& in = p.code[k];
+                if (ws.uniform[k]) {
+                    runBlock(in, rows, 1);
+                    double* d = rows[in.dst];
+                    std::fill(d + 1, d + m, d[0]);
+                } else {
+                    runBlock(in, rows, m);
+                }
+            }
+        }
         for (std::size_t o = 0; o < p.outputRegister.size(); ++o)
             if (!p.outputDirect[o]) std::memcpy(outputs[o] + start, rows[p.outputRegister[o]], m * sizeof(double));
     }

@@ -4,6 +4,7 @@
 // (optimizer off, because its constant folding of && and || is wrong, see PITFALLS.md);
 // finite differences are common practice, no published source.
 #include "core/expr/expr.h"
+#include "core/expr/vector_math.h"
 #include "formula_generator.h"
 
 #include <muParser.h>
@@ -120,8 +121,9 @@ TEST(Differential, DerivativesMatchCentralDifferences) {
     EXPECT_LT(skipped, checked / 50);
 }
 
-// The program, the tree walk of the graph and block evaluation give identical numbers.
-TEST(Differential, SinglePointBlockAndTreeWalkAgreeExactly) {
+// The program and the tree walk of the graph give identical numbers; block evaluation agrees
+// to rounding.
+TEST(Differential, SinglePointBlockAndTreeWalkAgree) {
     gen::FormulaGenerator generator(5u, false);
     std::mt19937 rng(3);
     std::uniform_real_distribution<double> coordinate(-3.0, 3.0);
@@ -148,9 +150,13 @@ TEST(Differential, SinglePointBlockAndTreeWalkAgreeExactly) {
             const double at[3] = {xs[i], ys[i], z};
             program.evaluate(at, single.data(), ws);
             const double tree = d.function().evaluate({xs[i], ys[i], z});
+            // Block evaluation may use glibc's vector exp/log/sin/cos/pow (at most 4 ulp each,
+            // vector_math.h); everything else is the same arithmetic in the same order.
+            const double tolerance = vecmath::available() ? 1e-12 : 0.0;
             for (int o = 0; o < outs; ++o) {
                 if (std::isnan(single[o])) EXPECT_TRUE(std::isnan(block[o][i]));
-                else EXPECT_EQ(single[o], block[o][i]) << text << " output " << o;
+                else if (std::isinf(single[o])) EXPECT_EQ(single[o], block[o][i]);
+                else EXPECT_NEAR(single[o], block[o][i], tolerance * std::max(1.0, std::fabs(single[o]))) << text << " output " << o;
             }
             if (std::isnan(tree)) EXPECT_TRUE(std::isnan(single[0]));
             else EXPECT_EQ(single[0], tree) << text;
