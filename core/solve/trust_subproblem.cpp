@@ -24,26 +24,29 @@ std::string formatNumber(double v) {
     return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
 }
 
-// The roots tau of |z + tau d| = radius (z strictly inside or on the ball), smaller first.
-// Written to avoid cancellation: the product of the roots is (|z|^2 - radius^2) / |d|^2.
-void boundaryRoots(const Vector& z, const Vector& d, double radius, double& tauMinus, double& tauPlus) {
-    const double a = d.squaredNorm();
-    const double b = z.dot(d);
-    const double c = z.squaredNorm() - radius * radius;  // <= 0 when z is inside
-    const double disc = std::sqrt(std::max(0.0, b * b - a * c));
-    if (a <= 0) {
+// The roots tau of |z + tau d| = radius given zz = |z|^2, zd = z'd, dd = |d|^2 (z inside or
+// on the ball), smaller first. Written to avoid cancellation: the product of the roots is
+// (|z|^2 - radius^2) / |d|^2.
+void boundaryRoots(double zz, double zd, double dd, double radius, double& tauMinus, double& tauPlus) {
+    const double c = zz - radius * radius;  // <= 0 when z is inside
+    const double disc = std::sqrt(std::max(0.0, zd * zd - dd * c));
+    if (dd <= 0) {
         tauMinus = tauPlus = 0;
         return;
     }
-    if (b >= 0) {
-        const double q = -(b + disc);
-        tauMinus = q / a;
+    if (zd >= 0) {
+        const double q = -(zd + disc);
+        tauMinus = q / dd;
         tauPlus = (q != 0) ? c / q : 0.0;
     } else {
-        const double q = -b + disc;
-        tauPlus = q / a;
+        const double q = -zd + disc;
+        tauPlus = q / dd;
         tauMinus = (q != 0) ? c / q : 0.0;
     }
+}
+
+void boundaryRoots(const Vector& z, const Vector& d, double radius, double& tauMinus, double& tauPlus) {
+    boundaryRoots(z.squaredNorm(), z.dot(d), d.squaredNorm(), radius, tauMinus, tauPlus);
 }
 
 // Eigen-decomposition view of the secular equations shared by the exact trust-region
@@ -209,29 +212,36 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
     const Eigen::Index n = g.size();
     const double gnorm = g.norm();
     if (maxIterations <= 0) maxIterations = static_cast<int>(2 * n);
-    Vector z = Vector::Zero(n);
-    Vector r = g;
-    Vector d = -g;
     result.kind = StepKind::Interior;
-    // Forcing term of Nocedal & Wright 2006, eq. (7.3) with the superlinear choice.
-    const double tolerance = std::min(0.5, std::sqrt(gnorm)) * gnorm;
     if (gnorm == 0) {
-        result.step = z;
+        result.step = Vector::Zero(n);
         result.note = "gradient is zero: no CG step";
         return result;
     }
+    // Forcing term of Nocedal & Wright 2006, eq. (7.3) with the superlinear choice.
+    const double tolerance = std::min(0.5, std::sqrt(gnorm)) * gnorm;
+    // z is the iterate, r = g + Bz the model gradient (CG residual), d the direction. Norms
+    // of trial points come from dot products, so the loop allocates nothing.
+    Vector z = Vector::Zero(n);
+    Vector r = g;
+    Vector d = -g;
+    Vector bd(n);
+    double rr = r.squaredNorm();
     bool finished = false;
     for (int j = 0; j < maxIterations && !finished; ++j) {
         result.innerIterations = j + 1;
-        const Vector bd = b * d;
+        bd.noalias() = b * d;
         const double curvature = d.dot(bd);
+        const double zz = z.squaredNorm(), zd = z.dot(d), dd = d.squaredNorm();
         if (!(curvature > 0)) {
-            // Follow d to the boundary, choosing the root with the lower model value.
+            // Follow d to the boundary, choosing the root with the lower model value:
+            // m(z + tau d) - m(z) = tau r'd + tau^2 d'Bd / 2.
             double tauMinus = 0, tauPlus = 0;
-            boundaryRoots(z, d, radius, tauMinus, tauPlus);
-            const Vector pPlus = z + tauPlus * d;
-            const Vector pMinus = z + tauMinus * d;
-            result.step = quadraticModelDecrease(g, b, pPlus) >= quadraticModelDecrease(g, b, pMinus) ? pPlus : pMinus;
+            boundaryRoots(zz, zd, dd, radius, tauMinus, tauPlus);
+            const double rd = r.dot(d);
+            auto change = [&](double tau) { return tau * rd + 0.5 * tau * tau * curvature; };
+            const double tau = change(tauPlus) <= change(tauMinus) ? tauPlus : tauMinus;
+            result.step = z + tau * d;
             result.kind = StepKind::NegativeCurvature;
             result.onBoundary = true;
             result.note = "CG met curvature d'Bd = " + formatNumber(curvature) + " <= 0 at inner iteration " +
@@ -239,12 +249,10 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
             finished = true;
             break;
         }
-        const double rr = r.squaredNorm();
         const double alpha = rr / curvature;
-        const Vector zNext = z + alpha * d;
-        if (zNext.norm() >= radius) {
+        if (zz + alpha * (2 * zd + alpha * dd) >= radius * radius) {
             double tauMinus = 0, tauPlus = 0;
-            boundaryRoots(z, d, radius, tauMinus, tauPlus);
+            boundaryRoots(zz, zd, dd, radius, tauMinus, tauPlus);
             result.step = z + tauPlus * d;
             result.kind = StepKind::Boundary;
             result.onBoundary = true;
@@ -252,17 +260,20 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
             finished = true;
             break;
         }
-        z = zNext;
+        z += alpha * d;
         r += alpha * bd;
-        if (r.norm() <= tolerance) {
+        const double rrNext = r.squaredNorm();
+        if (std::sqrt(rrNext) <= tolerance) {
             result.step = z;
             result.kind = StepKind::Interior;
             result.note = "CG converged inside the region in " + std::to_string(j + 1) + " inner iterations";
             finished = true;
             break;
         }
-        const double beta = r.squaredNorm() / rr;
-        d = -r + beta * d;
+        const double beta = rrNext / rr;
+        rr = rrNext;
+        d *= beta;
+        d -= r;
     }
     if (!finished) {
         result.step = z;

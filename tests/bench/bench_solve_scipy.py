@@ -90,25 +90,32 @@ def main():
             seconds, result = time_per_solve(pair["scipy"], funcs, x0, problems["gtol"])
             rows.append((problem["name"], pair["ours"], pair["scipy"], mine["seconds"], seconds,
                          seconds / mine["seconds"], mine["iterations"], int(getattr(result, "nit", -1)),
-                         mine["value"], float(result.fun)))
+                         mine["value"], float(result.fun),
+                         "" if result.success else "SciPy stopped: " + str(result.message).split("\n")[0][:60]))
     print("SciPy %s scipy.optimize.minimize vs Saddlewise, CPU time per solve (same start, exact derivatives, "
           "gtol %g)" % (scipy.__version__, problems["gtol"]))
-    header = ("problem", "ours", "SciPy", "ours [us]", "SciPy [us]", "ratio", "ours it", "SciPy it", "ours f", "SciPy f")
+    header = ("problem", "ours", "SciPy", "ours [us]", "SciPy [us]", "ratio", "ours it", "SciPy it", "ours f", "SciPy f",
+              "note")
     if markdown:
         print("| " + " | ".join(header) + " |")
         print("|" + "---|" * len(header))
     else:
-        print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s" % header)
+        print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s  %s" % header)
     for r in rows:
         cells = (r[0], r[1], r[2], "%.1f" % (r[3] * 1e6), "%.1f" % (r[4] * 1e6), "%.0fx" % r[5], str(r[6]), str(r[7]),
-                 "%.3g" % r[8], "%.3g" % r[9])
+                 "%.3g" % r[8], "%.3g" % r[9], r[10])
         if markdown:
             print("| " + " | ".join(cells) + " |")
         else:
-            print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s" % cells)
-    ratios = [r[5] for r in rows]
+            print("%-18s %-20s %-12s %10s %11s %8s %8s %8s %11s %11s  %s" % cells)
+    ratios = [r[5] for r in rows if not r[10]]
     if ratios:
-        print("median ratio %.0fx, smallest %.0fx" % (float(np.median(ratios)), min(ratios)))
+        print("where SciPy succeeded: median ratio %.0fx, smallest %.0fx, largest %.0fx over %d pairs"
+              % (float(np.median(ratios)), min(ratios), max(ratios), len(ratios)))
+    for family in sorted({r[1] for r in rows}):
+        mine = [r[5] for r in rows if r[1] == family and not r[10]]
+        if mine:
+            print("  %-20s median ratio %.0fx" % (family, float(np.median(mine))))
 
 
 if __name__ == "__main__":
