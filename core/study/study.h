@@ -108,9 +108,13 @@ struct Study {
 //     "stopping": { "max_iterations": 200, "max_evaluations": 100000, "gradient_tolerance": 1e-8,
 //                   "relative_gradient_tolerance": 0, "step_tolerance": 1e-14, "function_tolerance": 0 },
 //     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 } }
-Study fromJson(const std::string& text, const std::string& baseDirectory);
-std::string toJson(const Study& study);   // stable key order, 2-space indent
-Study loadFile(const std::string& path);  // throws StudyError (place "file" for I/O)
+// verifyData = false (added) skips reading the data file of a data-fit study (it may be
+// missing or changed), so a window can open the study and let the user locate or accept the
+// file; makeObjective still refuses a missing or changed file. Everything else is checked
+// except what needs the data (the model's names against the table's columns).
+Study fromJson(const std::string& text, const std::string& baseDirectory, bool verifyData = true);
+std::string toJson(const Study& study);                           // stable key order, 2-space indent
+Study loadFile(const std::string& path, bool verifyData = true);  // throws StudyError (place "file" for I/O)
 // Atomic for the command line (temp file + rename); the window uses QSaveFile with toJson.
 void saveFile(const Study& study, const std::string& path);
 

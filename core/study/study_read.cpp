@@ -427,7 +427,7 @@ void checkObjective(const Study& study, const std::string& baseDirectory) {
 
 }  // namespace
 
-Study fromJson(const std::string& text, const std::string& baseDirectory) {
+Study fromJson(const std::string& text, const std::string& baseDirectory, bool verifyData) {
     const Json document = parseDocument(text);
     readHeader(document);
     ObjectReader root(document, "",
@@ -498,18 +498,18 @@ Study fromJson(const std::string& text, const std::string& baseDirectory) {
     study.variables = readVariables(document);
     readStopping(document, study);
     readView(document, study);
-    checkObjective(study, baseDirectory);
+    if (verifyData || !study.fit) checkObjective(study, baseDirectory);
     study.methods = readMethods(document, residualForm);
     return study;
 }
 
-Study loadFile(const std::string& path) {
+Study loadFile(const std::string& path, bool verifyData) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw StudyError("file", "cannot open '" + path + "' for reading");
     std::ostringstream text;
     text << in.rdbuf();
     if (in.bad()) throw StudyError("file", "cannot read '" + path + "'");
-    return fromJson(text.str(), directoryOf(path));
+    return fromJson(text.str(), directoryOf(path), verifyData);
 }
 
 }  // namespace sw::study

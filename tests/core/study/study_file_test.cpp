@@ -123,6 +123,18 @@ TEST(DataFitStudy, AChangedDataFileIsReportedNotUsed) {
     }
 }
 
+TEST(DataFitStudy, WithoutDataVerificationTheStudyOpensButItsObjectiveIsStillRefused) {
+    ScratchFolder folder;
+    folder.write("readings.csv", kTable);
+    const std::string checksum = fileChecksum(folder.file("readings.csv"));
+    folder.write("readings.csv", std::string(kTable) + "5,11.2\n");
+    const Study study = fromJson(fitStudy(checksum), folder.path(), /*verifyData=*/false);
+    EXPECT_EQ(study.fit->checksum, checksum);
+    EXPECT_THROW(makeObjective(study, folder.path()), StudyError);
+    // Other problems are still found.
+    EXPECT_THROW(fromJson(fitStudy(checksum, R"(, "loss": "quadratic")"), folder.path(), false), StudyError);
+}
+
 TEST(DataFitStudy, AMissingDataFileIsReportedWithWhereItWasLookedFor) {
     ScratchFolder folder;
     try {
