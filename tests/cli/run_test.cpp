@@ -115,7 +115,8 @@ TEST(RunVerb, TheBadlyScaledSampleLeavesSteepestDescentShortOfTheMinimum) {
     const Outcome outcome =
         runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/heater-power-and-duty.json") + " --json");
     ASSERT_EQ(outcome.exitCode, 0);
-    for (const Json& run : Json::parse(outcome.out)["runs"]) {
+    const Json result = Json::parse(outcome.out);
+    for (const Json& run : result["runs"]) {
         if (run["method"] == "gradient-descent") {
             EXPECT_EQ(run["termination"], "iteration-limit");
             EXPECT_GT(run["value"].get<double>(), 1.0);
@@ -159,7 +160,8 @@ TEST(RunVerb, MaxIterationsOverridesTheStudy) {
         runSaddlewise("run " + quoted(std::string(SW_SOURCE_DIR) + "/samples/pump-flow-calibration.json") +
                       " --json --max-iterations 3");
     ASSERT_EQ(outcome.exitCode, 0);
-    for (const Json& run : Json::parse(outcome.out)["runs"]) EXPECT_LE(run["iterations"].get<int>(), 3);
+    const Json result = Json::parse(outcome.out);
+    for (const Json& run : result["runs"]) EXPECT_LE(run["iterations"].get<int>(), 3);
 }
 
 class BadStudyFile : public ::testing::Test {
