@@ -47,6 +47,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     colourScale_->setRangeZoom(false);
     plot_->plotLayout()->addElement(0, 1, colourScale_);
     colourMap_->setColorScale(colourScale_);
+    colourScale_->setGradient(fieldGradient());  // the scale pushes its gradient onto the map
     marginGroup_ = new QCPMarginGroup(plot_);
     plot_->axisRect()->setMarginGroup(QCP::msBottom | QCP::msTop, marginGroup_);
     colourScale_->setMarginGroup(QCP::msBottom | QCP::msTop, marginGroup_);
@@ -338,13 +339,17 @@ void LandscapeView::rebuildPaths() {
             auto* end = new QCPCurve(plot_->xAxis, plot_->yAxis);
             end->setLayer(QStringLiteral("marks"));
             end->setLineStyle(QCPCurve::lsNone);
-            end->setScatterStyle(endPointStyle(track.run->endPoint.kind, track.colour));
+            // A run that stopped without converging is not at a critical point: its end is
+            // marked as unclassified rather than by the local curvature there.
+            const solve::PointKind kind =
+                solve::isConvergence(track.run->termination) ? track.run->endPoint.kind : solve::PointKind::Unknown;
+            end->setScatterStyle(endPointStyle(kind, track.colour));
             end->setData(QVector<double>{xs.back()}, QVector<double>{ys.back()});
             end->setSelectable(QCP::stNone);
             end->removeFromLegend();
-            end->setName(track.label + QStringLiteral(": ") + endPointLabel(track.run->endPoint.kind));
+            end->setName(track.label + QStringLiteral(": ") + endPointLabel(kind));
             endCurves_.push_back(end);
-            kindsShown.insert(track.run->endPoint.kind);
+            kindsShown.insert(kind);
         }
     }
     // Legend entries for the end-point shapes, drawn in the text colour (no data).
@@ -414,7 +419,6 @@ Vector LandscapeView::pointAt(double x, double y) const {
 
 QString LandscapeView::readoutAt(double x, double y) const {
     const Vector point = pointAt(x, y);
-    QStringList names;
     const int px = snapshot_ ? snapshot_->plotX : 0, py = snapshot_ ? snapshot_->plotY : 1;
     auto nameOf = [&](int i) {
         if (snapshot_ && i < static_cast<int>(snapshot_->variableNames.size()))

@@ -108,7 +108,7 @@ void LocalModelView::rebuild() {
         if (model.hasNewtonPoint && model.newtonPoint.size() == n)
             newtonReach = 1.3 * std::hypot(model.newtonPoint[px] - x[px], model.newtonPoint[py] - x[py]);
         if (std::isfinite(newtonReach) && newtonReach > 0)
-            half = local > 0 ? std::max(local, std::min(newtonReach, 4 * local)) : newtonReach;
+            half = local > 0 ? std::max(local, std::min(newtonReach, 2.5 * local)) : newtonReach;
         else
             half = local;
         if (!(half > 0) || !std::isfinite(half)) half = 0.1 * std::max(1.0, std::hypot(x[px], x[py]));

@@ -53,7 +53,7 @@ QString endPointLabel(solve::PointKind kind) {
     case solve::PointKind::Degenerate: return QStringLiteral("ends at a degenerate point");
     case solve::PointKind::Unknown: break;
     }
-    return QStringLiteral("ends unclassified");
+    return QStringLiteral("stopped before converging");
 }
 
 bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }
@@ -143,9 +143,7 @@ QString formatNumber(double value, int significantDigits) {
     if (std::isnan(value)) return QStringLiteral("nan");
     if (std::isinf(value)) return value > 0 ? QStringLiteral("inf") : QStringLiteral("-inf");
     if (value == 0) return QStringLiteral("0");
-    const double magnitude = std::abs(value);
-    if (magnitude >= 1e-3 && magnitude < 1e5) return QString::number(value, 'g', significantDigits);
-    return QString::number(value, 'e', significantDigits - 1);
+    return QString::number(value, 'g', significantDigits);
 }
 
 TransformTicker::TransformTicker(Map forward, Map inverse, Candidates candidates)

@@ -22,7 +22,7 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size = 
 
 // How an end point is marked, by its classification (shapes of our own choosing):
 // minimum = filled disc with a ring, saddle = square with a cross, maximum = upward
-// triangle, degenerate = hollow diamond, unknown = hollow circle.
+// triangle, degenerate = hollow diamond, unknown (also: stopped before converging) = hollow circle.
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size = 13.0);
 QString endPointLabel(solve::PointKind kind);
 

@@ -18,6 +18,7 @@ QColor modelColour() { return QColor(0x2e, 0x9e, 0x7a); }
 SliceView::SliceView(QWidget* parent) : PlotView(parent) {
     setObjectName(QStringLiteral("sliceView"));
     plot_->legend->setVisible(true);
+    plot_->setInteractions(QCP::iRangeDrag | QCP::iRangeZoom);
     plot_->axisRect()->insetLayout()->setInsetAlignment(0, Qt::AlignTop | Qt::AlignRight);
 
     auto* row = new QHBoxLayout;
@@ -115,7 +116,7 @@ void SliceView::rebuild() {
                              : std::isfinite(record->trustRadius) ? record->trustRadius
                                                                   : 0.1 * std::max(1.0, x.norm());
         tMax = reach > 0 ? reach : 1.0;
-        what = tr("eigenvector %1 of the Hessian (λ = %2)").arg(eigenIndex + 1).arg(formatNumber(model.eigenvalues[eigenIndex]));
+        what = tr("Hessian's eigenvector %1 (λ = %2)").arg(eigenIndex + 1).arg(formatNumber(model.eigenvalues[eigenIndex]));
         plot_->xAxis->setLabel(tr("distance t along the eigenvector"));
     } else if (gradient.size() == n && gradient.allFinite() && gradient.norm() > 0) {
         d = -gradient / gradient.norm();
@@ -131,7 +132,15 @@ void SliceView::rebuild() {
     }
     plot_->yAxis->setLabel(tr("f along the line"));
 
-    const std::vector<double> ts = analyze::linspace(-0.3 * tMax, 1.5 * tMax, kSamples);
+    // The window shows the accepted step; trials further out stay reachable by zoom and pan, so
+    // the line is also sampled (more coarsely) out to the farthest trial.
+    const double tShown = std::isfinite(acceptedT) && acceptedT > 0 ? acceptedT : tMax;
+    const double shownLo = -0.3 * tShown, shownHi = 1.6 * tShown;
+    std::vector<double> ts = analyze::linspace(shownLo, shownHi, kSamples);
+    if (tMax > shownHi) {
+        for (double t : analyze::linspace(shownHi, 1.1 * tMax, kSamples / 2))
+            if (t > shownHi) ts.push_back(t);
+    }
     const std::vector<double> truth = analyze::valuesAlong(objective, x, d, ts);
     const std::vector<double> quadratic = model.finite ? model.along(d, ts) : std::vector<double>(ts.size(), std::nan(""));
     const std::vector<double> armijo = gradient.size() == n
@@ -204,8 +213,10 @@ void SliceView::rebuild() {
     auto take = [&](double v) {
         if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
     };
-    for (double v : truth) take(v);
-    for (const auto& point : *trialGraph_->data()) take(point.value);
+    for (std::size_t i = 0; i < ts.size(); ++i)
+        if (ts[i] <= shownHi) take(truth[i]);
+    for (const auto& point : *trialGraph_->data())
+        if (point.key <= shownHi) take(point.value);
     for (const auto& point : *acceptedGraph_->data()) take(point.value);
     take(record->value);
     if (lo <= hi) {
@@ -214,7 +225,7 @@ void SliceView::rebuild() {
     } else {
         plot_->yAxis->setRange(-1, 1);
     }
-    plot_->xAxis->setRange(ts.front(), ts.back());
+    plot_->xAxis->setRange(shownLo, shownHi);
 
     const double slope = gradient.size() == n ? gradient.dot(d) : std::nan("");
     QString text = tr("Iterate %1 of %2, along the %3: |d| = %4, slope ∇f·d = %5")
