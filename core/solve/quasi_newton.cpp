@@ -181,8 +181,9 @@ std::vector<MethodRegistration> quasiNewtonMethods() {
         MethodInfo info = quasiNewtonInfo("bfgs", "BFGS on the inverse Hessian with a strong Wolfe line search");
         info.options = {choiceOption("line_search", "how the step length is chosen (Armijo alone can give y's <= 0)",
                                      {"wolfe", "armijo"}, 0),
-                        flagOption("scale_initial", "scale the first model by y's / y'y (Nocedal & Wright eq. 6.20)",
-                                   true)};
+                        flagOption("scale_initial",
+                                   "scale the first model by y's / y'y (Nocedal & Wright eq. 6.20); off: H0 = I",
+                                   false)};
         for (OptionSpec& s : lineSearchOptionSpecs(0.9)) info.options.push_back(std::move(s));
         const std::vector<OptionSpec> specs = info.options;
         list.push_back({info,
