@@ -13,6 +13,7 @@
 #include "widgets/progress_view.h"
 #include "widgets/slice_view.h"
 
+#include <QElapsedTimer>
 #include <QFile>
 #include <QLabel>
 #include <QSignalSpy>
@@ -145,6 +146,7 @@ private slots:
     void sliceAlongAnEigenvector();
     void everyViewExportsValidPngSvgAndPdf();
     void exportRejectsUnknownFormatAndBadSize();
+    void landscapeRedrawAt600CellsIsReported();
 };
 
 void ViewsTest::landscapeDrawsTheFieldContoursAndEveryPath() {
@@ -528,6 +530,27 @@ void ViewsTest::exportRejectsUnknownFormatAndBadSize() {
     QVERIFY2(error.contains(QStringLiteral("1..20000")), qPrintable(error));
     QVERIFY(!exportPlot(view.plot(), dir.filePath("missing-folder/plot.png"), 100, 100, &error));
     QVERIFY(error.contains(QStringLiteral("cannot write")));
+}
+
+// Not a timed test (speed lives in benchmarks): it draws a 600 x 600 field with its contour
+// lines and reports how long sampling, contouring and the redraw took, for docs/BENCHMARKS.md.
+void ViewsTest::landscapeRedrawAt600CellsIsReported() {
+    auto snapshot = valleySnapshot();
+    LandscapeView view;
+    view.setSnapshot(snapshot);
+    show(view);
+    QElapsedTimer timer;
+    timer.start();
+    auto field = sampled(*snapshot->objective, analyze::Box{-2, 2, -1, 3}, 600, true);
+    const double sampleMs = timer.nsecsElapsed() * 1e-6;
+    timer.restart();
+    view.setField(field);
+    view.plot()->replot();
+    const double drawMs = timer.nsecsElapsed() * 1e-6;
+    QVERIFY(view.contourCurveCount() > 0);
+    QCOMPARE(view.colourMap()->data()->keySize(), 600);
+    qInfo("landscape 600x600: sample + contours %.1f ms, set field + replot %.1f ms (%d contour polylines)", sampleMs,
+          drawMs, view.contourCurveCount());
 }
 
 QTEST_MAIN(ViewsTest)
