@@ -158,8 +158,8 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(4, 4, 4, 4);
     layout->addLayout(buttons);
-    layout->addWidget(list_, 2);
-    layout->addWidget(details_, 3);
+    layout->addWidget(list_, 3);
+    layout->addWidget(details_, 2);
     refreshDetails();
 }
 
@@ -307,8 +307,11 @@ void LineupEditor::refreshDetails() {
             auto it = e.options.find(spec.name);
             auto* value = new QTableWidgetItem(it == e.options.end() ? QString() : QString::fromStdString(it->second));
             value->setData(Qt::UserRole, QString::fromStdString(spec.name));
-            value->setToolTip(tr("Default: %1").arg(QString::fromStdString(spec.defaultText())));
-            auto* allowed = new QTableWidgetItem(QString::fromStdString(spec.rangeText()));
+            value->setToolTip(tr("Leave empty for the default, %1").arg(QString::fromStdString(spec.defaultText())));
+            // Empty value = default, so the default leads the "Allowed" cell.
+            auto* allowed = new QTableWidgetItem(tr("default %1; %2")
+                                                     .arg(QString::fromStdString(spec.defaultText()),
+                                                          QString::fromStdString(spec.rangeText())));
             allowed->setFlags(allowed->flags() & ~Qt::ItemIsEditable);
             allowed->setToolTip(tr("Default %1; %2")
                                     .arg(QString::fromStdString(spec.defaultText()),

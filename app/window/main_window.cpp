@@ -100,6 +100,9 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     heldResample_.setSingleShot(true);
     heldResample_.setInterval(60);
     connect(&heldResample_, &QTimer::timeout, this, &MainWindow::requestField);
+    lazyViews_.setSingleShot(true);
+    lazyViews_.setInterval(40);
+    connect(&lazyViews_, &QTimer::timeout, this, &MainWindow::updateOtherViews);
 
     readSettings();
     newStudy();
@@ -879,11 +882,19 @@ void MainWindow::showRuns(std::shared_ptr<const RunBatch> batch) {
     emit runsShown();
 }
 
+// The landscape follows every result at once (it is what a drag looks at); the other views
+// and the table catch up 40 ms after the last result, so a continuous drag or a fast
+// animation redraws one plot per frame rather than six.
 void MainWindow::pushSnapshot(std::shared_ptr<const widgets::Snapshot> snapshot) {
     snapshot_ = std::move(snapshot);
-    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
-                                    static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
-                                    static_cast<widgets::PlotView*>(slice_)}) {
+    landscape_->setSnapshot(snapshot_);
+    landscape_->setSelection(selection_);
+    lazyViews_.start();
+}
+
+void MainWindow::updateOtherViews() {
+    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(localModel_), static_cast<widgets::PlotView*>(curvature_),
+                                    static_cast<widgets::PlotView*>(progress_), static_cast<widgets::PlotView*>(slice_)}) {
         view->setSnapshot(snapshot_);
         view->setSelection(selection_);
     }
@@ -900,6 +911,10 @@ void MainWindow::showField(std::shared_ptr<const widgets::FieldSnapshot> field) 
 void MainWindow::setSelection(const widgets::Selection& selection) {
     if (selection == selection_) return;
     selection_ = selection;
+    if (lazyViews_.isActive()) {
+        lazyViews_.stop();
+        updateOtherViews();
+    }
     for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
                                     static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
                                     static_cast<widgets::PlotView*>(slice_)})
@@ -930,9 +945,9 @@ bool MainWindow::waitForIdle(int timeoutMs) {
     clock.start();
     while (clock.elapsed() < timeoutMs) {
         QCoreApplication::processEvents(QEventLoop::AllEvents, 5);
-        if (!jobs_->anyBusy() && !heldResample_.isActive()) {
+        if (!jobs_->anyBusy() && !heldResample_.isActive() && !lazyViews_.isActive()) {
             QCoreApplication::processEvents();
-            if (!jobs_->anyBusy()) return true;
+            if (!jobs_->anyBusy() && !lazyViews_.isActive()) return true;
         }
         QThread::usleep(200);
     }

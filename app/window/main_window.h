@@ -130,6 +130,7 @@ private:
     void showRuns(std::shared_ptr<const RunBatch> batch);
     void showField(std::shared_ptr<const widgets::FieldSnapshot> field);
     void pushSnapshot(std::shared_ptr<const widgets::Snapshot> snapshot);
+    void updateOtherViews();
     void updateHeldText();
     void onJobProgress(int kind, double fraction);
     void onJobStateChanged();
@@ -156,6 +157,7 @@ private:
     JobRunner* jobs_ = nullptr;
     QTimer animation_;
     QTimer heldResample_;
+    QTimer lazyViews_;  // views other than the landscape catch up when a drag pauses
 
     // Views and editors.
     widgets::LandscapeView* landscape_ = nullptr;

@@ -85,6 +85,9 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     variables_->setHorizontalHeaderLabels({tr("Name"), tr("Start"), tr("Plot from"), tr("Plot to")});
     variables_->horizontalHeader()->setSectionResizeMode(QHeaderView::Stretch);
     variables_->verticalHeader()->setVisible(false);
+    // Room for four variables before scrolling.
+    variables_->setMinimumHeight(variables_->horizontalHeader()->sizeHint().height() +
+                                 4 * variables_->verticalHeader()->defaultSectionSize() + 4);
     variables_->setToolTip(tr("Variables (or fit parameters): name, start value and the range shown on the plots"));
     variables_->horizontalHeaderItem(NameColumn)->setToolTip(tr("Name used in the formula"));
     variables_->horizontalHeaderItem(StartColumn)->setToolTip(tr("Where every method starts"));
