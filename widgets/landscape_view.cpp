@@ -58,7 +58,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     legendRow->setMargins(QMargins(4, 0, 4, 4));
     legendRow->addElement(0, 0, plot_->legend);
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
-    plot_->legend->setWrap(4);
+    plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
     plot_->plotLayout()->setRowStretchFactor(1, 0.001);
 
