@@ -195,10 +195,12 @@ QSharedPointer<TransformTicker> symmetricLogTicker(double c) {
         const int kMin = static_cast<int>(std::floor(std::log10(c))) - 1;
         const int kMax = static_cast<int>(std::ceil(std::log10(top))) + 1;
         for (int k = kMin; k <= kMax; ++k) {
-            const double v = std::pow(10.0, k);
-            if (v < 0.5 * c) continue;  // inside the linear zone the decades crowd together
-            if (v <= hi) values.push_back(v);
-            if (-v >= lo) values.push_back(-v);
+            for (double mantissa : {1.0, 2.0, 5.0}) {
+                const double v = mantissa * std::pow(10.0, k);
+                if (v < 0.5 * c) continue;  // inside the linear zone the decades crowd together
+                if (v <= hi) values.push_back(v);
+                if (-v >= lo) values.push_back(-v);
+            }
         }
         return values;
     };
