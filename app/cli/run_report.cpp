@@ -115,6 +115,7 @@ json runToJson(const solve::Run& run, const std::vector<std::string>& names, boo
               {"end_point",
                {{"kind", solve::toString(run.endPoint.kind)},
                 {"index", run.endPoint.index},
+                {"critical", run.endPoint.critical},
                 {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
                 {"tolerance", number(run.endPoint.tolerance)},
                 {"description", run.endPoint.description}}}};
@@ -171,6 +172,7 @@ void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
     for (const solve::Run& r : runs) {
         std::string end = solve::toString(r.endPoint.kind);
         if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
+        if (!r.endPoint.critical && r.endPoint.kind != solve::PointKind::Unknown) end = "not stationary; curvature: " + end;
         table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),
                    num(r.gradientNorm, 3), solve::toString(r.termination), end});
     }

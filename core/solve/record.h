@@ -109,6 +109,7 @@ struct EndPoint {
     int index = 0;                    // number of negative eigenvalues
     Vector eigenvalues;               // ascending
     double tolerance = kNaN;          // |lambda| below this counts as zero
+    bool critical = true;             // false when the gradient there is not small: kind is then only the curvature
     std::string description;          // e.g. "saddle of index 1 (eigenvalues -2, 2)"
 };
 

@@ -244,9 +244,11 @@ private:
         // Curvature alone does not make a critical point: say so when the gradient is not small.
         const double gn = run_.gradientNorm;
         if (run_.endPoint.kind != PointKind::Unknown && std::isfinite(gn) &&
-            gn > std::max(1e-4, std::sqrt(rules_.gradientTolerance)) * (1.0 + std::abs(run_.value)))
+            gn > std::max(1e-4, std::sqrt(rules_.gradientTolerance)) * (1.0 + std::abs(run_.value))) {
+            run_.endPoint.critical = false;
             run_.endPoint.description += "; not a critical point (gradient norm " + shortNumber(gn) +
                                          "), so this is only the local curvature";
+        }
     }
 
     MethodInfo info_;

@@ -238,5 +238,23 @@ TEST(Registry, EveryMethodHasAUniqueIdAFamilyAndDocumentedOptions) {
     EXPECT_EQ(findMethod("gradient-decent"), nullptr);
 }
 
+TEST(Solver, EndPointAwayFromACriticalPointIsMarkedNotCritical) {
+    // Five steepest-descent steps on Rosenbrock from (-1.2, 1) end far from any critical point:
+    // the curvature there is still reported, but the end point must not pass for a saddle or a
+    // minimum. Rosenbrock (1960), standard start; common practice, no published source.
+    const FunctionObjective problem = problems::rosenbrock();
+    StoppingRules rules;
+    rules.maxIterations = 5;
+    solve::Run stalled = solve("gradient-descent", problem, point(-1.2, 1), {}, rules);
+    EXPECT_EQ(stalled.termination, Termination::IterationLimit);
+    EXPECT_FALSE(stalled.endPoint.critical);
+    EXPECT_NE(stalled.endPoint.description.find("not a critical point"), std::string::npos);
+
+    solve::Run converged = solve("newton", problem, point(-1.2, 1));
+    EXPECT_TRUE(isConvergence(converged.termination));
+    EXPECT_TRUE(converged.endPoint.critical);
+    EXPECT_EQ(converged.endPoint.kind, PointKind::Minimum);
+}
+
 }  // namespace
 }  // namespace sw::solve
