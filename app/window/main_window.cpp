@@ -1,4 +1,4 @@
-// expr.h first: its Program::Workspace has a member named `slots`, which Qt defines as a macro.
+// (Include order: core headers first, then Qt.)
 #include "core/expr/expr.h"
 
 #include "app/window/main_window.h"

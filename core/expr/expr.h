@@ -91,7 +91,7 @@ std::vector<Expression> hessianUpper(const Expression& f, const std::vector<int>
 class Program {
 public:
     struct Workspace {
-        std::vector<double> slots;           // one value per register (single-point evaluation)
+        std::vector<double> registerValues;  // one value per register (single-point); not "slots", a Qt macro
         std::vector<double> block;           // kBlockSize values per register (block evaluation)
         std::vector<double*> rows;           // where each register's block lives this time
         std::vector<char> uniform;           // per instruction: same value at every point of the call

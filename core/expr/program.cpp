@@ -133,11 +133,11 @@ std::size_t Program::instructionCount() const { return impl_ ? impl_->code.size(
 static void prepare(const Program::Impl& p, Program::Workspace& ws) {
     if (ws.preparedFor == p.id) return;
     const std::size_t B = Program::kBlockSize;
-    ws.slots.assign(p.registers, 0.0);
+    ws.registerValues.assign(p.registers, 0.0);
     ws.block.assign(static_cast<std::size_t>(p.registers) * B, 0.0);
     ws.rows.assign(p.registers, nullptr);
     for (const auto& [r, v] : p.constants) {
-        ws.slots[r] = v;
+        ws.registerValues[r] = v;
         std::fill_n(ws.block.data() + static_cast<std::size_t>(r) * B, B, v);
     }
     ws.preparedFor = p.id;
@@ -153,7 +153,7 @@ void Program::evaluate(const double* inputs, double* outputs, Workspace& ws) con
     if (!impl_) return;
     const Impl& p = *impl_;
     prepare(p, ws);
-    double* r = ws.slots.data();
+    double* r = ws.registerValues.data();
     std::copy_n(inputs, p.inputs, r);
     for (const Instruction& in : p.code) {
         switch (in.code) {

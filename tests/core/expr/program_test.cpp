@@ -28,7 +28,7 @@ TEST(Program, ReusesRegisters) {
     auto p = Program::compile({Expression::parse(sum, {"x"})});
     auto ws = p.makeWorkspace();
     EXPECT_GT(p.instructionCount(), 400u);
-    EXPECT_LT(ws.slots.size(), 220u) << "one register per constant plus a few temporaries";
+    EXPECT_LT(ws.registerValues.size(), 220u) << "one register per constant plus a few temporaries";
     double x = 0.3, out = 0, expected = 0;
     for (int i = 1; i <= 200; ++i) expected += std::sin(i * x);
     p.evaluate(&x, &out, ws);
