@@ -223,14 +223,8 @@ void CurvatureView::rebuild() {
 
     highlight_ = plot_->addGraph(ex, ey);
     conditionHighlight_ = plot_->addGraph(cx, cy);
-    for (QCPGraph* graph : {highlight_, conditionHighlight_}) {
-        graph->setLineStyle(QCPGraph::lsNone);
-        QPen pen(palette().color(QPalette::Highlight), 2.4);
-        pen.setCosmetic(true);
-        graph->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, 16));
-        graph->removeFromLegend();
-        graph->setSelectable(QCP::stNone);
-    }
+    for (QCPGraph* graph : {highlight_, conditionHighlight_})
+        styleAsSelectionRing(graph, palette().color(QPalette::Highlight));
     updateHighlight();
     queueReplot();
 }

@@ -45,6 +45,15 @@ QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, doubl
     return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size);
 }
 
+void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size) {
+    graph->setLineStyle(QCPGraph::lsNone);
+    QPen pen(highlight, 2.4);
+    pen.setCosmetic(true);
+    graph->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size));
+    graph->removeFromLegend();
+    graph->setSelectable(QCP::stNone);
+}
+
 QString endPointLabel(solve::PointKind kind) {
     switch (kind) {
     case solve::PointKind::Minimum: return QStringLiteral("ends at a minimum");

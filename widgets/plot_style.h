@@ -25,6 +25,9 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size = 
 // triangle, degenerate = hollow diamond, unknown (also: stopped before converging) = hollow circle.
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size = 13.0);
 QString endPointLabel(solve::PointKind kind);
+// Turns a graph into the ring that marks the selected iterate: markers only, in the palette's
+// highlight colour, out of the legend and not selectable.
+void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size = 16.0);
 
 // Axis, grid and background colours from the palette of `plot`; call again when the palette changes.
 void applyPlotStyle(QCustomPlot* plot);

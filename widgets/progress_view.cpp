@@ -172,14 +172,8 @@ void ProgressView::rebuild() {
 
     gapHighlight_ = plot_->addGraph(gx, gy);
     gradientHighlight_ = plot_->addGraph(dx, dy);
-    for (QCPGraph* graph : {gapHighlight_, gradientHighlight_}) {
-        graph->setLineStyle(QCPGraph::lsNone);
-        QPen pen(palette().color(QPalette::Highlight), 2.4);
-        pen.setCosmetic(true);
-        graph->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, 16));
-        graph->removeFromLegend();
-        graph->setSelectable(QCP::stNone);
-    }
+    for (QCPGraph* graph : {gapHighlight_, gradientHighlight_})
+        styleAsSelectionRing(graph, palette().color(QPalette::Highlight));
     updateHighlight();
     queueReplot();
 }
