@@ -34,7 +34,7 @@ CurvatureView::CurvatureView(QWidget* parent) : PlotView(parent) {
     legendRow->setMargins(QMargins(4, 0, 4, 4));
     legendRow->addElement(0, 0, plot_->legend);
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
-    plot_->legend->setWrap(4);
+    plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
     applyPlotStyle(plot_);
     rebuild();
