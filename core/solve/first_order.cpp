@@ -151,6 +151,25 @@ std::string curvatureAboveDecrease(const OptionValues& values, const std::vector
 
 }  // namespace
 
+// Heavy ball and Nesterov share their options (a fixed step and a constant momentum).
+template <class Method>
+MethodRegistration fixedStepMomentum(const char* id, const char* summary, const char* momentumDescription) {
+    MethodInfo info;
+    info.id = id;
+    info.family = "first-order";
+    info.summary = summary;
+    info.options = {
+        realOption("step_size", "step length a multiplying the gradient", 1e-3, 0, kUnbounded, true, false),
+        realOption("momentum", momentumDescription, 0.9, 0, 1, false, true),
+    };
+    const std::vector<OptionSpec> specs = info.options;
+    return {info,
+            [specs](const OptionValues& v) {
+                return std::make_unique<Method>(optionNumber(specs, v, "step_size"), optionNumber(specs, v, "momentum"));
+            },
+            {}};
+}
+
 std::vector<MethodRegistration> firstOrderMethods() {
     std::vector<MethodRegistration> list;
     {
@@ -177,40 +196,10 @@ std::vector<MethodRegistration> firstOrderMethods() {
                         },
                         [specs](const OptionValues& v) { return curvatureAboveDecrease(v, specs); }});
     }
-    {
-        MethodInfo info;
-        info.id = "momentum";
-        info.family = "first-order";
-        info.summary = "heavy-ball momentum (Polyak 1964) with a fixed step";
-        info.options = {
-            realOption("step_size", "step length a multiplying the gradient", 1e-3, 0, kUnbounded, true, false),
-            realOption("momentum", "weight b of the previous step", 0.9, 0, 1, false, true),
-        };
-        const std::vector<OptionSpec> specs = info.options;
-        list.push_back({info,
-                        [specs](const OptionValues& v) {
-                            return std::make_unique<HeavyBall>(optionNumber(specs, v, "step_size"),
-                                                               optionNumber(specs, v, "momentum"));
-                        },
-                        {}});
-    }
-    {
-        MethodInfo info;
-        info.id = "nesterov";
-        info.family = "first-order";
-        info.summary = "Nesterov's accelerated gradient (1983) with a fixed step and constant momentum";
-        info.options = {
-            realOption("step_size", "step length a multiplying the gradient", 1e-3, 0, kUnbounded, true, false),
-            realOption("momentum", "momentum b", 0.9, 0, 1, false, true),
-        };
-        const std::vector<OptionSpec> specs = info.options;
-        list.push_back({info,
-                        [specs](const OptionValues& v) {
-                            return std::make_unique<Nesterov>(optionNumber(specs, v, "step_size"),
-                                                              optionNumber(specs, v, "momentum"));
-                        },
-                        {}});
-    }
+    list.push_back(fixedStepMomentum<HeavyBall>("momentum", "heavy-ball momentum (Polyak 1964) with a fixed step",
+                                                "weight b of the previous step"));
+    list.push_back(fixedStepMomentum<Nesterov>(
+        "nesterov", "Nesterov's accelerated gradient (1983) with a fixed step and constant momentum", "momentum b"));
     {
         MethodInfo info;
         info.id = "adam";
