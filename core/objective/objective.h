@@ -36,6 +36,18 @@ public:
     virtual int residualCount() const { return 0; }
     // Fills residuals (size m) and, when jacobian is non-null, J = dr/dx (m x n).
     virtual void residuals(const Vector& /*x*/, Vector& residuals, Matrix* /*jacobian*/) const { residuals.resize(0); }
+
+    // The residual form at x reduced to n x n without handing out the m x n Jacobian, for
+    // Gauss-Newton and Levenberg-Marquardt on many residuals: r (n x n, upper triangular) and
+    // qtr (size n) with J = Q r and qtr = Q' residuals for some Q with orthonormal columns, and
+    // residualNormSq = |residuals|^2. So r'r = J'J and r'qtr = J'residuals; the signs of r's rows
+    // may differ from another QR of J. Non-finite residuals or Jacobian entries show up as
+    // non-finite outputs. Returns false when not offered (callers then use residuals() with the
+    // Jacobian); an objective offers it only with at least n residuals.
+    virtual bool leastSquaresFactor(const Vector& /*x*/, Matrix& /*r*/, Vector& /*qtr*/,
+                                    double& /*residualNormSq*/) const {
+        return false;
+    }
 };
 
 }  // namespace sw
