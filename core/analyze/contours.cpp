@@ -9,6 +9,13 @@
 // edge of a region where f is undefined. Segments are then joined through their shared edge
 // points into polylines; a polyline that comes back to its start is a closed ring and
 // repeats its first point at the end, so it draws as a closed curve.
+//
+// Speed: the field is read once. One pass over the cells (rows split between threads) puts
+// each cell in the bucket of every level that passes between its lowest and highest corner;
+// most cells cross no level, and a cell's levels are found by walking from its left
+// neighbour's, which is nearly always where they are. Each level then visits only its own
+// cells, and its segments are joined by sorting their end points by edge, so no per-edge
+// table over the whole grid is needed. Levels are traced in parallel.
 #include "core/analyze/analyze.h"
 
 #include <algorithm>
@@ -26,31 +33,20 @@ namespace {
 // H + j*nx + i, where H = (nx-1)*ny is the number of horizontal edges.
 class Tracer {
 public:
-    // cellLow/cellHigh: per cell, the smallest and largest corner (+inf/-inf when a corner is
-    // not finite), shared by every level so most cells are passed over with two comparisons.
-    Tracer(const Field& field, const std::vector<double>& cellLow, const std::vector<double>& cellHigh)
-        : field_(field),
-          nx_(field.nx),
-          ny_(field.ny),
-          horizontalEdges_(static_cast<long>(nx_ - 1) * ny_),
-          firstSegment_(horizontalEdges_ + static_cast<long>(nx_) * (ny_ - 1), -1),
-          secondSegment_(firstSegment_.size(), -1),
-          cellLow_(cellLow),
-          cellHigh_(cellHigh) {}
+    explicit Tracer(const Field& field)
+        : field_(field), nx_(field.nx), horizontalEdges_(static_cast<long>(field.nx - 1) * field.ny) {}
 
-    ContourSet trace(double level) {
+    // cells: indices j*(nx-1)+i of the cells whose corner range holds the level, row-major.
+    ContourSet trace(double level, const std::vector<std::vector<long>*>& cellChunks) {
         level_ = level;
         segments_.clear();
-        for (int j = 0; j + 1 < ny_; ++j) {
-            const std::size_t row = static_cast<std::size_t>(j) * (nx_ - 1);
-            for (int i = 0; i + 1 < nx_; ++i)
-                if (cellHigh_[row + i] >= level && cellLow_[row + i] < level) cell(i, j);
-        }
+        const int cellsPerRow = nx_ - 1;
+        for (const std::vector<long>* chunk : cellChunks)
+            for (long c : *chunk) cell(static_cast<int>(c % cellsPerRow), static_cast<int>(c / cellsPerRow));
         ContourSet set;
         set.level = level;
+        link();
         join(set);
-        for (const auto& s : segments_)
-            for (long e : s) firstSegment_[e] = secondSegment_[e] = -1;
         return set;
     }
 
@@ -61,7 +57,6 @@ private:
     void cell(int i, int j) {
         const double v00 = field_.at(i, j), v10 = field_.at(i + 1, j);
         const double v11 = field_.at(i + 1, j + 1), v01 = field_.at(i, j + 1);
-        if (!std::isfinite(v00) || !std::isfinite(v10) || !std::isfinite(v11) || !std::isfinite(v01)) return;
         const int index =
             (v00 >= level_ ? 1 : 0) | (v10 >= level_ ? 2 : 0) | (v11 >= level_ ? 4 : 0) | (v01 >= level_ ? 8 : 0);
         if (index == 0 || index == 15) return;
@@ -73,12 +68,12 @@ private:
             const bool joinDiagonal00and11 = (index == 5) == centreAbove;
             if (joinDiagonal00and11) {
                 // v00, v11 joined through the centre: cut off corners 10 and 01.
-                add(south, east);
-                add(west, north);
+                segments_.push_back({south, east});
+                segments_.push_back({west, north});
             } else {
                 // v10, v01 joined: cut off corners 00 and 11.
-                add(south, west);
-                add(east, north);
+                segments_.push_back({south, west});
+                segments_.push_back({east, north});
             }
             return;
         }
@@ -89,13 +84,23 @@ private:
         if (a10 != a11) crossed[count++] = east;
         if (a01 != a11) crossed[count++] = north;
         if (a00 != a01) crossed[count++] = west;
-        if (count == 2) add(crossed[0], crossed[1]);
+        if (count == 2) segments_.push_back(crossed);
     }
 
-    void add(long a, long b) {
-        const int id = static_cast<int>(segments_.size());
-        segments_.push_back({a, b});
-        for (long e : {a, b}) (firstSegment_[e] < 0 ? firstSegment_[e] : secondSegment_[e]) = id;
+    // neighbour_[2s+e]: the segment end (2t+f) that shares end e of segment s's edge point,
+    // or -1 when none does (an edge point is shared by at most the two cells beside it).
+    void link() {
+        ends_.clear();
+        for (std::size_t s = 0; s < segments_.size(); ++s)
+            for (int e = 0; e < 2; ++e) ends_.push_back({segments_[s][e], static_cast<int>(2 * s) + e});
+        std::sort(ends_.begin(), ends_.end(), [](const End& a, const End& b) { return a.edge < b.edge; });
+        neighbour_.assign(ends_.size(), -1);
+        for (std::size_t k = 0; k + 1 < ends_.size(); ++k) {
+            if (ends_[k].edge != ends_[k + 1].edge) continue;
+            neighbour_[ends_[k].segmentEnd] = ends_[k + 1].segmentEnd;
+            neighbour_[ends_[k + 1].segmentEnd] = ends_[k].segmentEnd;
+            ++k;
+        }
     }
 
     // The crossing point on an edge, interpolated linearly between its two grid points.
@@ -117,59 +122,83 @@ private:
         y = field_.y(j0) + t * (field_.y(j1) - field_.y(j0));
     }
 
-    int otherSegment(long edge, int segment) const {
-        return firstSegment_[edge] == segment ? secondSegment_[edge] : firstSegment_[edge];
-    }
-
-    // Walks from `segment`, entering it through `entry`, until the chain ends or closes.
-    void walk(int segment, long entry, std::vector<char>& used, Polyline& line) {
+    // Walks from `segment`, entering it through its end `entryEnd`, until the chain ends or closes.
+    void walk(int segment, int entryEnd, std::vector<char>& used, Polyline& line) const {
         double x, y;
-        point(entry, x, y);
+        point(segments_[segment][entryEnd], x, y);
         line.x.push_back(x);
         line.y.push_back(y);
-        long edge = entry;
         while (segment >= 0 && !used[segment]) {
             used[segment] = 1;
-            const auto& s = segments_[segment];
-            edge = s[0] == edge ? s[1] : s[0];
-            point(edge, x, y);
+            const int exitEnd = 1 - entryEnd;
+            point(segments_[segment][exitEnd], x, y);
             line.x.push_back(x);
             line.y.push_back(y);
-            segment = otherSegment(edge, segment);
+            const int next = neighbour_[2 * segment + exitEnd];
+            segment = next < 0 ? -1 : next / 2;
+            entryEnd = next < 0 ? 0 : next % 2;
         }
     }
 
     void join(ContourSet& set) {
+        const int count = static_cast<int>(segments_.size());
         std::vector<char> used(segments_.size(), 0);
         // Open lines first: start at an edge point that belongs to one segment only.
-        for (int s = 0; s < static_cast<int>(segments_.size()); ++s) {
-            if (used[s]) continue;
-            for (long e : segments_[s]) {
-                if (secondSegment_[e] >= 0 || used[s]) continue;
+        for (int s = 0; s < count; ++s) {
+            for (int e = 0; e < 2; ++e) {
+                if (used[s] || neighbour_[2 * s + e] >= 0) continue;
                 Polyline line;
                 walk(s, e, used, line);
                 set.lines.push_back(std::move(line));
             }
         }
         // What is left are closed rings.
-        for (int s = 0; s < static_cast<int>(segments_.size()); ++s) {
+        for (int s = 0; s < count; ++s) {
             if (used[s]) continue;
             Polyline line;
-            walk(s, segments_[s][0], used, line);
+            walk(s, 0, used, line);
             line.closed = true;
             set.lines.push_back(std::move(line));
         }
     }
 
+    struct End {
+        long edge;
+        int segmentEnd;
+    };
+
     const Field& field_;
-    int nx_, ny_;
+    int nx_;
     long horizontalEdges_;
-    std::vector<int> firstSegment_, secondSegment_;  // the (at most two) segments through each edge point
     std::vector<std::array<long, 2>> segments_;
-    const std::vector<double>& cellLow_;
-    const std::vector<double>& cellHigh_;
+    std::vector<End> ends_;
+    std::vector<int> neighbour_;
     double level_ = 0;
 };
+
+// Puts the cells of rows [rowBegin, rowEnd) into the buckets of the levels they cross.
+// sortedLevels ascending; a cell crosses level L when its lowest corner < L <= its highest.
+void bucketRows(const Field& field, const std::vector<double>& sortedLevels, int rowBegin, int rowEnd,
+                std::vector<std::vector<long>>& buckets) {
+    const int nx = field.nx;
+    const int levelCount = static_cast<int>(sortedLevels.size());
+    int k = 0;  // first level above the previous cell's lowest corner
+    for (int j = rowBegin; j < rowEnd; ++j) {
+        const double* below = field.values.data() + static_cast<std::size_t>(j) * nx;
+        const double* above = below + nx;
+        for (int i = 0; i + 1 < nx; ++i) {
+            const double a = below[i], b = below[i + 1], c = above[i], d = above[i + 1];
+            // v - v is 0 for a finite v and NaN for inf or NaN: the sum is 0 only when all four are finite.
+            if ((a - a) + (b - b) + (c - c) + (d - d) != 0) continue;
+            const double lo = std::min(std::min(a, b), std::min(c, d));
+            const double hi = std::max(std::max(a, b), std::max(c, d));
+            while (k > 0 && sortedLevels[k - 1] > lo) --k;
+            while (k < levelCount && sortedLevels[k] <= lo) ++k;
+            for (int m = k; m < levelCount && sortedLevels[m] <= hi; ++m)
+                buckets[m].push_back(static_cast<long>(j) * (nx - 1) + i);
+        }
+    }
+}
 
 }  // namespace
 
@@ -183,29 +212,43 @@ std::vector<ContourSet> contourLines(const Field& field, const std::vector<doubl
         if (std::isfinite(level)) finiteLevels.push_back(level);
     if (finiteLevels.empty()) return sets;
 
-    const int nx = field.nx, ny = field.ny;
-    const double inf = std::numeric_limits<double>::infinity();
-    std::vector<double> cellLow(static_cast<std::size_t>(nx - 1) * (ny - 1)), cellHigh(cellLow.size());
-    for (int j = 0; j + 1 < ny; ++j)
-        for (int i = 0; i + 1 < nx; ++i) {
-            const double a = field.at(i, j), b = field.at(i + 1, j), c = field.at(i, j + 1), d = field.at(i + 1, j + 1);
-            const std::size_t k = static_cast<std::size_t>(j) * (nx - 1) + i;
-            const bool finite = std::isfinite(a) && std::isfinite(b) && std::isfinite(c) && std::isfinite(d);
-            cellLow[k] = finite ? std::min(std::min(a, b), std::min(c, d)) : inf;
-            cellHigh[k] = finite ? std::max(std::max(a, b), std::max(c, d)) : -inf;
-        }
+    // Buckets are kept by ascending level; order[k] is the position of the k-th smallest level.
+    const std::size_t levelCount = finiteLevels.size();
+    std::vector<std::size_t> order(levelCount);
+    for (std::size_t k = 0; k < levelCount; ++k) order[k] = k;
+    std::stable_sort(order.begin(), order.end(),
+                     [&](std::size_t a, std::size_t b) { return finiteLevels[a] < finiteLevels[b]; });
+    std::vector<double> sortedLevels(levelCount);
+    for (std::size_t k = 0; k < levelCount; ++k) sortedLevels[k] = finiteLevels[order[k]];
 
-    // Levels are independent: trace them on every hardware thread, each with its own tracer.
-    sets.resize(finiteLevels.size());
+    const long cells = static_cast<long>(field.nx - 1) * (field.ny - 1);
     const unsigned hardware = std::max(1u, std::thread::hardware_concurrency());
-    const long cells = static_cast<long>(cellLow.size()) * static_cast<long>(finiteLevels.size());
-    const unsigned workers =
-        cells < 200000 ? 1u : std::min<unsigned>(hardware, static_cast<unsigned>(finiteLevels.size()));
+    const bool parallel = cells * static_cast<long>(levelCount) >= 200000;
+
+    // Pass 1: rows split into one contiguous chunk per thread; each chunk keeps row order.
+    const unsigned chunks = parallel ? std::min<unsigned>(hardware, static_cast<unsigned>(field.ny - 1)) : 1u;
+    std::vector<std::vector<std::vector<long>>> buckets(chunks,
+                                                                std::vector<std::vector<long>>(levelCount));
+    auto rowOf = [&](unsigned chunk) { return static_cast<int>(static_cast<long>(field.ny - 1) * chunk / chunks); };
+    {
+        std::vector<std::thread> threads;
+        for (unsigned t = 1; t < chunks; ++t)
+            threads.emplace_back([&, t] { bucketRows(field, sortedLevels, rowOf(t), rowOf(t + 1), buckets[t]); });
+        bucketRows(field, sortedLevels, rowOf(0), rowOf(1), buckets[0]);
+        for (std::thread& t : threads) t.join();
+    }
+
+    // Pass 2: levels are independent; trace them on every hardware thread, each with its own tracer.
+    sets.resize(levelCount);
+    const unsigned workers = parallel ? std::min<unsigned>(hardware, static_cast<unsigned>(levelCount)) : 1u;
     std::atomic<std::size_t> next{0};
     auto work = [&]() {
-        Tracer tracer(field, cellLow, cellHigh);
-        for (std::size_t k = next.fetch_add(1); k < finiteLevels.size(); k = next.fetch_add(1))
-            sets[k] = tracer.trace(finiteLevels[k]);
+        Tracer tracer(field);
+        std::vector<std::vector<long>*> cellChunks(chunks);
+        for (std::size_t k = next.fetch_add(1); k < levelCount; k = next.fetch_add(1)) {
+            for (unsigned c = 0; c < chunks; ++c) cellChunks[c] = &buckets[c][k];
+            sets[order[k]] = tracer.trace(sortedLevels[k], cellChunks);
+        }
     };
     std::vector<std::thread> threads;
     for (unsigned t = 1; t < workers; ++t) threads.emplace_back(work);

@@ -15,19 +15,30 @@ namespace sw::analyze {
 
 namespace {
 
-// The p-quantile of values (reordered in place), interpolated between order statistics.
-// nth_element keeps this linear in the number of cells (a full sort dominated a 600 x 600
-// landscape).
-double quantile(std::vector<double>& values, double p) {
-    const double position = p * static_cast<double>(values.size() - 1);
-    const auto below = static_cast<std::size_t>(std::floor(position));
-    const double t = position - static_cast<double>(below);
-    std::nth_element(values.begin(), values.begin() + static_cast<std::ptrdiff_t>(below), values.end());
-    const double low = values[below];
-    if (t == 0 || below + 1 >= values.size()) return low;
-    // After nth_element everything past `below` is >= low; the next order statistic is their minimum.
-    const double high = *std::min_element(values.begin() + static_cast<std::ptrdiff_t>(below) + 1, values.end());
-    return low + t * (high - low);
+// The p-quantiles of values (reordered in place), interpolated between order statistics,
+// for ascending ps. nth_element keeps this linear in the number of cells (a full sort
+// dominated a 600 x 600 landscape); each quantile after the first partitions only what lies
+// above the one before it, so four quantiles cost about two passes, not four.
+std::vector<double> quantiles(std::vector<double>& values, const std::vector<double>& ps) {
+    std::vector<double> result;
+    std::size_t begin = 0;  // everything before `begin` is <= every value from `begin` on
+    for (double p : ps) {
+        const double position = p * static_cast<double>(values.size() - 1);
+        const auto below = std::max(begin, static_cast<std::size_t>(std::floor(position)));
+        const double t = position - static_cast<double>(below);
+        std::nth_element(values.begin() + static_cast<std::ptrdiff_t>(begin),
+                         values.begin() + static_cast<std::ptrdiff_t>(below), values.end());
+        const double low = values[below];
+        begin = below;
+        if (t <= 0 || below + 1 >= values.size()) {
+            result.push_back(low);
+            continue;
+        }
+        // Everything past `below` is >= low; the next order statistic is their minimum.
+        const double high = *std::min_element(values.begin() + static_cast<std::ptrdiff_t>(below) + 1, values.end());
+        result.push_back(low + t * (high - low));
+    }
+    return result;
 }
 
 }  // namespace
@@ -46,9 +57,10 @@ LevelPlan planLevels(const Field& field) {
     for (double v : field.values)
         if (std::isfinite(v) && v > field.finiteMin) heights.push_back(v - field.finiteMin);
     if (heights.size() < 10) return plan;
-    const double q10 = quantile(heights, 0.10), q90 = quantile(heights, 0.90);
-    plan.lo = quantile(heights, 0.02);
-    plan.hi = quantile(heights, 0.98);
+    const std::vector<double> q = quantiles(heights, {0.02, 0.10, 0.90, 0.98});
+    const double q10 = q[1], q90 = q[2];
+    plan.lo = q[0];
+    plan.hi = q[3];
     plan.logSpaced = q10 > 0 && q90 / q10 >= 20 && plan.lo > 0 && plan.hi > plan.lo;
     return plan;
 }
