@@ -23,7 +23,144 @@ namespace sw::expr {
 
 namespace {
 std::atomic<std::uint64_t> nextProgramId{1};
+
+ScalarOp scalarOp(const Instruction& in) {
+    switch (in.code) {
+    case Code::Select: return ScalarOp::Select;
+    case Code::Square: return ScalarOp::Square;
+    case Code::Cube: return ScalarOp::Cube;
+    case Code::Fourth: return ScalarOp::Fourth;
+    case Code::Reciprocal: return ScalarOp::Reciprocal;
+    case Code::PowInteger: return ScalarOp::PowInteger;
+    case Code::Unary:
+        switch (in.op) {
+        case Op::Neg: return ScalarOp::Neg;
+        case Op::Sin: return ScalarOp::Sin;
+        case Op::Cos: return ScalarOp::Cos;
+        case Op::Exp: return ScalarOp::Exp;
+        case Op::Log: return ScalarOp::Log;
+        case Op::Sqrt: return ScalarOp::Sqrt;
+        case Op::Atan: return ScalarOp::Atan;
+        default: return ScalarOp::Unary;
+        }
+    case Code::Binary:
+        switch (in.op) {
+        case Op::Add: return ScalarOp::Add;
+        case Op::Sub: return ScalarOp::Sub;
+        case Op::Mul: return ScalarOp::Mul;
+        case Op::Div: return ScalarOp::Div;
+        case Op::Pow: return ScalarOp::Pow;
+        default: return ScalarOp::Binary;
+        }
+    }
+    return ScalarOp::Binary;
 }
+
+std::vector<ScalarInstruction> flatten(const std::vector<Instruction>& code) {
+    std::vector<ScalarInstruction> flat;
+    flat.reserve(code.size() + 1);
+    for (const Instruction& in : code) {
+        ScalarInstruction s;
+        s.op = scalarOp(in);
+        s.generic = in.op;
+        s.dst = in.dst;
+        s.a = in.a;
+        s.b = in.code == Code::PowInteger ? in.n : std::max(in.b, 0);
+        s.c = std::max(in.c, 0);
+        flat.push_back(s);
+    }
+    flat.push_back(ScalarInstruction{});  // End
+    return flat;
+}
+
+// Runs a flattened program over the registers r. Threaded dispatch (GCC's labels as values):
+// every handler ends in its own indirect jump, which the processor predicts far better than
+// the single jump of a switch in a loop. Each handler reads its operands before writing, so
+// a destination may be one of its operands.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wpedantic"
+void runScalar(const ScalarInstruction* in, double* __restrict r) {
+    // Same order as ScalarOp.
+    static const void* const handler[] = {&&add, &&sub, &&mul, &&div, &&neg, &&square, &&cube, &&fourth,
+                                          &&reciprocal, &&powInteger, &&sin, &&cos, &&exp, &&log, &&sqrt,
+                                          &&atan, &&pow, &&select, &&unary, &&binary, &&end};
+    static_assert(sizeof handler / sizeof handler[0] == static_cast<std::size_t>(ScalarOp::End) + 1);
+#define SW_DISPATCH() goto* handler[static_cast<std::size_t>(in->op)]
+#define SW_NEXT() \
+    ++in;         \
+    SW_DISPATCH()
+    SW_DISPATCH();
+add:
+    r[in->dst] = r[in->a] + r[in->b];
+    SW_NEXT();
+sub:
+    r[in->dst] = r[in->a] - r[in->b];
+    SW_NEXT();
+mul:
+    r[in->dst] = r[in->a] * r[in->b];
+    SW_NEXT();
+div:
+    r[in->dst] = r[in->a] / r[in->b];
+    SW_NEXT();
+neg:
+    r[in->dst] = -r[in->a];
+    SW_NEXT();
+square:
+    r[in->dst] = r[in->a] * r[in->a];
+    SW_NEXT();
+cube: {
+    const double x = r[in->a];
+    r[in->dst] = x * (x * x);
+    SW_NEXT();
+}
+fourth: {
+    const double x2 = r[in->a] * r[in->a];
+    r[in->dst] = x2 * x2;
+    SW_NEXT();
+}
+reciprocal:
+    r[in->dst] = 1.0 / r[in->a];
+    SW_NEXT();
+powInteger:
+    r[in->dst] = sw::expr::powInteger(r[in->a], in->b);
+    SW_NEXT();
+sin:
+    r[in->dst] = std::sin(r[in->a]);
+    SW_NEXT();
+cos:
+    r[in->dst] = std::cos(r[in->a]);
+    SW_NEXT();
+exp:
+    r[in->dst] = std::exp(r[in->a]);
+    SW_NEXT();
+log:
+    r[in->dst] = std::log(r[in->a]);
+    SW_NEXT();
+sqrt:
+    r[in->dst] = std::sqrt(r[in->a]);
+    SW_NEXT();
+atan:
+    r[in->dst] = std::atan(r[in->a]);
+    SW_NEXT();
+pow:
+    r[in->dst] = std::pow(r[in->a], r[in->b]);
+    SW_NEXT();
+select:
+    r[in->dst] = r[in->a] != 0 ? r[in->b] : r[in->c];
+    SW_NEXT();
+unary:
+    r[in->dst] = apply1(in->generic, r[in->a]);
+    SW_NEXT();
+binary:
+    r[in->dst] = apply2(in->generic, r[in->a], r[in->b]);
+    SW_NEXT();
+end:
+    return;
+#undef SW_NEXT
+#undef SW_DISPATCH
+}
+#pragma GCC diagnostic pop
+}  // namespace
 
 Program Program::compile(const std::vector<Expression>& outputs) {
     auto impl = std::make_shared<Impl>();
@@ -94,6 +231,7 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         impl->code.push_back(in);
     }
     impl->registers = next;
+    impl->scalar = flatten(impl->code);
     std::vector<int> directSeen;
     for (const Node* r : roots) {
         const int rr = reg.at(r);
@@ -152,6 +290,15 @@ Program::Workspace Program::makeWorkspace() const {
 void Program::evaluate(const double* inputs, double* outputs, Workspace& ws) const {
     if (!impl_) return;
     const Impl& p = *impl_;
+    prepare(p, ws);
+    double* r = ws.registerValues.data();
+    std::copy_n(inputs, p.inputs, r);
+    runScalar(p.scalar.data(), r);
+    for (std::size_t o = 0; o < p.outputRegister.size(); ++o) outputs[o] = r[p.outputRegister[o]];
+}
+
+// The switch form of the same loop, kept as the reference the threaded form is tested against.
+void evaluateBySwitch(const Program::Impl& p, const double* inputs, double* outputs, Program::Workspace& ws) {
     prepare(p, ws);
     double* r = ws.registerValues.data();
     std::copy_n(inputs, p.inputs, r);
