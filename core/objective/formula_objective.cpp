@@ -36,15 +36,20 @@ std::vector<double> FormulaObjective::inputsFor(const Vector& x) const {
     return in;
 }
 
+FormulaObjective::~FormulaObjective() { delete spare_.exchange(nullptr); }
+
 // A point of the wrong size reads NaN for the missing coordinates rather than out of bounds.
-void FormulaObjective::fillInputs(const Vector& x, Scratch& s) const {
+const double* FormulaObjective::inputs(const Vector& x, Scratch& s) const {
     const int n = dimension();
+    if (constants_.empty() && x.size() == n) return x.data();
     s.inputs.assign(n + constants_.size(), std::numeric_limits<double>::quiet_NaN());
     for (int i = 0; i < n && i < x.size(); ++i) s.inputs[i] = x[i];
     for (std::size_t c = 0; c < constants_.size(); ++c) s.inputs[n + c] = constants_[c].second;
+    return s.inputs.data();
 }
 
 std::unique_ptr<FormulaObjective::Scratch> FormulaObjective::acquire() const {
+    if (Scratch* s = spare_.exchange(nullptr, std::memory_order_acquire)) return std::unique_ptr<Scratch>(s);
     {
         std::lock_guard lock(poolMutex_);
         if (!pool_.empty()) {
@@ -61,15 +66,19 @@ std::unique_ptr<FormulaObjective::Scratch> FormulaObjective::acquire() const {
 }
 
 void FormulaObjective::release(std::unique_ptr<Scratch> s) const {
+    Scratch* empty = nullptr;
+    if (spare_.compare_exchange_strong(empty, s.get(), std::memory_order_release, std::memory_order_relaxed)) {
+        s.release();
+        return;
+    }
     std::lock_guard lock(poolMutex_);
     pool_.push_back(std::move(s));
 }
 
 double FormulaObjective::value(const Vector& x) const {
     auto s = acquire();
-    fillInputs(x, *s);
     s->outputs.resize(1);
-    valueProgram_.evaluate(s->inputs.data(), s->outputs.data(), s->valueWs);
+    valueProgram_.evaluate(inputs(x, *s), s->outputs.data(), s->valueWs);
     const double f = s->outputs[0];
     release(std::move(s));
     return f;
@@ -78,9 +87,8 @@ double FormulaObjective::value(const Vector& x) const {
 double FormulaObjective::valueGradient(const Vector& x, Vector& gradient) const {
     const int n = dimension();
     auto s = acquire();
-    fillInputs(x, *s);
     s->outputs.resize(1 + n);
-    gradientProgram_.evaluate(s->inputs.data(), s->outputs.data(), s->gradientWs);
+    gradientProgram_.evaluate(inputs(x, *s), s->outputs.data(), s->gradientWs);
     gradient.resize(n);
     for (int i = 0; i < n; ++i) gradient[i] = s->outputs[1 + i];
     const double f = s->outputs[0];
@@ -91,10 +99,9 @@ double FormulaObjective::valueGradient(const Vector& x, Vector& gradient) const 
 double FormulaObjective::valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const {
     const int n = dimension();
     auto s = acquire();
-    fillInputs(x, *s);
     const auto& program = derivatives_.program();
     s->outputs.resize(program.outputCount());
-    program.evaluate(s->inputs.data(), s->outputs.data(), s->hessianWs);
+    program.evaluate(inputs(x, *s), s->outputs.data(), s->hessianWs);
     gradient.resize(n);
     hessian.resize(n, n);
     for (int i = 0; i < n; ++i) gradient[i] = s->outputs[1 + i];

@@ -6,6 +6,7 @@
 #include "core/expr/expr.h"
 #include "core/objective/objective.h"
 
+#include <atomic>
 #include <memory>
 #include <mutex>
 #include <string>
@@ -19,6 +20,9 @@ public:
     // Throws expr::FormulaError for a formula that cannot be read.
     FormulaObjective(const std::string& formula, std::vector<std::string> variables,
                      std::vector<std::pair<std::string, double>> constants = {});
+    ~FormulaObjective() override;
+    FormulaObjective(const FormulaObjective&) = delete;
+    FormulaObjective& operator=(const FormulaObjective&) = delete;
 
     int dimension() const override { return static_cast<int>(variables_.size()); }
     std::vector<std::string> variableNames() const override { return variables_; }
@@ -49,8 +53,13 @@ private:
         expr::Program::Workspace valueWs, gradientWs, hessianWs;
     };
     std::unique_ptr<Scratch> acquire() const;
-    void fillInputs(const Vector& x, Scratch& s) const;
+    // The program's inputs for x: x itself when it has the right size and there are no
+    // constants (no copy), else x and the constants copied into the scratch space.
+    const double* inputs(const Vector& x, Scratch& s) const;
     void release(std::unique_ptr<Scratch> s) const;
+    // One scratch space waits here, taken and given back without a lock (the common case: one
+    // solver calling at a time); further ones for concurrent callers live in the pool.
+    mutable std::atomic<Scratch*> spare_{nullptr};
     mutable std::mutex poolMutex_;
     mutable std::vector<std::unique_ptr<Scratch>> pool_;
 };

@@ -6,11 +6,18 @@
 namespace sw::solve {
 
 Evaluator::Evaluator(const Objective& objective, long maxEvaluations)
-    : objective_(objective), maxEvaluations_(maxEvaluations), names_(objective.variableNames()) {
-    if (static_cast<int>(names_.size()) != objective.dimension()) {
-        names_.clear();
-        for (int i = 0; i < objective.dimension(); ++i) names_.push_back("x" + std::to_string(i + 1));
+    : objective_(objective), maxEvaluations_(maxEvaluations) {}
+
+// Names are needed only for a message about a non-finite result, so they are fetched then.
+const std::vector<std::string>& Evaluator::names() {
+    if (names_.empty()) {
+        names_ = objective_.variableNames();
+        if (static_cast<int>(names_.size()) != objective_.dimension()) {
+            names_.clear();
+            for (int i = 0; i < objective_.dimension(); ++i) names_.push_back("x" + std::to_string(i + 1));
+        }
     }
+    return names_;
 }
 
 namespace {
@@ -25,15 +32,15 @@ void Evaluator::checkFinite(const Vector& x, double f, const Vector* g, const Ma
     } else if (g && !g->allFinite()) {
         for (Eigen::Index i = 0; i < g->size(); ++i)
             if (!std::isfinite((*g)[i])) {
-                what = "gradient component " + names_[static_cast<std::size_t>(i)] + " is " + nonFiniteWord((*g)[i]);
+                what = "gradient component " + names()[static_cast<std::size_t>(i)] + " is " + nonFiniteWord((*g)[i]);
                 break;
             }
     } else if (h && !h->allFinite()) {
         for (Eigen::Index j = 0; j < h->cols() && what.empty(); ++j)
             for (Eigen::Index i = 0; i <= j; ++i)
                 if (!std::isfinite((*h)(i, j))) {
-                    what = "Hessian entry (" + names_[static_cast<std::size_t>(i)] + ", " +
-                           names_[static_cast<std::size_t>(j)] + ") is " + nonFiniteWord((*h)(i, j));
+                    what = "Hessian entry (" + names()[static_cast<std::size_t>(i)] + ", " +
+                           names()[static_cast<std::size_t>(j)] + ") is " + nonFiniteWord((*h)(i, j));
                     break;
                 }
     }
@@ -82,7 +89,7 @@ double Evaluator::residuals(const Vector& x, Vector& r, Matrix* jacobian) {
                 for (Eigen::Index j = 0; j < jacobian->cols(); ++j)
                     if (!std::isfinite((*jacobian)(i, j))) {
                         nonFinite_ = "Jacobian entry (residual " + std::to_string(i + 1) + ", " +
-                                     names_[static_cast<std::size_t>(j)] + ") is " +
+                                     names()[static_cast<std::size_t>(j)] + ") is " +
                                      nonFiniteWord((*jacobian)(i, j));
                         break;
                     }
@@ -93,6 +100,27 @@ double Evaluator::residuals(const Vector& x, Vector& r, Matrix* jacobian) {
         }
     }
     return f;
+}
+
+bool Evaluator::leastSquaresFactor(const Vector& x, Matrix& r, Vector& qtr, double& value) {
+    double residualNormSq = 0;
+    if (!objective_.leastSquaresFactor(x, r, qtr, residualNormSq)) return false;
+    ++counts_.value;
+    ++counts_.gradient;
+    value = 0.5 * residualNormSq;
+    if (nonFinite_.empty() && !(std::isfinite(residualNormSq) && r.allFinite() && qtr.allFinite())) {
+        // Name the residual or Jacobian entry from the explicit form (diagnosis only: not counted).
+        const EvaluationCounts counted = counts_;
+        Vector residualValues;
+        Matrix jacobian;
+        residuals(x, residualValues, &jacobian);
+        counts_ = counted;
+        if (nonFinite_.empty()) {
+            nonFinite_ = "the least-squares factor of the Jacobian is not finite";
+            nonFinitePoint_ = x;
+        }
+    }
+    return true;
 }
 
 }  // namespace sw::solve

@@ -70,10 +70,11 @@ LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, 
     const double slope0 = g.dot(d);
     if (!(slope0 < 0)) return notDescent(slope0);
     LineSearchResult result;
+    result.trials.reserve(4);
     double alpha = settings.initialStep;
     Vector trialX(x.size());
     for (int trial = 0; trial < settings.maxTrials; ++trial) {
-        trialX = x + alpha * d;
+        trialX.noalias() = x + alpha * d;
         const double value = eval.value(trialX);
         LineSearchTrial t;
         t.alpha = alpha;
@@ -86,8 +87,8 @@ LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, 
             t.accepted = true;
             result.success = true;
             result.alpha = alpha;
-            result.x = trialX;
-            result.value = eval.gradient(trialX, result.gradient);
+            result.x = std::move(trialX);
+            result.value = eval.gradient(result.x, result.gradient);
             result.trials.push_back(t);
             result.trials.back().slope = result.gradient.dot(d);
             return result;
@@ -194,6 +195,7 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
     const double slope0 = g.dot(d);
     if (!(slope0 < 0)) return notDescent(slope0);
     LineSearchResult result;
+    result.trials.reserve(4);  // most searches end within a few trials
     const double c1 = settings.sufficientDecrease, c2 = settings.curvature;
     const double decreaseSlope = c1 * slope0;  // the line f0 + alpha * c1 * g'd
     const double relativeWidth = 1e-12;        // interval narrower than this (relative) cannot improve
@@ -212,7 +214,7 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
 
     Vector trialX(x.size()), trialG(x.size());
     for (int trialNo = 0; trialNo < settings.maxTrials; ++trialNo) {
-        trialX = x + stp * d;
+        trialX.noalias() = x + stp * d;
         const double value = eval.gradient(trialX, trialG);
         LineSearchTrial t;
         t.alpha = stp;
@@ -243,9 +245,9 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
             result.trials.push_back(t);
             result.success = result.curvatureMet = true;
             result.alpha = stp;
-            result.x = trialX;
+            result.x = std::move(trialX);
             result.value = value;
-            result.gradient = trialG;
+            result.gradient = std::move(trialG);
             return result;
         }
         t.failed = decreaseOk ? "curvature" : "sufficient decrease";

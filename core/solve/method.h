@@ -25,6 +25,10 @@ public:
     double gradient(const Vector& x, Vector& g);                    // counts one gradient (value comes free)
     double hessian(const Vector& x, Vector& g, Matrix& h);          // counts one Hessian (value, gradient free)
     double residuals(const Vector& x, Vector& r, Matrix* jacobian); // counts one value (+ one gradient with J); returns 0.5|r|^2
+    // The objective's leastSquaresFactor (R, Q'r, |r|^2 of r(x) without the m x n Jacobian);
+    // counts one value and one gradient like residuals() with J, sets value = 0.5|r|^2. Returns
+    // false (nothing counted) when the objective does not offer it.
+    bool leastSquaresFactor(const Vector& x, Matrix& r, Vector& qtr, double& value);
 
     const EvaluationCounts& counts() const { return counts_; }
     bool overBudget() const { return counts_.total() >= maxEvaluations_; }
@@ -37,6 +41,7 @@ public:
 
 private:
     void checkFinite(const Vector& x, double f, const Vector* g, const Matrix* h);
+    const std::vector<std::string>& names();
     const Objective& objective_;
     long maxEvaluations_;
     EvaluationCounts counts_;

@@ -46,7 +46,9 @@ public:
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
         const auto n = state.x.size();
         if (inverse_.rows() != n) inverse_ = Matrix::Identity(n, n);
-        Vector direction = -(inverse_ * state.gradient);
+        // Members, not locals: the vectors keep their storage from one iteration to the next.
+        Vector& direction = direction_;
+        direction.noalias() = -(inverse_ * state.gradient);
         if (!(state.gradient.dot(direction) < 0)) {
             // Rounding can spoil positive definiteness; start the model afresh.
             inverse_ = Matrix::Identity(n, n);
@@ -58,12 +60,13 @@ public:
         LineSearchSettings settings = settings_;
         settings.initialStep = firstTrial(state, first_);
         first_ = false;
-        const Vector previousGradient = state.gradient;
-        const double slope = previousGradient.dot(direction);
+        previousGradient_ = state.gradient;
+        const double slope = previousGradient_.dot(direction);
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
         record.predictedDecrease = modelDecrease(slope, record.stepLength);
-        update(record.step, state.gradient - previousGradient, record);
+        gradientChange_ = state.gradient - previousGradient_;
+        update(record.step, gradientChange_, record);
         return outcome;
     }
 
@@ -78,6 +81,7 @@ private:
     LineSearchSettings settings_;
     bool scaleInitial_;
     Matrix inverse_;
+    Vector direction_, previousGradient_, gradientChange_;
     int updates_ = 0;
     bool first_ = true;
 };
@@ -103,20 +107,29 @@ public:
         record.dampingName = "pairs";
         LineSearchSettings settings = settings_;
         settings.initialStep = firstTrial(state, pairs_.empty());
-        const Vector previousGradient = state.gradient;
-        const double slope = previousGradient.dot(direction);
+        previousGradient_ = state.gradient;
+        const double slope = previousGradient_.dot(direction);
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
         record.predictedDecrease = modelDecrease(slope, record.stepLength);
         const Vector& s = record.step;
-        const Vector y = state.gradient - previousGradient;
+        gradientChange_ = state.gradient - previousGradient_;
+        const Vector& y = gradientChange_;
         const double ys = y.dot(s);
         if (!(ys > kCurvatureFloor * s.norm() * y.norm())) {
             record.note += (record.note.empty() ? "" : "; ") + skipNote(ys, "L-BFGS");
             return outcome;
         }
-        if (static_cast<int>(pairs_.size()) == memory_) pairs_.pop_front();
-        pairs_.push_back({s, y, 1.0 / ys});
+        // The oldest pair's storage is reused for the newest once the memory is full.
+        Pair next;
+        if (static_cast<int>(pairs_.size()) == memory_) {
+            next = std::move(pairs_.front());
+            pairs_.pop_front();
+        }
+        next.s = s;
+        next.y = y;
+        next.rho = 1.0 / ys;
+        pairs_.push_back(std::move(next));
         return outcome;
     }
 
@@ -126,9 +139,10 @@ private:
         double rho;
     };
 
-    Vector twoLoop(const Vector& g) const {
+    Vector twoLoop(const Vector& g) {
         Vector q = g;
-        std::vector<double> alpha(pairs_.size());
+        std::vector<double>& alpha = alpha_;
+        alpha.resize(pairs_.size());
         for (std::size_t i = pairs_.size(); i-- > 0;) {
             alpha[i] = pairs_[i].rho * pairs_[i].s.dot(q);
             q -= alpha[i] * pairs_[i].y;
@@ -148,6 +162,8 @@ private:
     LineSearchKind kind_;
     LineSearchSettings settings_;
     std::deque<Pair> pairs_;
+    Vector previousGradient_, gradientChange_;
+    std::vector<double> alpha_;
 };
 
 MethodInfo quasiNewtonInfo(std::string id, std::string summary) {

@@ -24,8 +24,7 @@ public:
           objective_(objective),
           eval_(objective, rules.maxEvaluations),
           rules_(rules),
-          start_(std::move(start)),
-          names_(objective.variableNames()) {
+          start_(std::move(start)) {
         run_.methodId = info_.id;
         run_.label = info_.id;
     }
@@ -33,19 +32,22 @@ public:
     const MethodInfo& info() const override { return info_; }
     bool finished() const override { return run_.finished(); }
     const Run& run() const override { return run_; }
+    Run takeRun() override { return std::move(run_); }
 
     void begin() override {
         if (begun_) return;
         begun_ = true;
         state_.x = start_;
         state_.iteration = 0;
-        // Records are the product; growing the trace by doubling would move every record again.
-        run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 4096)) + 1);
+        // Most runs end within a few hundred iterations; a record moves cheaply (its vectors and
+        // strings are moved, not copied) when the trace grows past this. Reserving for the
+        // iteration limit instead would ask for megabytes per run.
+        run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 128)) + 1);
         evaluatePoint();
         if (eval_.sawNonFinite()) {
             run_.trace.push_back(pointRecord());
             finish(Termination::NonFinite, "not finite at the start point: " + eval_.nonFinite() + " at " +
-                                               pointText(eval_.nonFinitePoint(), names_));
+                                               pointText(eval_.nonFinitePoint(), objective_.variableNames()));
             return;
         }
         method_->start(eval_, state_);
@@ -57,7 +59,8 @@ public:
     void step() override {
         if (!begun_) begin();
         if (finished()) return;
-        const Vector previousX = state_.x;
+        previousX_ = state_.x;  // a member: no allocation after the first step
+        const Vector& previousX = previousX_;
         const double previousValue = state_.value;
         StepOutcome outcome;
         {
@@ -88,7 +91,7 @@ public:
         if (eval_.sawNonFinite()) {
             finish(Termination::NonFinite, "non-finite result in iteration " + std::to_string(state_.iteration) +
                                                ": " + eval_.nonFinite() + " at " +
-                                               pointText(eval_.nonFinitePoint(), names_));
+                                               pointText(eval_.nonFinitePoint(), objective_.variableNames()));
             return;
         }
         const double change = accepted ? std::abs(previousValue - state_.value) : kNaN;
@@ -251,13 +254,13 @@ private:
         }
     }
 
-    MethodInfo info_;
+    const MethodInfo& info_;  // the registration's, which lives as long as the program
     std::unique_ptr<MethodState> method_;
     const Objective& objective_;
     Evaluator eval_;
     StoppingRules rules_;
     Vector start_;
-    std::vector<std::string> names_;
+    Vector previousX_;
     State state_;
     Run run_;
     bool begun_ = false;
@@ -298,9 +301,9 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         result.error = "stopping rules: " + why;
         return result;
     }
-    const std::vector<std::string> names = objective.variableNames();
     const int n = objective.dimension();
     if (start.size() != n) {
+        const std::vector<std::string> names = objective.variableNames();
         std::string list;
         for (std::size_t i = 0; i < names.size() && i < 8; ++i) list += (i ? ", " : "") + names[i];
         if (names.size() > 8) list += ", ...";
@@ -314,7 +317,7 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         return result;
     }
     if (!start.allFinite()) {
-        result.error = "the start point is not finite: " + firstNonFinite(start, names);
+        result.error = "the start point is not finite: " + firstNonFinite(start, objective.variableNames());
         return result;
     }
     if (info.needsResiduals && !objective.hasResiduals()) {
@@ -330,7 +333,8 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         if (info.needsHessian) probe.hessian(start, g, h);
         else probe.gradient(start, g);
         if (probe.sawNonFinite()) {
-            result.error = "the objective is not finite at the start point " + pointText(start, names) + ": " +
+            result.error = "the objective is not finite at the start point " +
+                           pointText(start, objective.variableNames()) + ": " +
                            probe.nonFinite();
             return result;
         }
@@ -344,13 +348,25 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
     return result;
 }
 
-Run solve(Solver& solver, const Observer& observer) {
+namespace {
+void runToEnd(Solver& solver, const Observer& observer) {
     solver.begin();
     while (!solver.finished()) {
         solver.step();
         if (observer && !solver.finished() && !observer(solver.run())) solver.stop();
     }
+}
+}  // namespace
+
+Run solve(Solver& solver, const Observer& observer) {
+    runToEnd(solver, observer);
     return solver.run();
+}
+
+Run solve(std::unique_ptr<Solver> solver, const Observer& observer) {
+    if (!solver) return {};
+    runToEnd(*solver, observer);
+    return solver->takeRun();
 }
 
 Run solve(const std::string& methodId, const Objective& objective, const Vector& start, const OptionValues& options,
@@ -364,7 +380,7 @@ Run solve(const std::string& methodId, const Objective& objective, const Vector&
         run.message = made.error;
         return run;
     }
-    return solve(*made.solver);
+    return solve(std::move(made.solver));
 }
 
 }  // namespace sw::solve

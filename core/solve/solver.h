@@ -40,6 +40,9 @@ public:
     // Ends the run with Termination::StoppedByCaller (safe to call between steps).
     virtual void stop() = 0;
     virtual const Run& run() const = 0;
+    // Hands the run over without copying its records; run() is empty afterwards. For callers
+    // that are done with the solver (solve() below); the default copies.
+    virtual Run takeRun() { return run(); }
 };
 
 // Result of makeSolver: a solver, or the sentence saying why not.
@@ -63,6 +66,8 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
 // run so far; returning false stops the run (StoppedByCaller).
 using Observer = std::function<bool(const Run&)>;
 Run solve(Solver& solver, const Observer& observer = {});
+// The same for a solver the caller is done with: the run is moved out, not copied.
+Run solve(std::unique_ptr<Solver> solver, const Observer& observer = {});
 
 // Convenience: makeSolver + solve; on a rejected input returns a finished Run whose
 // termination is Failed and whose message is the error.

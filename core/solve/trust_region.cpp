@@ -145,10 +145,10 @@ public:
             case Subproblem::Exact: sub = exactTrustRegionStep(state.gradient, state.hessian, radius_); break;
         }
         record.trustRadius = radius_;
-        record.step = sub.step;
+        record.step = std::move(sub.step);
         record.stepKind = sub.kind;
         record.stepLength = 1.0;
-        record.note = sub.note;
+        record.note = std::move(sub.note);
         if (kind_ == Subproblem::Dogleg && sub.multiplier > 0) {
             record.damping = sub.multiplier;
             record.dampingName = "tau";
@@ -156,8 +156,8 @@ public:
             record.damping = sub.multiplier;
             record.dampingName = "lambda";
         }
-        const double stepNorm = sub.step.norm();
-        const Trial trial = evaluateTrial(eval, state, sub.step, sub.predictedDecrease, false, record);
+        const double stepNorm = record.step.norm();
+        Trial trial = evaluateTrial(eval, state, record.step, sub.predictedDecrease, false, record);
         record.ratio = trial.ratio;
         appendNote(record.note, ratioNote(trial));
 
@@ -172,7 +172,7 @@ public:
         else if (radius_ > before) appendNote(record.note, "radius grows to " + shortNumber(radius_));
 
         if (trial.ratio > settings_.eta) {
-            state.x = trial.x;
+            state.x = std::move(trial.x);
             state.value = eval.hessian(state.x, state.gradient, state.hessian);
             state.hasHessian = true;
         } else {

@@ -62,6 +62,13 @@ std::vector<PublishedProblem> benchProblems() {
 void printProblemsJson() {
     nlohmann::json out;
     out["gtol"] = benchRules().gradientTolerance;
+    // Nelder-Mead stops on its own simplex test; SciPy gets the same (xatol, fatol) as ours.
+    if (const sw::solve::MethodInfo* nm = sw::solve::findMethod("nelder-mead")) {
+        for (const sw::solve::OptionSpec& o : nm->options) {
+            if (o.name == "simplex_tolerance") out["simplex_tolerance"] = o.defaultValue;
+            if (o.name == "value_tolerance") out["value_tolerance"] = o.defaultValue;
+        }
+    }
     for (const MethodPair& m : kPairs) out["pairs"].push_back({{"ours", m.ours}, {"scipy", m.scipy}});
     for (const PublishedProblem& p : benchProblems())
         out["problems"].push_back(
@@ -79,7 +86,7 @@ void solveOnce(benchmark::State& state, std::shared_ptr<sw::FormulaObjective> ob
             state.SkipWithError(made.error.c_str());
             return;
         }
-        last = sw::solve::solve(*made.solver);
+        last = sw::solve::solve(std::move(made.solver));  // moves the run out (no copy of the trace)
         benchmark::ClobberMemory();  // (DoNotOptimize on a double lvalue garbles it with GCC 12 and benchmark 1.7)
     }
     state.counters["solver_iterations"] = last.iterations();
