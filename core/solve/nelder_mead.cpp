@@ -15,8 +15,16 @@ namespace {
 
 constexpr double kUnbounded = 1e300;
 
+// How the start simplex grows from x0 along each axis i (vertex i+1 = x0 + h_i e_i).
+enum class StartSimplex {
+    Relative,  // h_i = size * x_i, or zeroSize when x_i = 0: the simplex follows the scale of x0
+    Absolute,  // h_i = size * max(1, |x_i|): never smaller than size
+};
+
 struct NelderMeadOptions {
-    double initialSize = 0.05;       // edge of the start simplex, relative to max(1, |x_i|)
+    double initialSize = 0.05;       // edge of the start simplex (see StartSimplex)
+    StartSimplex startSimplex = StartSimplex::Relative;
+    double zeroSize = 0.00025;       // Relative: the edge along a coordinate that is 0 in x0
     bool adaptive = false;           // Gao & Han (2012) parameters
     double simplexTolerance = 1e-8;  // converged when every vertex is this close to the best (max norm)...
     double valueTolerance = 1e-12;   // ...and every value is this close to the best
@@ -39,7 +47,9 @@ public:
         values_.assign(static_cast<std::size_t>(n + 1), state.value);
         for (Eigen::Index i = 0; i < n; ++i) {
             Vector& v = vertices_[static_cast<std::size_t>(i + 1)];
-            v[i] += options_.initialSize * std::max(1.0, std::abs(v[i]));
+            if (options_.startSimplex == StartSimplex::Absolute) v[i] += options_.initialSize * std::max(1.0, std::abs(v[i]));
+            else if (v[i] != 0) v[i] = (1 + options_.initialSize) * v[i];
+            else v[i] = options_.zeroSize;
             values_[static_cast<std::size_t>(i + 1)] = evaluate(eval, v);
         }
         order();
@@ -50,38 +60,45 @@ public:
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
         const std::size_t last = vertices_.size() - 1;
         const auto n = static_cast<double>(last);
-        Vector centroid = Vector::Zero(state.x.size());
+        // Trial points live in members so an iteration allocates nothing; an accepted trial
+        // is swapped into the simplex (the worst vertex's storage becomes the next trial's).
+        Vector& centroid = centroid_;
+        centroid.setZero(state.x.size());
         for (std::size_t i = 0; i < last; ++i) centroid += vertices_[i];
         centroid /= n;
         const Vector& worst = vertices_[last];
         const double best = values_[0], secondWorst = values_[last - 1], worstValue = values_[last];
 
-        const Vector reflected = centroid + reflection_ * (centroid - worst);
-        const double fr = evaluate(eval, reflected);
-        std::string move;
+        reflected_.noalias() = centroid + reflection_ * (centroid - worst);
+        const double fr = evaluate(eval, reflected_);
+        const char* move;
         if (fr < best) {
-            const Vector expanded = centroid + expansion_ * (reflected - centroid);
-            const double fe = evaluate(eval, expanded);
-            if (fe < fr) replaceWorst(expanded, fe), move = "expand";
-            else replaceWorst(reflected, fr), move = "reflect";
+            trial_.noalias() = centroid + expansion_ * (reflected_ - centroid);
+            const double fe = evaluate(eval, trial_);
+            if (fe < fr) replaceWorst(trial_, fe), move = "expand";
+            else replaceWorst(reflected_, fr), move = "reflect";
         } else if (fr < secondWorst) {
-            replaceWorst(reflected, fr), move = "reflect";
+            replaceWorst(reflected_, fr), move = "reflect";
         } else if (fr < worstValue) {
-            const Vector outside = centroid + contraction_ * (reflected - centroid);
-            const double fc = evaluate(eval, outside);
-            if (fc <= fr) replaceWorst(outside, fc), move = "contract outside";
+            trial_.noalias() = centroid + contraction_ * (reflected_ - centroid);
+            const double fc = evaluate(eval, trial_);
+            if (fc <= fr) replaceWorst(trial_, fc), move = "contract outside";
             else shrinkToBest(eval), move = "shrink";
         } else {
-            const Vector inside = centroid + contraction_ * (worst - centroid);
-            const double fcc = evaluate(eval, inside);
-            if (fcc < worstValue) replaceWorst(inside, fcc), move = "contract inside";
+            trial_.noalias() = centroid + contraction_ * (worst - centroid);
+            const double fcc = evaluate(eval, trial_);
+            if (fcc < worstValue) replaceWorst(trial_, fcc), move = "contract inside";
             else shrinkToBest(eval), move = "shrink";
         }
         order();
         record.stepKind = StepKind::Simplex;
         record.stepLength = 1;
-        record.note = move + "; simplex size " + shortNumber(simplexSize()) + ", value spread " +
-                      shortNumber(valueSpread());
+        record.note.reserve(64);
+        record.note = move;
+        record.note += "; simplex size ";
+        record.note += shortNumber(simplexSize());
+        record.note += ", value spread ";
+        record.note += shortNumber(valueSpread());
         state.x = vertices_[0];
         state.value = values_[0];
         return {};
@@ -107,8 +124,9 @@ private:
         return std::numeric_limits<double>::infinity();
     }
 
-    void replaceWorst(const Vector& x, double f) {
-        vertices_.back() = x;
+    // Takes x's storage (x gets the old worst vertex's, to be overwritten by the next trial).
+    void replaceWorst(Vector& x, double f) {
+        vertices_.back().swap(x);
         values_.back() = f;
     }
 
@@ -120,15 +138,14 @@ private:
     }
 
     // Sorts by value; ties keep their order (Lagarias et al.'s tie-breaking: a new vertex goes after equals).
+    // Insertion sort (stable), swapping vertices rather than copying them: the simplex is
+    // sorted but for its new vertex, so this is one pass.
     void order() {
-        std::vector<std::size_t> index(vertices_.size());
-        std::iota(index.begin(), index.end(), 0);
-        std::stable_sort(index.begin(), index.end(), [&](std::size_t a, std::size_t b) { return values_[a] < values_[b]; });
-        std::vector<Vector> v;
-        std::vector<double> f;
-        for (std::size_t i : index) v.push_back(vertices_[i]), f.push_back(values_[i]);
-        vertices_ = std::move(v);
-        values_ = std::move(f);
+        for (std::size_t i = 1; i < values_.size(); ++i)
+            for (std::size_t j = i; j > 0 && values_[j] < values_[j - 1]; --j) {
+                std::swap(values_[j], values_[j - 1]);
+                vertices_[j].swap(vertices_[j - 1]);
+            }
     }
 
     double simplexSize() const {
@@ -148,6 +165,7 @@ private:
     double reflection_ = 1, expansion_ = 2, contraction_ = 0.5, shrink_ = 0.5;
     std::vector<Vector> vertices_;
     std::vector<double> values_;
+    Vector centroid_, reflected_, trial_;
 };
 
 }  // namespace
@@ -159,7 +177,11 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
     info.summary = "Nelder-Mead simplex search on values only (Lagarias et al. 1998)";
     info.needsGradient = false;
     info.options = {
-        realOption("initial_size", "edge of the start simplex along each axis, times max(1, |x_i|)", 0.05, 0,
+        realOption("initial_size", "edge of the start simplex along axis i: this times x_i (relative) or times max(1, |x_i|) (absolute)",
+                   0.05, 0, kUnbounded, true, false),
+        choiceOption("start_simplex", "relative: the edges scale with x0 (a zero coordinate moves by zero_size); absolute: never below initial_size",
+                     {"relative", "absolute"}, 0),
+        realOption("zero_size", "relative start simplex: the edge along a coordinate that is 0 in x0", 0.00025, 0,
                    kUnbounded, true, false),
         flagOption("adaptive", "dimension-dependent expansion/contraction/shrink (Gao & Han 2012)", false),
         realOption("simplex_tolerance", "converged when all vertices are this close to the best (max norm)", 1e-8, 0,
@@ -172,6 +194,9 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
              [specs](const OptionValues& v) {
                  NelderMeadOptions o;
                  o.initialSize = optionNumber(specs, v, "initial_size");
+                 o.startSimplex = optionChoice(specs, v, "start_simplex") == "absolute" ? StartSimplex::Absolute
+                                                                                        : StartSimplex::Relative;
+                 o.zeroSize = optionNumber(specs, v, "zero_size");
                  o.adaptive = optionFlag(specs, v, "adaptive");
                  o.simplexTolerance = optionNumber(specs, v, "simplex_tolerance");
                  o.valueTolerance = optionNumber(specs, v, "value_tolerance");

@@ -115,14 +115,29 @@ public:
         }
         LineSearchSettings settings = settings_;
         settings.initialStep = 1.0;
+        if (!descent) {
+            // -g has no natural length (unlike the Newton step): a first trial of alpha = 1 can
+            // overshoot by orders of magnitude on badly scaled problems. Expect the last
+            // decrease again (Nocedal & Wright 2006, eq. 3.60), else a step of length 1.
+            const double downhill = state.gradient.dot(direction);
+            const double gradientNorm = state.gradient.norm();
+            settings.initialStep = previousDecrease_ > 0 ? std::min(1.0, 1.01 * 2 * previousDecrease_ / -downhill)
+                                                         : std::min(1.0, 1.0 / gradientNorm);
+            if (!(settings.initialStep > 0)) settings.initialStep = std::min(1.0, 1.0 / gradientNorm);
+        }
+        const double valueBefore = state.value;
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
-        if (outcome.termination == Termination::Running) refreshHessian(eval, state);
+        if (outcome.termination == Termination::Running) {
+            previousDecrease_ = valueBefore - state.value;
+            refreshHessian(eval, state);
+        }
         return outcome;
     }
 
 private:
     LineSearchKind kind_;
     LineSearchSettings settings_;
+    double previousDecrease_ = kNaN;
 };
 
 // ---- modified-newton ----------------------------------------------------------------------------

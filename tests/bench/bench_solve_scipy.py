@@ -40,7 +40,7 @@ def compile_problem(problem):
             lambda x: np.array(h(*x), dtype=float))
 
 
-def scipy_solve(method, funcs, x0, gtol):
+def scipy_solve(method, funcs, x0, gtol, simplex=(1e-8, 1e-12)):
     f, g, h = funcs
     kwargs = {}
     options = {"maxiter": 5000}
@@ -49,20 +49,24 @@ def scipy_solve(method, funcs, x0, gtol):
         options["gtol"] = gtol
     if method in NEEDS_HESSIAN:
         kwargs["hess"] = h
+    if method in ("BFGS", "CG"):
+        options["norm"] = 2  # SciPy's default is the max norm; ours is |g|_2 <= gtol (L-BFGS-B has no choice)
     if method == "L-BFGS-B":
         options = {"maxiter": 5000, "gtol": gtol, "ftol": 0.0}  # projected-gradient test only, like ours
     if method == "Nelder-Mead":
-        options = {"maxiter": 5000, "xatol": 1e-8, "fatol": 1e-14}
+        # The same stopping test as ours: every vertex within xatol (max norm) of the best and
+        # every value within fatol of the best value, with our default tolerances.
+        options = {"maxiter": 5000, "xatol": simplex[0], "fatol": simplex[1]}
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         return scipy.optimize.minimize(f, x0, method=method, options=options, **kwargs)
 
 
-def time_per_solve(method, funcs, x0, gtol, min_seconds=0.3):
-    result = scipy_solve(method, funcs, x0, gtol)
+def time_per_solve(method, funcs, x0, gtol, simplex, min_seconds=0.3):
+    result = scipy_solve(method, funcs, x0, gtol, simplex)
     count, start = 0, time.process_time()
     while True:
-        scipy_solve(method, funcs, x0, gtol)
+        scipy_solve(method, funcs, x0, gtol, simplex)
         count += 1
         elapsed = time.process_time() - start
         if elapsed >= min_seconds and count >= 3:
@@ -87,7 +91,8 @@ def main():
             if key not in our_runs:
                 continue
             mine = our_runs[key]
-            seconds, result = time_per_solve(pair["scipy"], funcs, x0, problems["gtol"])
+            simplex = (problems.get("simplex_tolerance", 1e-8), problems.get("value_tolerance", 1e-12))
+            seconds, result = time_per_solve(pair["scipy"], funcs, x0, problems["gtol"], simplex)
             rows.append((problem["name"], pair["ours"], pair["scipy"], mine["seconds"], seconds,
                          seconds / mine["seconds"], mine["iterations"], int(getattr(result, "nit", -1)),
                          mine["value"], float(result.fun),
