@@ -1,10 +1,15 @@
 #include "core/objective/fit_objective.h"
 
 #include "core/expr/expr.h"
+#include "core/objective/streaming_qr.h"
 
 #include <algorithm>
 #include <cctype>
 #include <cmath>
+#include <condition_variable>
+#include <cstring>
+#include <functional>
+#include <mutex>
 #include <thread>
 
 namespace sw {
@@ -154,6 +159,101 @@ struct Partial {
     double value = 0;
     Vector gradient;
     Matrix hessian;
+    StreamingQr factor;  // with the least-squares factor: R and Q'r of the rows seen
+};
+
+// Threads kept for the life of the objective, so a pass over the rows does not pay for
+// starting threads (tens of microseconds each, on every pass of every iteration). One pass
+// at a time: a second caller finds them busy and starts threads of its own.
+class RowWorkers {
+public:
+    explicit RowWorkers(std::size_t extra) {
+        for (std::size_t i = 1; i <= extra; ++i) threads_.emplace_back([this, i] { work(i); });
+    }
+    ~RowWorkers() {
+        {
+            std::lock_guard<std::mutex> lock(mutex_);
+            stop_ = true;
+        }
+        wake_.notify_all();
+        for (auto& t : threads_) t.join();
+    }
+    RowWorkers(const RowWorkers&) = delete;
+    RowWorkers& operator=(const RowWorkers&) = delete;
+
+    std::size_t size() const { return threads_.size() + 1; }
+
+    // Runs task(part) for every part < parts (at most size()), part 0 on the calling thread.
+    // Returns false, having run nothing, when another pass is using the workers.
+    bool run(std::size_t parts, const std::function<void(std::size_t)>& task) {
+        std::unique_lock<std::mutex> busy(busy_, std::try_to_lock);
+        if (!busy.owns_lock()) return false;
+        {
+            std::lock_guard<std::mutex> lock(mutex_);
+            task_ = &task;
+            parts_ = parts;
+            pending_ = parts - 1;
+            ++generation_;
+        }
+        wake_.notify_all();
+        task(0);
+        std::unique_lock<std::mutex> lock(mutex_);
+        done_.wait(lock, [this] { return pending_ == 0; });
+        task_ = nullptr;
+        return true;
+    }
+
+private:
+    void work(std::size_t index) {
+        unsigned long seen = 0;
+        std::unique_lock<std::mutex> lock(mutex_);
+        for (;;) {
+            wake_.wait(lock, [&] { return stop_ || generation_ != seen; });
+            if (stop_) return;
+            seen = generation_;
+            if (index >= parts_) continue;
+            const std::function<void(std::size_t)>* task = task_;
+            lock.unlock();
+            (*task)(index);
+            lock.lock();
+            if (--pending_ == 0) done_.notify_one();
+        }
+    }
+
+    std::mutex busy_;
+    std::mutex mutex_;
+    std::condition_variable wake_, done_;
+    const std::function<void(std::size_t)>* task_ = nullptr;
+    std::size_t parts_ = 0, pending_ = 0;
+    unsigned long generation_ = 0;
+    bool stop_ = false;
+    std::vector<std::thread> threads_;
+};
+
+// The last point evaluated, with what is known there: solvers ask for the same point more than
+// once (the start is checked, then evaluated; a least-squares method then asks for its factor;
+// the end point's Hessian is wanted by the last record and by the classification). Values come
+// from the same code as a fresh evaluation, so a hit changes no number.
+struct PointCache {
+    std::mutex mutex;
+    Vector x;
+    double value = 0;
+    bool hasValue = false, hasGradient = false, hasHessian = false, hasFactor = false;
+    Vector gradient;
+    Matrix hessian;
+    Matrix r;
+    Vector qtr;
+    double residualNormSq = 0;
+
+    bool same(const Vector& at) const {
+        return x.size() == at.size() && std::memcmp(x.data(), at.data(), sizeof(double) * static_cast<std::size_t>(at.size())) == 0;
+    }
+    // Makes the cache describe `at` (forgetting another point).
+    void moveTo(const Vector& at) {
+        if (same(at)) return;
+        x = at;
+        hasValue = hasGradient = hasHessian = hasFactor = false;
+    }
 };
 
 }  // namespace
@@ -171,6 +271,9 @@ struct FitObjective::Impl {
     int p = 0;
     std::size_t rows = 0;
     unsigned threads = 1;
+    mutable std::once_flag workersMade;
+    mutable std::unique_ptr<RowWorkers> workers;
+    mutable PointCache cache;
 
     // Runs fn(begin, end, part) over row ranges, one per thread.
     template <class Fn>
@@ -179,8 +282,15 @@ struct FitObjective::Impl {
             fn(std::size_t{0}, rows, std::size_t{0});
             return;
         }
-        std::vector<std::thread> pool;
         const std::size_t chunk = (rows + parts - 1) / parts;
+        std::call_once(workersMade, [this] { workers = std::make_unique<RowWorkers>(threads - 1); });
+        if (parts <= workers->size()) {
+            const std::function<void(std::size_t)> task = [&](std::size_t t) {
+                fn(std::min(rows, t * chunk), std::min(rows, (t + 1) * chunk), t);
+            };
+            if (workers->run(parts, task)) return;
+        }
+        std::vector<std::thread> pool;
         for (std::size_t t = 1; t < parts; ++t) {
             const std::size_t b = std::min(rows, t * chunk), e = std::min(rows, (t + 1) * chunk);
             pool.emplace_back([&fn, b, e, t] { fn(b, e, t); });
@@ -204,7 +314,10 @@ struct FitObjective::Impl {
     }
 
     // Sum over rows of w * loss and, for order >= 1, its gradient, for order 2 its Hessian.
-    Partial accumulate(const Vector& x, int order) const {
+    // With `factor` (order 1, residual form only) the rows are also folded into the streaming
+    // QR of [dm r] with r_i = sqrt(w_i) (y_i - m_i) and dm the weighted model derivatives, which is
+    // -J: its R is -R of J and its Q'r that of J.
+    Partial accumulate(const Vector& x, int order, bool factor = false) const {
         const expr::Program& program = order == 0 ? valueProgram : order == 1 ? gradientProgram : hessianProgram;
         const std::size_t parts = partsFor();
         std::vector<Partial> partials(parts);
@@ -213,30 +326,79 @@ struct FitObjective::Impl {
             Partial& acc = partials[part];
             if (order >= 1) acc.gradient = Vector::Zero(p);
             if (order >= 2) acc.hessian = Matrix::Zero(p, p);
+            if (factor) acc.factor = StreamingQr(p);
             expr::Program::Workspace workspace = program.makeWorkspace();
             std::vector<double> buffer(static_cast<std::size_t>(outputs) * kBlock);
             std::vector<double*> outs(static_cast<std::size_t>(outputs));
             std::vector<expr::Program::BlockInput> inputs;
             Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
+            std::vector<double> residualBlock(factor ? kBlock : 0);
+            std::vector<double*> factorColumns(factor ? static_cast<std::size_t>(p) + 1 : 0);
             for (std::size_t row = begin; row < end; row += kBlock) {
                 const std::size_t count = std::min(kBlock, end - row);
                 for (int o = 0; o < outputs; ++o) outs[static_cast<std::size_t>(o)] = buffer.data() + o * kBlock;
                 bindInputs(x, row, inputs);
                 program.evaluateBlock(inputs.data(), count, outs.data(), workspace);
                 const double* m = outs[0];
-                for (std::size_t i = 0; i < count; ++i) {
-                    const std::size_t r = row + i;
-                    const LossTerms t = lossTerms(def.loss, y[static_cast<Eigen::Index>(r)], m[i], def.scale);
-                    const double wi = w[static_cast<Eigen::Index>(r)];
-                    acc.value += wi * t.value;
-                    first[static_cast<Eigen::Index>(i)] = wi * t.first;
-                    second[static_cast<Eigen::Index>(i)] = wi * t.second;
+                if (hasResidualForm(def.loss)) {
+                    // The same terms as lossTerms() for (weighted) least squares, in a loop the
+                    // compiler can vectorise: 1/2 w r^2, -w r, w with r = y - m; and for the
+                    // factor the residuals sqrt(w) r.
+                    const double* yb = y.data() + row;
+                    const double* wb = w.data() + row;
+                    double* fb = first.data();
+                    double* sb = second.data();
+                    double s0 = 0, s1 = 0;
+                    std::size_t i = 0;
+                    for (; i + 2 <= count; i += 2) {
+                        const double r0 = yb[i] - m[i], r1 = yb[i + 1] - m[i + 1];
+                        s0 += wb[i] * (0.5 * r0 * r0);
+                        s1 += wb[i + 1] * (0.5 * r1 * r1);
+                        fb[i] = wb[i] * -r0;
+                        fb[i + 1] = wb[i + 1] * -r1;
+                    }
+                    for (; i < count; ++i) {
+                        const double r0 = yb[i] - m[i];
+                        s0 += wb[i] * (0.5 * r0 * r0);
+                        fb[i] = wb[i] * -r0;
+                    }
+                    acc.value += s0 + s1;
+                    if (order >= 2) std::memcpy(sb, wb, count * sizeof(double));
+                    if (factor) {
+                        double* rb = residualBlock.data();
+                        if (hasWeights) {
+                            const double* qb = sqrtW.data() + row;
+                            for (i = 0; i < count; ++i) rb[i] = qb[i] * (yb[i] - m[i]);
+                        } else {
+                            for (i = 0; i < count; ++i) rb[i] = yb[i] - m[i];
+                        }
+                    }
+                } else {
+                    for (std::size_t i = 0; i < count; ++i) {
+                        const std::size_t r = row + i;
+                        const LossTerms t = lossTerms(def.loss, y[static_cast<Eigen::Index>(r)], m[i], def.scale);
+                        const double wi = w[static_cast<Eigen::Index>(r)];
+                        acc.value += wi * t.value;
+                        first[static_cast<Eigen::Index>(i)] = wi * t.first;
+                        second[static_cast<Eigen::Index>(i)] = wi * t.second;
+                    }
                 }
                 if (order == 0) continue;
                 const auto n = static_cast<Eigen::Index>(count);
                 Eigen::Map<const Matrix, 0, Eigen::OuterStride<>> dm(outs[1], n, p,
                                                                      Eigen::OuterStride<>(static_cast<Eigen::Index>(kBlock)));
                 acc.gradient.noalias() += dm.transpose() * first.head(n);
+                if (factor) {
+                    // The block's rows of [-J r], folded into R and Q'r (the buffers are scratch now).
+                    for (int j = 0; j < p; ++j) {
+                        double* column = outs[static_cast<std::size_t>(1 + j)];
+                        if (hasWeights)
+                            for (std::size_t i = 0; i < count; ++i) column[i] *= sqrtW[static_cast<Eigen::Index>(row + i)];
+                        factorColumns[static_cast<std::size_t>(j)] = column;
+                    }
+                    factorColumns[static_cast<std::size_t>(p)] = residualBlock.data();
+                    acc.factor.addRows(factorColumns.data(), count);
+                }
                 if (order == 1) continue;
                 Matrix weighted = second.head(n).asDiagonal() * dm;
                 acc.hessian.noalias() += dm.transpose() * weighted;
@@ -255,8 +417,37 @@ struct FitObjective::Impl {
             total.value += partials[t].value;
             if (order >= 1) total.gradient += partials[t].gradient;
             if (order >= 2) total.hessian += partials[t].hessian;
+            if (factor) total.factor.merge(partials[t].factor);
         }
         return total;
+    }
+
+    // accumulate() through the point cache: a repeated point costs nothing.
+    Partial cached(const Vector& x, int order) const {
+        {
+            std::lock_guard<std::mutex> lock(cache.mutex);
+            if (cache.same(x) && cache.hasValue && (order < 1 || cache.hasGradient) && (order < 2 || cache.hasHessian)) {
+                Partial hit;
+                hit.value = cache.value;
+                if (order >= 1) hit.gradient = cache.gradient;
+                if (order >= 2) hit.hessian = cache.hessian;
+                return hit;
+            }
+        }
+        Partial fresh = accumulate(x, order);
+        std::lock_guard<std::mutex> lock(cache.mutex);
+        cache.moveTo(x);
+        cache.value = fresh.value;
+        cache.hasValue = true;
+        if (order >= 1) {
+            cache.gradient = fresh.gradient;
+            cache.hasGradient = true;
+        }
+        if (order >= 2) {
+            cache.hessian = fresh.hessian;
+            cache.hasHessian = true;
+        }
+        return fresh;
     }
 
     // Model values (and derivatives, column-major rows x p) written straight into the outputs.
@@ -408,16 +599,16 @@ std::string FitObjective::description() const {
            std::to_string(impl_->rows) + " rows)";
 }
 
-double FitObjective::value(const Vector& x) const { return impl_->accumulate(x, 0).value; }
+double FitObjective::value(const Vector& x) const { return impl_->cached(x, 0).value; }
 
 double FitObjective::valueGradient(const Vector& x, Vector& gradient) const {
-    Partial p = impl_->accumulate(x, 1);
+    Partial p = impl_->cached(x, 1);
     gradient = std::move(p.gradient);
     return p.value;
 }
 
 double FitObjective::valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const {
-    Partial p = impl_->accumulate(x, 2);
+    Partial p = impl_->cached(x, 2);
     gradient = std::move(p.gradient);
     hessian = std::move(p.hessian);
     return p.value;
@@ -445,6 +636,36 @@ void FitObjective::residuals(const Vector& x, Vector& r, Matrix* jacobian) const
         r = d.y - r;
         if (jacobian) *jacobian *= -1.0;
     }
+}
+
+bool FitObjective::leastSquaresFactor(const Vector& x, Matrix& r, Vector& qtr, double& residualNormSq) const {
+    const Impl& d = *impl_;
+    if (!hasResiduals() || d.rows < static_cast<std::size_t>(d.p)) return false;
+    {
+        std::lock_guard<std::mutex> lock(d.cache.mutex);
+        if (d.cache.same(x) && d.cache.hasFactor) {
+            r = d.cache.r;
+            qtr = d.cache.qtr;
+            residualNormSq = d.cache.residualNormSq;
+            return true;
+        }
+    }
+    // One pass: value and gradient (as valueGradient computes them, so they are cached too)
+    // and the rows folded into R and Q'r.
+    Partial fresh = d.accumulate(x, 1, true);
+    r = -fresh.factor.r();  // the fold saw dm = -J
+    qtr = fresh.factor.qtr();
+    residualNormSq = fresh.factor.residualNormSq();
+    std::lock_guard<std::mutex> lock(d.cache.mutex);
+    d.cache.moveTo(x);
+    d.cache.value = fresh.value;
+    d.cache.gradient = std::move(fresh.gradient);
+    d.cache.hasValue = d.cache.hasGradient = true;
+    d.cache.r = r;
+    d.cache.qtr = qtr;
+    d.cache.residualNormSq = residualNormSq;
+    d.cache.hasFactor = true;
+    return true;
 }
 
 const FitDefinition& FitObjective::definition() const { return impl_->def; }

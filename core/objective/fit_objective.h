@@ -86,6 +86,9 @@ public:
     bool hasResiduals() const override;
     int residualCount() const override;
     void residuals(const Vector& x, Vector& residuals, Matrix* jacobian) const override;
+    // R, Q'r and |r|^2 in one pass over the rows, each block of rows folded into R while it is
+    // in cache (core/objective/streaming_qr.h); the m x n Jacobian is never stored.
+    bool leastSquaresFactor(const Vector& x, Matrix& r, Vector& qtr, double& residualNormSq) const override;
 
     const FitDefinition& definition() const;
     const Table& table() const;

@@ -5,7 +5,11 @@
 // number): J is reduced by Householder QR to R (n x n), and the small scaled matrix
 // R D^-1 = U S V' is decomposed once per iteration. Every damped step then costs O(n^2):
 //   z(lambda) = -V diag(s_i / (s_i^2 + lambda)) U'Q'r,   p = D^-1 z,
-// which is the minimiser of |J p + r|^2 + lambda |D p|^2.
+// which is the minimiser of |J p + r|^2 + lambda |D p|^2. Everything else the methods need is
+// in R and Q'r too: J'r = R'Q'r, the column norms of J are those of R, and J's singular values
+// (rank, condition number) are R's. When the objective offers leastSquaresFactor (a fit
+// objective folds each block of rows into R as it computes them), the m x n Jacobian is never
+// formed; otherwise R comes from the explicit J.
 #include "core/solve/line_search.h"
 #include "core/solve/method.h"
 
@@ -47,6 +51,49 @@ void reduceInParallel(const Vector& r, const Matrix& jacobian, Matrix& reduced, 
     qtr = (qr.householderQ().transpose() * stackedQtr).head(n);
 }
 
+// r(x) reduced to n x n: J = Q R, qtr = Q'r, |r|^2, and m (for the rank tolerance).
+struct Reduced {
+    Matrix r;  // n x n upper triangular (m x n when m < n: then J itself)
+    Vector qtr;
+    double residualNormSq = 0;
+    Eigen::Index rows = 0;
+
+    Vector gradient() const { return r.transpose() * qtr; }  // J'r
+    Vector columnNorms() const {
+        Vector norms = r.colwise().norm().transpose();
+        for (Eigen::Index i = 0; i < norms.size(); ++i)
+            if (!(norms[i] > 0) || !std::isfinite(norms[i])) norms[i] = 1.0;
+        return norms;
+    }
+};
+
+// Evaluates r at x in reduced form (counted as one value and one gradient); returns 0.5|r|^2.
+double evaluateReduced(Evaluator& eval, const Vector& x, Reduced& out) {
+    out.rows = eval.objective().residualCount();
+    double value = 0;
+    if (eval.leastSquaresFactor(x, out.r, out.qtr, value)) {
+        out.residualNormSq = 2.0 * value;
+        return value;
+    }
+    Vector residuals;
+    Matrix jacobian;
+    value = eval.residuals(x, residuals, &jacobian);
+    out.rows = jacobian.rows();
+    out.residualNormSq = residuals.squaredNorm();
+    const Eigen::Index m = jacobian.rows(), n = jacobian.cols();
+    if (m >= kParallelQrRows && m >= 8 * n) {
+        reduceInParallel(residuals, jacobian, out.r, out.qtr);
+    } else if (m > n) {
+        Eigen::HouseholderQR<Matrix> qr(jacobian);
+        out.r = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
+        out.qtr = (qr.householderQ().transpose() * residuals).head(n);
+    } else {
+        out.r = std::move(jacobian);
+        out.qtr = std::move(residuals);
+    }
+    return value;
+}
+
 // The linearisation of r at one point, scaled by D, ready for any damping lambda.
 struct Linearization {
     Vector singular;        // s_i of A = R D^-1, descending
@@ -58,22 +105,12 @@ struct Linearization {
     double rankCutoff = 0;  // scaled singular values below this count as zero
     Vector unscaledSingular;  // singular values of J, descending
 
-    // Fills the linearisation from r, J and the scaling D (all entries > 0).
-    void compute(const Vector& r, const Matrix& jacobian, const Vector& scale) {
-        const Eigen::Index m = jacobian.rows(), n = jacobian.cols();
-        residualNormSq = r.squaredNorm();
-        Matrix reduced;   // R, or J itself when there are fewer rows than parameters
-        Vector qtr;
-        if (m >= kParallelQrRows && m >= 8 * n) {
-            reduceInParallel(r, jacobian, reduced, qtr);
-        } else if (m > n) {
-            Eigen::HouseholderQR<Matrix> qr(jacobian);
-            reduced = qr.matrixQR().topRows(n).triangularView<Eigen::Upper>();
-            qtr = (qr.householderQ().transpose() * r).head(n);
-        } else {
-            reduced = jacobian;
-            qtr = r;
-        }
+    // Fills the linearisation from the reduced form and the scaling D (all entries > 0).
+    void compute(const Reduced& point, const Vector& scale) {
+        const Matrix& reduced = point.r;  // R, or J itself when there are fewer rows than parameters
+        const Vector& qtr = point.qtr;
+        const Eigen::Index m = point.rows, n = reduced.cols();
+        residualNormSq = point.residualNormSq;
         Eigen::JacobiSVD<Matrix> plain(reduced);
         unscaledSingular = plain.singularValues();
         const double sMax = unscaledSingular.size() ? unscaledSingular[0] : 0.0;
@@ -181,6 +218,9 @@ struct LevenbergMarquardtOptions {
     double orthogonalityTolerance = 0;  // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
     double acceptRatio = 1e-4;          // rho above which a step is accepted
     double radiusTolerance = 0.1;       // |D p| within (1 +- this) radius
+    // D from the column norms of J (Moré 1978; MINPACK mode 1), or D = I (MINPACK mode 2 with
+    // unit diag: the region is a plain ball in the parameters).
+    bool columnScaling = true;
 };
 
 class LevenbergMarquardt final : public MethodState {
@@ -189,7 +229,7 @@ public:
 
     void start(Evaluator& eval, State& state) override {
         evaluateWithJacobian(eval, state);
-        scale_ = columnNorms();
+        scale_ = options_.columnScaling ? point_.columnNorms() : Vector::Ones(state.x.size());
         const double xNorm = (scale_.asDiagonal() * state.x).norm();
         radius_ = xNorm > 0 ? options_.initialRadiusFactor * xNorm : options_.initialRadiusFactor;
     }
@@ -199,7 +239,7 @@ public:
         record.stepKind = StepKind::LevenbergMarquardt;
         record.stepLength = 1;
         Linearization lin;
-        lin.compute(r_, jacobian_, scale_);
+        lin.compute(point_, scale_);
         fillJacobianFacts(record, lin);
         record.trustRadius = radius_;
         const double fnormSq = lin.residualNormSq;
@@ -235,16 +275,15 @@ public:
         const double directional = -(jpSq + lambda * stepScaledNorm * stepScaledNorm) / fnormSq;
         record.predictedDecrease = 0.5 * predicted * fnormSq;
 
-        // The trial point is evaluated with its Jacobian in one pass (the compiled programs share
-        // the model's subexpressions): most steps are accepted, and an accepted step then needs
-        // no second pass over the rows.
+        // The trial point is evaluated with its Jacobian (reduced to R) in one pass (the compiled
+        // programs share the model's subexpressions): most steps are accepted, and an accepted
+        // step then needs no second pass over the rows.
         const Vector trial = state.x + step;
-        Vector trialResiduals;
-        Matrix trialJacobian;
-        const double trialValue = eval.residuals(trial, trialResiduals, &trialJacobian);
+        Reduced trialPoint;
+        const double trialValue = evaluateReduced(eval, trial, trialPoint);
         const bool finite = !eval.sawNonFinite();
         if (!finite) eval.clearNonFinite();
-        const double trialNormSq = finite ? trialResiduals.squaredNorm() : std::numeric_limits<double>::infinity();
+        const double trialNormSq = finite ? trialPoint.residualNormSq : std::numeric_limits<double>::infinity();
         // Actual relative reduction; MINPACK sets it to -1 when the sum of squares grows tenfold.
         const double actual = (finite && 0.1 * std::sqrt(trialNormSq) < std::sqrt(fnormSq))
                                   ? 1.0 - trialNormSq / fnormSq
@@ -270,11 +309,9 @@ public:
         if (accepted) {
             state.x = trial;
             state.value = trialValue;
-            r_.swap(trialResiduals);
-            jacobian_.swap(trialJacobian);
-            state.gradient = jacobian_.transpose() * r_;
-            const Vector norms = columnNorms();
-            scale_ = scale_.cwiseMax(norms);
+            point_ = std::move(trialPoint);
+            state.gradient = point_.gradient();
+            if (options_.columnScaling) scale_ = scale_.cwiseMax(point_.columnNorms());
             ++iterationsDone_;
         }
         record.note = std::string(accepted ? "step accepted" : "step rejected") +
@@ -308,30 +345,24 @@ public:
 
 private:
     void evaluateWithJacobian(Evaluator& eval, State& state) {
-        state.value = eval.residuals(state.x, r_, &jacobian_);
-        state.gradient = jacobian_.transpose() * r_;
+        state.value = evaluateReduced(eval, state.x, point_);
+        state.gradient = point_.gradient();
     }
 
-    Vector columnNorms() const {
-        Vector norms = jacobian_.colwise().norm().transpose();
-        for (Eigen::Index i = 0; i < norms.size(); ++i)
-            if (!(norms[i] > 0) || !std::isfinite(norms[i])) norms[i] = 1.0;
-        return norms;
-    }
-
+    // max_j |J_j'r| / (|J_j| |r|), from R and Q'r: J_j'r = (R'Q'r)_j and |J_j| = |R_j|.
     double maxColumnCosine() const {
-        const double rn = r_.norm();
+        const double rn = std::sqrt(point_.residualNormSq);
+        const Vector jtr = point_.gradient();
         double worst = 0;
-        for (Eigen::Index j = 0; j < jacobian_.cols(); ++j) {
-            const double cn = jacobian_.col(j).norm();
-            if (cn > 0) worst = std::max(worst, std::fabs(jacobian_.col(j).dot(r_)) / (cn * rn));
+        for (Eigen::Index j = 0; j < point_.r.cols(); ++j) {
+            const double cn = point_.r.col(j).norm();
+            if (cn > 0) worst = std::max(worst, std::fabs(jtr[j]) / (cn * rn));
         }
         return worst;
     }
 
     LevenbergMarquardtOptions options_;
-    Vector r_;
-    Matrix jacobian_;
+    Reduced point_;  // r at state.x, reduced
     Vector scale_;
     double radius_ = 1;
     int iterationsDone_ = 0;
@@ -352,15 +383,16 @@ public:
 
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
         Linearization lin;
-        const Vector unit = Vector::Ones(jacobian_.cols());
-        lin.compute(r_, jacobian_, unit);
+        const Eigen::Index n = point_.r.cols();
+        const Vector unit = Vector::Ones(n);
+        lin.compute(point_, unit);
         fillJacobianFacts(record, lin);
         if (lin.residualNormSq == 0) return {Termination::FunctionTolerance, "converged: every residual is exactly zero"};
         Vector direction = lin.scaledStep(0);
         record.stepKind = StepKind::GaussNewton;
-        if (lin.rank < jacobian_.cols())
+        if (lin.rank < n)
             record.note = "J is rank-deficient (rank " + std::to_string(lin.rank) + " of " +
-                          std::to_string(jacobian_.cols()) + "; singular values " +
+                          std::to_string(n) + "; singular values " +
                           singularValueText(lin.unscaledSingular) + "): minimum-norm direction";
         if (!(direction.dot(state.gradient) < 0)) {
             direction = -state.gradient;
@@ -385,14 +417,13 @@ public:
 
 private:
     void evaluateWithJacobian(Evaluator& eval, State& state) {
-        state.value = eval.residuals(state.x, r_, &jacobian_);
-        state.gradient = jacobian_.transpose() * r_;
+        state.value = evaluateReduced(eval, state.x, point_);
+        state.gradient = point_.gradient();
     }
 
     LineSearchSettings settings_;
     double functionTolerance_;
-    Vector r_;
-    Matrix jacobian_;
+    Reduced point_;  // r at state.x, reduced
 };
 
 }  // namespace
@@ -417,6 +448,10 @@ std::vector<MethodRegistration> leastSquaresMethods() {
                        "stop when every Jacobian column is this close to orthogonal to r (0 = off)", 0, 0, 1, false,
                        true),
             realOption("accept_ratio", "accept a step when rho is at least this", 1e-4, 0, 0.25, false, true),
+            choiceOption("scaling",
+                         "jacobian: the region is scaled by the largest column norms of J seen so far (Moré); "
+                         "none: a plain ball in the parameters",
+                         {"jacobian", "none"}, 0),
         };
         lm.make = [specs = lm.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
             LevenbergMarquardtOptions o;
@@ -425,6 +460,7 @@ std::vector<MethodRegistration> leastSquaresMethods() {
             o.stepTolerance = optionNumber(specs, values, "step_tolerance");
             o.orthogonalityTolerance = optionNumber(specs, values, "orthogonality_tolerance");
             o.acceptRatio = optionNumber(specs, values, "accept_ratio");
+            o.columnScaling = optionChoice(specs, values, "scaling") == "jacobian";
             return std::make_unique<LevenbergMarquardt>(o);
         };
         list.push_back(std::move(lm));
