@@ -36,21 +36,34 @@ double avxSumSquares(const double* a, std::size_t m) {
     return s;
 }
 
-// C columns b[0..C-1] against a in one pass: a is loaded once per 4 rows.
+// C columns b[0..C-1] against a in one pass: a is loaded once per 4 rows. Written out per
+// column (if constexpr) so the sums stay in registers.
 template <int C>
 void avxDotsOf(const double* a, double* const* b, std::size_t m, double* out) {
-    __m256d s[C];
-    for (int c = 0; c < C; ++c) s[c] = _mm256_setzero_pd();
+    const double* b0 = b[0];
+    const double* b1 = C > 1 ? b[1] : b0;
+    const double* b2 = C > 2 ? b[2] : b0;
+    const double* b3 = C > 3 ? b[3] : b0;
+    __m256d s0 = _mm256_setzero_pd(), s1 = _mm256_setzero_pd(), s2 = _mm256_setzero_pd(), s3 = _mm256_setzero_pd();
     std::size_t i = 0;
     for (; i + 4 <= m; i += 4) {
         const __m256d x = _mm256_loadu_pd(a + i);
-        for (int c = 0; c < C; ++c) s[c] = _mm256_fmadd_pd(x, _mm256_loadu_pd(b[c] + i), s[c]);
+        s0 = _mm256_fmadd_pd(x, _mm256_loadu_pd(b0 + i), s0);
+        if constexpr (C > 1) s1 = _mm256_fmadd_pd(x, _mm256_loadu_pd(b1 + i), s1);
+        if constexpr (C > 2) s2 = _mm256_fmadd_pd(x, _mm256_loadu_pd(b2 + i), s2);
+        if constexpr (C > 3) s3 = _mm256_fmadd_pd(x, _mm256_loadu_pd(b3 + i), s3);
     }
-    for (int c = 0; c < C; ++c) {
-        double t = horizontalSum(s[c]);
-        for (std::size_t k = i; k < m; ++k) t += a[k] * b[c][k];
-        out[c] = t;
+    double t0 = horizontalSum(s0), t1 = horizontalSum(s1), t2 = horizontalSum(s2), t3 = horizontalSum(s3);
+    for (; i < m; ++i) {
+        t0 += a[i] * b0[i];
+        if constexpr (C > 1) t1 += a[i] * b1[i];
+        if constexpr (C > 2) t2 += a[i] * b2[i];
+        if constexpr (C > 3) t3 += a[i] * b3[i];
     }
+    out[0] = t0;
+    if constexpr (C > 1) out[1] = t1;
+    if constexpr (C > 2) out[2] = t2;
+    if constexpr (C > 3) out[3] = t3;
 }
 
 void avxDots(const double* a, double* const* b, int count, std::size_t m, double* out) {
@@ -64,16 +77,26 @@ void avxDots(const double* a, double* const* b, int count, std::size_t m, double
 
 template <int C>
 void avxAxpysOf(const double* x, double* const* y, const double* alpha, std::size_t m) {
-    __m256d va[C];
-    for (int c = 0; c < C; ++c) va[c] = _mm256_set1_pd(alpha[c]);
+    double* y0 = y[0];
+    double* y1 = C > 1 ? y[1] : y0;
+    double* y2 = C > 2 ? y[2] : y0;
+    double* y3 = C > 3 ? y[3] : y0;
+    const __m256d a0 = _mm256_set1_pd(alpha[0]), a1 = _mm256_set1_pd(C > 1 ? alpha[1] : 0.0),
+                  a2 = _mm256_set1_pd(C > 2 ? alpha[2] : 0.0), a3 = _mm256_set1_pd(C > 3 ? alpha[3] : 0.0);
     std::size_t i = 0;
     for (; i + 4 <= m; i += 4) {
         const __m256d v = _mm256_loadu_pd(x + i);
-        for (int c = 0; c < C; ++c)
-            _mm256_storeu_pd(y[c] + i, _mm256_fmadd_pd(va[c], v, _mm256_loadu_pd(y[c] + i)));
+        _mm256_storeu_pd(y0 + i, _mm256_fmadd_pd(a0, v, _mm256_loadu_pd(y0 + i)));
+        if constexpr (C > 1) _mm256_storeu_pd(y1 + i, _mm256_fmadd_pd(a1, v, _mm256_loadu_pd(y1 + i)));
+        if constexpr (C > 2) _mm256_storeu_pd(y2 + i, _mm256_fmadd_pd(a2, v, _mm256_loadu_pd(y2 + i)));
+        if constexpr (C > 3) _mm256_storeu_pd(y3 + i, _mm256_fmadd_pd(a3, v, _mm256_loadu_pd(y3 + i)));
     }
-    for (; i < m; ++i)
-        for (int c = 0; c < C; ++c) y[c][i] += alpha[c] * x[i];
+    for (; i < m; ++i) {
+        y0[i] += alpha[0] * x[i];
+        if constexpr (C > 1) y1[i] += alpha[1] * x[i];
+        if constexpr (C > 2) y2[i] += alpha[2] * x[i];
+        if constexpr (C > 3) y3[i] += alpha[3] * x[i];
+    }
 }
 
 void avxAxpys(const double* x, double* const* y, const double* alpha, int count, std::size_t m) {

@@ -6,7 +6,13 @@
 //
 //   bench_fit --data FILE.csv [benchmark flags]   FILE has columns t, y (from the script);
 //                                                 without it the same data are made here
-//   The LM run uses function_tolerance = step_tolerance = 1e-12, as the script gives SciPy.
+// Two settings of our levenberg-marquardt, each matched to a SciPy run by the script:
+//   "MinpackUnitScaling": scaling = none, initial_radius_factor = 100, function, step and
+//     orthogonality tolerances 1e-12 -- what scipy least_squares(method='lm', x_scale=1.0,
+//     ftol = xtol = gtol = 1e-12) asks of MINPACK's lmder (diag = 1, factor = 100).
+//   "JacobianScaling" (our defaults but the tolerances): scaling = jacobian,
+//     initial_radius_factor = 1, the same three tolerances -- matched with x_scale='jac'
+//     (MINPACK's own column scaling; factor 100 there).
 
 #include "core/objective/fit_objective.h"
 #include "core/objective/table.h"
@@ -59,13 +65,24 @@ std::unique_ptr<sw::FitObjective> objective(int threads = 0) {
 
 sw::Vector start() { return Eigen::Map<const sw::Vector>(kStart.data(), static_cast<Eigen::Index>(kStart.size())); }
 
-void runLevenbergMarquardt(benchmark::State& state, bool diagnostics, int threads = 0) {
+sw::solve::OptionValues settings(bool unitScaling) {
+    sw::solve::OptionValues options{{"function_tolerance", "1e-12"},
+                                    {"step_tolerance", "1e-12"},
+                                    {"orthogonality_tolerance", "1e-12"}};
+    if (unitScaling) {
+        options["scaling"] = "none";
+        options["initial_radius_factor"] = "100";
+    }
+    return options;
+}
+
+void runLevenbergMarquardt(benchmark::State& state, bool unitScaling, bool diagnostics, int threads = 0) {
     auto f = objective(threads);
     sw::solve::StoppingRules rules;
     rules.maxIterations = 1000;
     rules.gradientTolerance = 0;
     rules.spectrumMaxDimension = diagnostics ? 50 : 0;
-    const sw::solve::OptionValues options{{"function_tolerance", "1e-12"}, {"step_tolerance", "1e-12"}};
+    const sw::solve::OptionValues options = settings(unitScaling);
     sw::solve::Run run;
     for (auto _ : state) {
         run = sw::solve::solve("levenberg-marquardt", *f, start(), options, rules);
@@ -79,17 +96,46 @@ void runLevenbergMarquardt(benchmark::State& state, bool diagnostics, int thread
     for (int j = 0; j < 4; ++j) state.counters["x" + std::to_string(j)] = run.x[j];
 }
 
-void BM_LevenbergMarquardtTwoExponentials(benchmark::State& state) { runLevenbergMarquardt(state, false); }
-BENCHMARK(BM_LevenbergMarquardtTwoExponentials)->Unit(benchmark::kMillisecond);
+void BM_LevenbergMarquardtMinpackUnitScaling(benchmark::State& state) { runLevenbergMarquardt(state, true, false); }
+BENCHMARK(BM_LevenbergMarquardtMinpackUnitScaling)->Unit(benchmark::kMillisecond);
+
+void BM_LevenbergMarquardtJacobianScaling(benchmark::State& state) { runLevenbergMarquardt(state, false, false); }
+BENCHMARK(BM_LevenbergMarquardtJacobianScaling)->Unit(benchmark::kMillisecond);
 
 // One thread: its CPU time is comparable with SciPy's (single-threaded) process time even on
 // a busy machine.
-void BM_LevenbergMarquardtOneThread(benchmark::State& state) { runLevenbergMarquardt(state, false, 1); }
-BENCHMARK(BM_LevenbergMarquardtOneThread)->Unit(benchmark::kMillisecond);
+void BM_LevenbergMarquardtMinpackUnitScalingOneThread(benchmark::State& state) {
+    runLevenbergMarquardt(state, true, false, 1);
+}
+BENCHMARK(BM_LevenbergMarquardtMinpackUnitScalingOneThread)->Unit(benchmark::kMillisecond);
 
-// The same run with the per-iteration diagnostics the window shows (exact Hessian spectrum).
-void BM_LevenbergMarquardtWithDiagnostics(benchmark::State& state) { runLevenbergMarquardt(state, true); }
+void BM_LevenbergMarquardtJacobianScalingOneThread(benchmark::State& state) {
+    runLevenbergMarquardt(state, false, false, 1);
+}
+BENCHMARK(BM_LevenbergMarquardtJacobianScalingOneThread)->Unit(benchmark::kMillisecond);
+
+// The default-scaled run with the per-iteration diagnostics the window shows (exact Hessian
+// spectrum at every iterate).
+void BM_LevenbergMarquardtWithDiagnostics(benchmark::State& state) { runLevenbergMarquardt(state, false, true); }
 BENCHMARK(BM_LevenbergMarquardtWithDiagnostics)->Unit(benchmark::kMillisecond);
+
+// One pass over the rows giving R, Q'r and |r|^2 (what each iteration costs), at two points in
+// turn so the objective's last-point cache never answers.
+void BM_LeastSquaresFactor(benchmark::State& state) {
+    auto f = objective();
+    sw::Vector x0 = start(), x1 = start();
+    x1[1] += 1e-3;
+    sw::Matrix r;
+    sw::Vector qtr;
+    double rss = 0;
+    bool flip = false;
+    for (auto _ : state) {
+        f->leastSquaresFactor(flip ? x1 : x0, r, qtr, rss);
+        flip = !flip;
+        benchmark::DoNotOptimize(r.data());
+    }
+}
+BENCHMARK(BM_LeastSquaresFactor)->Unit(benchmark::kMillisecond);
 
 void BM_ResidualsAndJacobian(benchmark::State& state) {
     auto f = objective();
@@ -105,9 +151,15 @@ BENCHMARK(BM_ResidualsAndJacobian)->Unit(benchmark::kMillisecond);
 
 void BM_ValueGradientHessian(benchmark::State& state) {
     auto f = objective();
+    sw::Vector x0 = start(), x1 = start();
+    x1[1] += 1e-3;  // two points in turn: the last-point cache never answers
     sw::Vector g;
     sw::Matrix h;
-    for (auto _ : state) benchmark::DoNotOptimize(f->valueGradientHessian(start(), g, h));
+    bool flip = false;
+    for (auto _ : state) {
+        benchmark::DoNotOptimize(f->valueGradientHessian(flip ? x1 : x0, g, h));
+        flip = !flip;
+    }
 }
 BENCHMARK(BM_ValueGradientHessian)->Unit(benchmark::kMillisecond);
 
