@@ -57,22 +57,53 @@ LineSearchSettings lineSearchSettings(const std::vector<OptionSpec>& specs, cons
 
 namespace {
 
-LineSearchResult notDescent(double slope0) {
-    LineSearchResult result;
+void notDescent(double slope0, LineSearchResult& result) {
     result.message = "the search direction is not a descent direction (g'd = " + shortNumber(slope0) + " >= 0)";
-    return result;
 }
+
+// Clears a result for a new search but keeps the storage of its vectors (searchAndMove reuses
+// one result per thread, so a search allocates nothing once the buffers have grown).
+void reset(LineSearchResult& result, Eigen::Index n) {
+    result.success = result.curvatureMet = false;
+    result.alpha = 0;
+    result.value = kNaN;
+    result.x.resize(n);
+    result.gradient.resize(n);
+    result.trials.clear();
+    result.trials.reserve(4);  // most searches end within a few trials
+    result.message.clear();
+}
+
+void armijoInto(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
+                const LineSearchSettings& settings, LineSearchResult& result);
+void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
+                     const LineSearchSettings& settings, LineSearchResult& result);
 
 }  // namespace
 
 LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
                                     const LineSearchSettings& settings) {
-    const double slope0 = g.dot(d);
-    if (!(slope0 < 0)) return notDescent(slope0);
     LineSearchResult result;
-    result.trials.reserve(4);
+    armijoInto(eval, x, f, g, d, settings, result);
+    return result;
+}
+
+LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
+                             const LineSearchSettings& settings) {
+    LineSearchResult result;
+    strongWolfeInto(eval, x, f, g, d, settings, result);
+    return result;
+}
+
+namespace {
+
+void armijoInto(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
+                const LineSearchSettings& settings, LineSearchResult& result) {
+    reset(result, x.size());
+    const double slope0 = g.dot(d);
+    if (!(slope0 < 0)) return notDescent(slope0, result);
     double alpha = settings.initialStep;
-    Vector trialX(x.size());
+    Vector& trialX = result.x;  // the trial point is built where the result lives
     for (int trial = 0; trial < settings.maxTrials; ++trial) {
         trialX.noalias() = x + alpha * d;
         const double value = eval.value(trialX);
@@ -87,11 +118,10 @@ LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, 
             t.accepted = true;
             result.success = true;
             result.alpha = alpha;
-            result.x = std::move(trialX);
             result.value = eval.gradient(result.x, result.gradient);
             result.trials.push_back(t);
             result.trials.back().slope = result.gradient.dot(d);
-            return result;
+            return;
         } else {
             t.failed = "sufficient decrease";
         }
@@ -100,10 +130,7 @@ LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, 
     }
     result.message = "no step with sufficient decrease in " + std::to_string(settings.maxTrials) +
                      " trials (g'd = " + shortNumber(slope0) + "); last trials: " + describeTrials(result.trials);
-    return result;
 }
-
-namespace {
 
 // One end of the Moré-Thuente interval: step, value and derivative along d.
 struct EndPoint1D {
@@ -185,17 +212,14 @@ double nextTrialStep(EndPoint1D& best, EndPoint1D& other, const EndPoint1D& tria
     return next;
 }
 
-}  // namespace
-
 // Relative change of f treated as rounding by the approximate Wolfe test.
 constexpr double kRoundingSlack = 1e-12;
 
-LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
-                             const LineSearchSettings& settings) {
+void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
+                     const LineSearchSettings& settings, LineSearchResult& result) {
+    reset(result, x.size());
     const double slope0 = g.dot(d);
-    if (!(slope0 < 0)) return notDescent(slope0);
-    LineSearchResult result;
-    result.trials.reserve(4);  // most searches end within a few trials
+    if (!(slope0 < 0)) return notDescent(slope0, result);
     const double c1 = settings.sufficientDecrease, c2 = settings.curvature;
     const double decreaseSlope = c1 * slope0;  // the line f0 + alpha * c1 * g'd
     const double relativeWidth = 1e-12;        // interval narrower than this (relative) cannot improve
@@ -212,7 +236,8 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
     double fallbackAlpha = 0, fallbackValue = f;
     Vector fallbackX, fallbackGradient;
 
-    Vector trialX(x.size()), trialG(x.size());
+    Vector& trialX = result.x;  // trials are built where the result lives
+    Vector& trialG = result.gradient;
     for (int trialNo = 0; trialNo < settings.maxTrials; ++trialNo) {
         trialX.noalias() = x + stp * d;
         const double value = eval.gradient(trialX, trialG);
@@ -245,10 +270,8 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
             result.trials.push_back(t);
             result.success = result.curvatureMet = true;
             result.alpha = stp;
-            result.x = std::move(trialX);
             result.value = value;
-            result.gradient = std::move(trialG);
-            return result;
+            return;
         }
         t.failed = decreaseOk ? "curvature" : "sufficient decrease";
         result.trials.push_back(t);
@@ -306,19 +329,22 @@ LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const V
                 t.failed.clear();
                 break;
             }
-        return result;
+        return;
     }
     result.message = "no step satisfied the strong Wolfe conditions in " + std::to_string(result.trials.size()) +
                      " trials (g'd = " + shortNumber(slope0) + "); last trials: " + describeTrials(result.trials);
-    return result;
 }
+
+}  // namespace
 
 StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record, const Vector& direction,
                           LineSearchKind kind, const LineSearchSettings& settings) {
-    LineSearchResult found = kind == LineSearchKind::Wolfe
-                                 ? strongWolfe(eval, state.x, state.value, state.gradient, direction, settings)
-                                 : backtrackingArmijo(eval, state.x, state.value, state.gradient, direction, settings);
-    record.trials = std::move(found.trials);
+    // One result per thread, reused: its vectors keep their storage from search to search, and
+    // on success they are swapped with the state's (so neither side allocates).
+    thread_local LineSearchResult found;
+    if (kind == LineSearchKind::Wolfe) strongWolfeInto(eval, state.x, state.value, state.gradient, direction, settings, found);
+    else armijoInto(eval, state.x, state.value, state.gradient, direction, settings, found);
+    record.trials = found.trials;
     if (!found.success) {
         record.accepted = false;
         record.step = Vector::Zero(state.x.size());
@@ -339,9 +365,9 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
     record.stepLength = found.alpha;
     record.step = found.x - state.x;
     record.actualDecrease = state.value - found.value;
-    state.x = std::move(found.x);
+    state.x.swap(found.x);
     state.value = found.value;
-    state.gradient = std::move(found.gradient);
+    state.gradient.swap(found.gradient);
     state.hasHessian = false;
     return {};
 }

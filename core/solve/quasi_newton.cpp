@@ -5,7 +5,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <deque>
 
 namespace sw::solve {
 
@@ -96,20 +95,28 @@ public:
         : memory_(memory), kind_(kind), settings_(settings) {}
 
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
-        Vector direction = twoLoop(state.gradient);
-        if (!(state.gradient.dot(direction) < 0)) {
-            pairs_.clear();
-            direction = -state.gradient;
+        const auto n = state.x.size();
+        if (static_cast<Eigen::Index>(s_.rows()) != n) {
+            s_.resize(n, memory_);
+            y_.resize(n, memory_);
+            rho_.assign(static_cast<std::size_t>(memory_), 0.0);
+            alpha_.assign(static_cast<std::size_t>(memory_), 0.0);
+            count_ = newest_ = 0;
+        }
+        twoLoop(state.gradient, direction_);
+        if (!(state.gradient.dot(direction_) < 0)) {
+            count_ = 0;
+            direction_ = -state.gradient;
             record.note = "the L-BFGS direction was not downhill; dropped the stored pairs";
         }
         record.stepKind = StepKind::QuasiNewton;
-        record.damping = static_cast<double>(pairs_.size());
+        record.damping = static_cast<double>(count_);
         record.dampingName = "pairs";
         LineSearchSettings settings = settings_;
-        settings.initialStep = firstTrial(state, pairs_.empty());
+        settings.initialStep = firstTrial(state, count_ == 0);
         previousGradient_ = state.gradient;
-        const double slope = previousGradient_.dot(direction);
-        StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
+        const double slope = previousGradient_.dot(direction_);
+        StepOutcome outcome = searchAndMove(eval, state, record, direction_, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
         record.predictedDecrease = modelDecrease(slope, record.stepLength);
         const Vector& s = record.step;
@@ -120,50 +127,68 @@ public:
             record.note += (record.note.empty() ? "" : "; ") + skipNote(ys, "L-BFGS");
             return outcome;
         }
-        // The oldest pair's storage is reused for the newest once the memory is full.
-        Pair next;
-        if (static_cast<int>(pairs_.size()) == memory_) {
-            next = std::move(pairs_.front());
-            pairs_.pop_front();
-        }
-        next.s = s;
-        next.y = y;
-        next.rho = 1.0 / ys;
-        pairs_.push_back(std::move(next));
+        // Ring buffer: the newest pair overwrites the oldest once the memory is full.
+        newest_ = count_ == 0 ? 0 : after(newest_);
+        count_ = std::min(count_ + 1, memory_);
+        s_.col(newest_) = s;
+        y_.col(newest_) = y;
+        rho_[static_cast<std::size_t>(newest_)] = 1.0 / ys;
         return outcome;
     }
 
 private:
-    struct Pair {
-        Vector s, y;
-        double rho;
-    };
+    // Columns newest to oldest step backwards through the ring (no division in the loops).
+    int before(int c) const { return c == 0 ? memory_ - 1 : c - 1; }
+    int after(int c) const { return c == memory_ - 1 ? 0 : c + 1; }
 
-    Vector twoLoop(const Vector& g) {
-        Vector q = g;
-        std::vector<double>& alpha = alpha_;
-        alpha.resize(pairs_.size());
-        for (std::size_t i = pairs_.size(); i-- > 0;) {
-            alpha[i] = pairs_[i].rho * pairs_[i].s.dot(q);
-            q -= alpha[i] * pairs_[i].y;
+    static double dot(const double* a, const double* b, Eigen::Index n) {
+        double sum = 0;
+        for (Eigen::Index i = 0; i < n; ++i) sum += a[i] * b[i];
+        return sum;
+    }
+
+    // Nocedal & Wright Alg. 7.4 with H0 = gamma I, gamma = s'y / y'y of the newest pair
+    // (eq. 7.20). Plain loops: for the few variables typical here Eigen's per-call set-up
+    // costs more than the arithmetic.
+    void twoLoop(const Vector& g, Vector& direction) {
+        const Eigen::Index n = g.size();
+        direction = g;
+        double* q = direction.data();
+        int c = newest_;
+        for (int k = 0; k < count_; ++k, c = before(c)) {
+            const double* s = s_.col(c).data();
+            const double* y = y_.col(c).data();
+            const double a = rho_[static_cast<std::size_t>(c)] * dot(s, q, n);
+            alpha_[static_cast<std::size_t>(c)] = a;
+            for (Eigen::Index i = 0; i < n; ++i) q[i] -= a * y[i];
         }
-        if (!pairs_.empty()) {
-            const Pair& newest = pairs_.back();
-            q *= newest.s.dot(newest.y) / newest.y.squaredNorm();
+        if (count_ > 0) {
+            const double* s = s_.col(newest_).data();
+            const double* y = y_.col(newest_).data();
+            const double gamma = dot(s, y, n) / dot(y, y, n);
+            for (Eigen::Index i = 0; i < n; ++i) q[i] *= gamma;
         }
-        for (std::size_t i = 0; i < pairs_.size(); ++i) {
-            const double beta = pairs_[i].rho * pairs_[i].y.dot(q);
-            q += (alpha[i] - beta) * pairs_[i].s;
+        // c is now the column before the oldest; step forward from the oldest.
+        c = after(c);
+        for (int k = 0; k < count_; ++k, c = after(c)) {
+            const double* s = s_.col(c).data();
+            const double* y = y_.col(c).data();
+            const double beta = rho_[static_cast<std::size_t>(c)] * dot(y, q, n);
+            const double a = alpha_[static_cast<std::size_t>(c)] - beta;
+            for (Eigen::Index i = 0; i < n; ++i) q[i] += a * s[i];
         }
-        return -q;
+        for (Eigen::Index i = 0; i < n; ++i) q[i] = -q[i];
     }
 
     int memory_;
     LineSearchKind kind_;
     LineSearchSettings settings_;
-    std::deque<Pair> pairs_;
-    Vector previousGradient_, gradientChange_;
-    std::vector<double> alpha_;
+    Matrix s_, y_;               // pairs as columns of a ring buffer
+    std::vector<double> rho_;    // 1 / y's per column
+    std::vector<double> alpha_;  // two-loop scratch per column
+    int count_ = 0;              // pairs stored
+    int newest_ = 0;             // column of the newest pair
+    Vector direction_, previousGradient_, gradientChange_;
 };
 
 MethodInfo quasiNewtonInfo(std::string id, std::string summary) {
