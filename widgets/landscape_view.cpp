@@ -17,6 +17,15 @@ constexpr double kPickRadiusPixels = 8.0;
 constexpr double kStartGrabPixels = 11.0;
 constexpr double kClickSlopPixels = 4.0;
 
+// QCPColorMapData has no bulk setter: setCell per cell (with its bounds checks) and the
+// constructor's fill(0) cost more than the whole colour mapping. These member pointers,
+// formed through a derived class as the language allows for protected members, let us
+// write the cell array in one pass and mark it modified, as setCell would.
+struct ColourMapDataAccess : QCPColorMapData {
+    static double* QCPColorMapData::*cells() { return &ColourMapDataAccess::mData; }
+    static bool QCPColorMapData::*modified() { return &ColourMapDataAccess::mDataModified; }
+};
+
 QString vectorText(const Vector& v) {
     QStringList parts;
     for (Eigen::Index i = 0; i < v.size(); ++i) parts << formatNumber(v[i]);
@@ -36,6 +45,13 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     colourMap_->setLayer(QStringLiteral("field"));
     colourMap_->setGradient(fieldGradient());
     colourMap_->setInterpolate(true);
+    // Smoothing between cells only helps when a cell covers more than a pixel or two; at
+    // 600 x 600 cells it would cost a bilinear pass over the whole image on every repaint.
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this] {
+        const QCPColorMapData* data = colourMap_->data();
+        const QRect area = plot_->axisRect()->rect();
+        colourMap_->setInterpolate(data->keySize() * 3 < area.width() * 2 || data->valueSize() * 3 < area.height() * 2);
+    });
     colourMap_->setTightBoundary(false);
     colourMap_->removeFromLegend();
     colourMap_->setVisible(false);
@@ -203,7 +219,8 @@ void LandscapeView::rebuild() {
             }
         }
     }
-    rebuildField();
+    // The field and its contours change only with a new field or colour scale, not with runs.
+    if (builtField_ != field_.get() || builtLogColour_ != logColour_) rebuildField();
     rebuildPaths();
     updateStartMarker();
     updateHighlight();
@@ -216,6 +233,8 @@ void LandscapeView::selectionChanged() {
 }
 
 void LandscapeView::rebuildField() {
+    builtField_ = field_.get();
+    builtLogColour_ = logColour_;
     for (QCPCurve* curve : contourCurves_) plot_->removePlottable(curve);
     contourCurves_.clear();
     const analyze::Field* field = field_ ? &field_->field : nullptr;
@@ -244,11 +263,23 @@ void LandscapeView::rebuildField() {
         return logColour_ ? std::log10(v - lo + offset) : v;
     };
 
-    auto* data = new QCPColorMapData(field->nx, field->ny, QCPRange(field->box.xMin, field->box.xMax),
-                                     QCPRange(field->box.yMin, field->box.yMax));
-    for (int j = 0; j < field->ny; ++j)
-        for (int i = 0; i < field->nx; ++i) data->setCell(i, j, colourOf(field->at(i, j)));
-    colourMap_->setData(data, false);
+    // Reuse the map's cell array when the grid size is unchanged; fill it in one pass
+    // (row-major, x fastest, the layout of both Field and QCPColorMapData).
+    QCPColorMapData* data = colourMap_->data();
+    data->setSize(field->nx, field->ny);
+    data->setRange(QCPRange(field->box.xMin, field->box.xMax), QCPRange(field->box.yMin, field->box.yMax));
+    double* cells = data->*ColourMapDataAccess::cells();
+    if (cells) {
+        const std::size_t count = field->values.size();
+        if (logColour_)
+            for (std::size_t k = 0; k < count; ++k) cells[k] = colourOf(field->values[k]);
+        else
+            std::copy(field->values.begin(), field->values.end(), cells);
+        data->*ColourMapDataAccess::modified() = true;
+    } else {
+        for (int j = 0; j < field->ny; ++j)
+            for (int i = 0; i < field->nx; ++i) data->setCell(i, j, colourOf(field->at(i, j)));
+    }
 
     QCPRange range(0, 1);
     if (anyFinite) {

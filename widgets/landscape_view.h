@@ -67,6 +67,8 @@ private:
     void onMouseRelease(QMouseEvent* event);
 
     std::shared_ptr<const FieldSnapshot> field_;
+    const FieldSnapshot* builtField_ = nullptr;  // what the colour map and contours show now
+    bool builtLogColour_ = false;
     Vector start_;
     bool hasStart_ = false;
     bool hasHome_ = false;

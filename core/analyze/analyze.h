@@ -57,6 +57,7 @@ struct ContourSet {
 // The rule (levels.cpp): d = f - fmin over finite cells above fmin; when its 90th percentile
 // is >= 20 times its 10th, levels are log-spaced in d from its 2nd to its 98th percentile;
 // otherwise evenly spaced strictly between fmin and fmax. Empty for a constant or empty field.
+// Above 65,536 cells the percentiles are taken over a regular subsample of the cells.
 std::vector<double> chooseLevels(const Field& field, int count);
 // Whether chooseLevels picks log spacing for this field (also a hint for a log colour scale).
 bool levelsAreLogSpaced(const Field& field);

@@ -5,7 +5,8 @@
 // (the heights span more than about 1.3 decades, as in a steep-walled curved valley), the
 // levels are spaced evenly in log d from the 2nd to the 98th percentile of d, so the floor
 // gets as many lines as the walls. Otherwise (a bowl-like field, where d is roughly uniform
-// over the box) they are spaced evenly between fmin and fmax, excluding both ends.
+// over the box) they are spaced evenly between fmin and fmax, excluding both ends. On a field
+// of more than 65,536 cells the percentiles come from a regular subsample (see planLevels).
 #include "core/analyze/analyze.h"
 
 #include <algorithm>
@@ -52,10 +53,17 @@ struct LevelPlan {
 
 LevelPlan planLevels(const Field& field) {
     LevelPlan plan;
+    // Levels only need the percentiles to a few digits: a large field gives them from a
+    // regular subsample of at most ~65k cells (every stride-th cell), which keeps this step
+    // well under the cost of tracing the contours.
+    constexpr std::size_t kMaxCells = 65536;
+    const std::size_t stride = (field.values.size() + kMaxCells - 1) / kMaxCells;
     std::vector<double> heights;
-    heights.reserve(field.values.size());
-    for (double v : field.values)
+    heights.reserve(std::min(field.values.size(), kMaxCells));
+    for (std::size_t k = 0; k < field.values.size(); k += stride) {
+        const double v = field.values[k];
         if (std::isfinite(v) && v > field.finiteMin) heights.push_back(v - field.finiteMin);
+    }
     if (heights.size() < 10) return plan;
     const std::vector<double> q = quantiles(heights, {0.02, 0.10, 0.90, 0.98});
     const double q10 = q[1], q90 = q[2];

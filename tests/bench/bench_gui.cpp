@@ -1,9 +1,11 @@
 // Window responsiveness, offscreen: (1) drag the start 200 times on a 2-D sample with six
 // methods enabled and time each drag until the landscape has repainted the new paths;
-// (2) recompute and redraw the landscape at 600 x 600 cells with contour lines.
+// (2) recompute and redraw the landscape at 600 x 600 cells with contour lines, and (3) the
+// same landscape phase by phase, to show where its time goes.
 // A plain main printing a table (times are wall clock on this machine; no assertions).
 #include "app/window/lineup_editor.h"
 #include "app/window/main_window.h"
+#include "core/analyze/analyze.h"
 #include "widgets/landscape_view.h"
 
 #include <QApplication>
@@ -118,6 +120,32 @@ int main(int argc, char** argv) {
         }
         fieldMs.push_back(clock.nsecsElapsed() * 1e-6);
     }
+    // (3) Where the landscape's time goes: each phase alone, on the same request.
+    std::vector<double> sampleMs, levelMs, contourMs, rebuildMs, replotMs;
+    {
+        const auto& vars = window.study().variables;
+        const sw::analyze::Box box{vars[0].lower, vars[0].upper, vars[1].lower, vars[1].upper};
+        for (int k = 0; k < 15; ++k) {
+            auto snap = std::make_shared<sw::widgets::FieldSnapshot>();
+            QElapsedTimer clock;
+            clock.start();
+            sw::analyze::sampleField(*window.objective(), window.start(), 0, 1, box, 600, 600, snap->field);
+            sampleMs.push_back(clock.nsecsElapsed() * 1e-6);
+            clock.restart();
+            const auto levels = sw::analyze::chooseLevels(snap->field, 18);
+            levelMs.push_back(clock.nsecsElapsed() * 1e-6);
+            clock.restart();
+            snap->contours = sw::analyze::contourLines(snap->field, levels);
+            contourMs.push_back(clock.nsecsElapsed() * 1e-6);
+            clock.restart();
+            window.landscape()->setField(snap);
+            rebuildMs.push_back(clock.nsecsElapsed() * 1e-6);
+            clock.restart();
+            plot->replot(QCustomPlot::rpImmediateRefresh);
+            replotMs.push_back(clock.nsecsElapsed() * 1e-6);
+        }
+    }
+
     std::size_t contourLines = 0;
     for (const auto& set : window.field()->contours) contourLines += set.lines.size();
 
@@ -130,6 +158,14 @@ int main(int argc, char** argv) {
                 drag.p95, drag.max);
     std::printf("%-44s %8zu %7.2fms %7.2fms %7.2fms\n", "landscape 600x600 + contours -> repaint", fieldMs.size(),
                 field.median, field.p95, field.max);
+    for (const auto& [name, ms] : {std::pair<const char*, std::vector<double>*>{"  phase: sample 600x600 (worker)", &sampleMs},
+                                   {"  phase: choose levels (worker)", &levelMs},
+                                   {"  phase: contour lines (worker)", &contourMs},
+                                   {"  phase: landscape rebuild (GUI thread)", &rebuildMs},
+                                   {"  phase: replot (GUI thread)", &replotMs}}) {
+        const Stats s = summarise(*ms);
+        std::printf("%-44s %8zu %7.2fms %7.2fms %7.2fms\n", name, ms->size(), s.median, s.p95, s.max);
+    }
     std::printf("mean iterates per drag over all methods: %.1f; contour polylines at 600x600: %zu\n",
                 static_cast<double>(iterates) / 200.0, contourLines);
     std::printf("targets: drag p95 <= 16 ms; landscape <= 50 ms\n");
