@@ -344,7 +344,7 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
     thread_local LineSearchResult found;
     if (kind == LineSearchKind::Wolfe) strongWolfeInto(eval, state.x, state.value, state.gradient, direction, settings, found);
     else armijoInto(eval, state.x, state.value, state.gradient, direction, settings, found);
-    record.trials = found.trials;
+    record.trials = std::move(found.trials);  // the record takes the trials; the next search reserves anew
     if (!found.success) {
         record.accepted = false;
         record.step = Vector::Zero(state.x.size());
