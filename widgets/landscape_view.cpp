@@ -271,10 +271,7 @@ void LandscapeView::rebuildField() {
     double* cells = data->*ColourMapDataAccess::cells();
     if (cells) {
         const std::size_t count = field->values.size();
-        if (logColour_)
-            for (std::size_t k = 0; k < count; ++k) cells[k] = colourOf(field->values[k]);
-        else
-            std::copy(field->values.begin(), field->values.end(), cells);
+        for (std::size_t k = 0; k < count; ++k) cells[k] = colourOf(field->values[k]);
         data->*ColourMapDataAccess::modified() = true;
     } else {
         for (int j = 0; j < field->ny; ++j)

@@ -63,6 +63,15 @@ Marker markerFromName(const QString& name, bool* ok) {
     return Marker::Circle;
 }
 
+QColor problemTextColour(const QPalette& palette) {
+    const bool dark = palette.color(QPalette::Window).lightness() < 128;
+    return dark ? QColor(0xff, 0x8a, 0x80) : QColor(0xb0, 0x10, 0x10);
+}
+
+QString problemTextStyle(const QPalette& palette) {
+    return QStringLiteral("color: %1;").arg(problemTextColour(palette).name());
+}
+
 namespace {
 
 double toLinear(double c) { return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4); }

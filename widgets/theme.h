@@ -3,6 +3,7 @@
 #include "widgets/snapshot.h"
 
 #include <QColor>
+#include <QPalette>
 #include <QString>
 #include <vector>
 
@@ -21,6 +22,12 @@ Marker lineupMarker(int index);
 QString markerName(Marker marker);
 // Unknown names give Circle and set *ok = false.
 Marker markerFromName(const QString& name, bool* ok = nullptr);
+
+// Text colour for problem messages that reads on the palette's window colour: a deep red
+// on light backgrounds, a light coral on dark ones (both above 4.5:1 contrast).
+QColor problemTextColour(const QPalette& palette);
+// A style sheet fragment "color: #rrggbb;" with problemTextColour.
+QString problemTextStyle(const QPalette& palette);
 
 // Colour-vision simulation used to check the palette (and pinned by a test).
 enum class ColourVision { Normal, Protanopia, Deuteranopia, Tritanopia };

@@ -5,6 +5,7 @@
 
 #include <QColorDialog>
 #include <QComboBox>
+#include <QEvent>
 #include <QFormLayout>
 #include <QHBoxLayout>
 #include <QHeaderView>
@@ -130,7 +131,7 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
     options_->setToolTip(tr("The method's options; empty means the default. Hover a name for its meaning."));
     message_ = new QLabel(details_);
     message_->setWordWrap(true);
-    message_->setStyleSheet(QStringLiteral("color: #c01010;"));
+    message_->setStyleSheet(widgets::problemTextStyle(palette()));
     message_->setToolTip(tr("Why this entry's options cannot be used"));
     connect(label_, &QLineEdit::editingFinished, this, [this] { onDetailsEdited(); });
     connect(marker_, &QComboBox::currentIndexChanged, this, [this] { onDetailsEdited(); });
@@ -259,7 +260,7 @@ void LineupEditor::refreshList() {
         if (const auto* info = solve::findMethod(e.method)) tip += ": " + QString::fromStdString(info->summary);
         if (!why.empty()) {
             tip += "\n" + tr("Not run: %1").arg(QString::fromStdString(why));
-            item->setForeground(QColor(0xc0, 0x10, 0x10));
+            item->setForeground(widgets::problemTextColour(palette()));
         }
         item->setToolTip(tip);
     }
@@ -379,6 +380,14 @@ void LineupEditor::chooseColour() {
     refreshList();
     refreshDetails();
     emit edited();
+}
+
+void LineupEditor::changeEvent(QEvent* event) {
+    if (event->type() == QEvent::PaletteChange || event->type() == QEvent::ApplicationPaletteChange) {
+        message_->setStyleSheet(widgets::problemTextStyle(palette()));
+        refreshList();  // entries with a problem are drawn in the problem colour
+    }
+    QWidget::changeEvent(event);
 }
 
 }  // namespace sw::window

@@ -41,6 +41,9 @@ public:
 signals:
     void edited();
 
+protected:
+    void changeEvent(QEvent* event) override;
+
 private:
     void refreshList();
     void refreshDetails();

@@ -53,8 +53,12 @@ constexpr int kMaxRecentFiles = 8;
 QString settingsGroup() { return QStringLiteral("window"); }
 
 // A small formula study so the window opens on something meaningful without a file.
-study::Study defaultStudy() {
+study::Study defaultStudy(const Preferences& preferences) {
     study::Study s;
+    s.maxIterations = preferences.maxIterations;
+    s.view.logColour = preferences.logColour;
+    s.view.contourCount = preferences.contourLevels;
+    s.view.gridCells = preferences.gridCells;
     s.title = "Untitled";
     s.formula = "(x - 1)^2 + 8*(y - x^2)^2";
     s.variables = {{"x", -1.0, -2.0, 2.0}, {"y", 1.5, -1.0, 3.0}};
@@ -239,6 +243,9 @@ void MainWindow::createActions() {
     connect(make("export-steps", tr("Export steps as &CSV…"), tr("Save every method's iterations as a CSV table"),
                  QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_E)),
             &QAction::triggered, this, &MainWindow::exportStepsDialog);
+    connect(make("preferences", tr("&Preferences…"),
+                 tr("Animation speed, appearance, landscape and export defaults"), QKeySequence::Preferences),
+            &QAction::triggered, this, &MainWindow::showPreferences);
     connect(make("reset-layout", tr("Reset &layout"), tr("Put every panel back where it started"), QKeySequence()),
             &QAction::triggered, this, &MainWindow::resetLayout);
     connect(make("about", tr("&About Saddlewise"), tr("What this program is"), QKeySequence::HelpContents),
@@ -258,6 +265,8 @@ void MainWindow::createMenus() {
     file->addSeparator();
     file->addAction(action("export-view"));
     file->addAction(action("export-steps"));
+    file->addSeparator();
+    file->addAction(action("preferences"));
     file->addSeparator();
     file->addAction(action("quit"));
 
@@ -292,7 +301,10 @@ void MainWindow::createToolBars() {
     speed_->setSuffix(tr(" steps/s"));
     speed_->setToolTip(tr("How many iterations per second the animation shows"));
     speedLabel->setToolTip(speed_->toolTip());
-    connect(speed_, &QSpinBox::valueChanged, this, [this](int perSecond) { animation_.setInterval(1000 / perSecond); });
+    connect(speed_, &QSpinBox::valueChanged, this, [this](int perSecond) {
+        animation_.setInterval(1000 / perSecond);
+        preferences_.animationSpeed = perSecond;
+    });
     bar->addWidget(speedLabel);
     bar->addWidget(speed_);
     bar->addSeparator();
@@ -327,8 +339,13 @@ void MainWindow::readSettings() {
         restoreGeometry(geometry);
     const QByteArray state = settings.value("layout").toByteArray();
     if (!state.isEmpty()) restoreState(state);
-    speed_->setValue(settings.value("animation-speed", 5).toInt());
+    // Before preferences existed the animation speed was kept with the window.
+    const QVariant oldSpeed = settings.value("animation-speed");
     settings.endGroup();
+    Preferences loaded = Preferences::load(settings);
+    if (!settings.contains("preferences/animation-speed") && oldSpeed.isValid())
+        loaded.animationSpeed = std::clamp(oldSpeed.toInt(), 1, 60);
+    applyPreferences(loaded, false);
     updateRecentMenu();
 }
 
@@ -337,9 +354,58 @@ void MainWindow::writeSettings() {
     settings.beginGroup(settingsGroup());
     settings.setValue("geometry", saveGeometry());
     settings.setValue("layout", saveState());
-    settings.setValue("animation-speed", speed_->value());
     settings.endGroup();
+    preferences_.save(settings);
 }
+
+void MainWindow::setPreferences(const Preferences& preferences) {
+    applyPreferences(preferences, true);
+    QSettings settings;
+    preferences_.save(settings);
+}
+
+// changeStudy: the landscape settings also go into the open study (a change made in the
+// dialog); at start-up they only seed new studies.
+void MainWindow::applyPreferences(const Preferences& wanted, bool changeStudy) {
+    Preferences p = wanted;
+    if (!p.isValid()) p = Preferences{};
+    const Preferences before = preferences_;
+    preferences_ = p;
+    if (speed_->value() != p.animationSpeed) speed_->setValue(p.animationSpeed);  // also sets the interval
+    if (!paletteApplied_ ? p.palette != PaletteChoice::System : p.palette != before.palette) {
+        applyPalette(p.palette);
+        paletteApplied_ = true;
+    }
+    if (!changeStudy) return;
+    const bool landscapeChanged = p.logColour != before.logColour || p.contourLevels != before.contourLevels ||
+                                  p.gridCells != before.gridCells;
+    if (!landscapeChanged) return;
+    study::ViewSettings view = study_.view;
+    if (p.logColour != before.logColour) view.logColour = p.logColour;
+    if (p.contourLevels != before.contourLevels) view.contourCount = p.contourLevels;
+    if (p.gridCells != before.gridCells) view.gridCells = p.gridCells;
+    if (view == study_.view) return;
+    const bool logChanged = view.logColour != study_.view.logColour;
+    study_.view = view;
+    setModified(true);
+    if (logChanged) landscape_->setLogColour(view.logColour);  // redraws the shown field at once
+    requestField();
+}
+
+PreferencesDialog* MainWindow::showPreferences() {
+    if (auto* open = findChild<PreferencesDialog*>(QString(), Qt::FindDirectChildrenOnly)) {
+        open->raise();
+        open->activateWindow();
+        return open;
+    }
+    auto* dialog = new PreferencesDialog(preferences_, this);
+    dialog->setAttribute(Qt::WA_DeleteOnClose);
+    connect(dialog, &PreferencesDialog::preferencesChanged, this, &MainWindow::setPreferences);
+    dialog->show();
+    return dialog;
+}
+
+void MainWindow::setQuestion(Question question) { question_ = std::move(question); }
 
 void MainWindow::resetLayout() {
     for (auto& [name, dock] : docks_) {
@@ -420,12 +486,13 @@ void MainWindow::updateSamplesMenu() {
 // ---------------------------------------------------------------- document
 
 void MainWindow::newStudy() {
-    study_ = defaultStudy();
+    study_ = defaultStudy(preferences_);
     studyPath_.clear();
     baseDirectory_ = QDir::currentPath();
     loading_ = true;
     objectiveEditor_->setStudy(study_, baseDirectory_);
     lineupEditor_->setEntries(study_.methods);
+    landscape_->setLogColour(study_.view.logColour);
     loading_ = false;
     hasViewBox_ = false;
     selection_ = {};
@@ -528,9 +595,12 @@ bool MainWindow::saveAsDialog() {
 
 bool MainWindow::maybeSave() {
     if (!modified_) return true;
-    const auto answer = QMessageBox::warning(this, tr("Unsaved changes"),
-                                             tr("The study has changes that are not saved. Save them?"),
-                                             QMessageBox::Save | QMessageBox::Discard | QMessageBox::Cancel);
+    const QString title = tr("Unsaved changes");
+    const QString name = studyPath_.isEmpty() ? tr("The new study") : QFileInfo(studyPath_).fileName();
+    const QString text = tr("%1 has changes that are not saved. Save them before going on?").arg(name);
+    const auto buttons = QMessageBox::Save | QMessageBox::Discard | QMessageBox::Cancel;
+    const auto answer = question_ ? question_(this, title, text, buttons)
+                                  : QMessageBox::warning(this, title, text, buttons, QMessageBox::Save);
     if (answer == QMessageBox::Save) return save();
     return answer == QMessageBox::Discard;
 }
@@ -1007,12 +1077,13 @@ void MainWindow::exportViewDialog() {
         s->setRange(100, 8000);
         s->setSuffix(tr(" px"));
     }
-    width->setValue(1200);
-    height->setValue(900);
+    width->setValue(preferences_.exportWidth);
+    height->setValue(preferences_.exportHeight);
     width->setToolTip(tr("Width of the saved image (PDF and SVG: in points)"));
     height->setToolTip(tr("Height of the saved image (PDF and SVG: in points)"));
     auto* format = new QComboBox(&dialog);
     format->addItems({"png", "svg", "pdf"});
+    format->setCurrentIndex(std::max(0, format->findText(preferences_.exportFormat)));
     format->setToolTip(tr("PNG for pictures, SVG or PDF for scalable drawings"));
     auto* buttons = new QDialogButtonBox(QDialogButtonBox::Save | QDialogButtonBox::Cancel, &dialog);
     auto* form = new QFormLayout(&dialog);

@@ -3,12 +3,15 @@
 // all computation, the study as the document (open, save, recent files, samples).
 
 #include "app/window/job_runner.h"
+#include "app/window/preferences.h"
 #include "core/study/study.h"
 #include "widgets/snapshot.h"
 
 #include <QMainWindow>
+#include <QMessageBox>
 #include <QPointer>
 #include <QTimer>
+#include <functional>
 #include <map>
 #include <memory>
 
@@ -77,6 +80,18 @@ public:
     // Waits (processing events) until no job is in flight and the views are up to date.
     bool waitForIdle(int timeoutMs = 30000);
 
+    // Preferences (kept in QSettings, applied at once; see preferences.h).
+    const Preferences& preferences() const { return preferences_; }
+    void setPreferences(const Preferences& preferences);
+    // Opens the preferences dialog without blocking (or raises the open one) and returns it.
+    PreferencesDialog* showPreferences();
+
+    // How the window asks a yes/no/cancel question (the unsaved-changes prompt). The default
+    // shows a QMessageBox; tests put in a function that answers without a modal loop.
+    using Question = std::function<QMessageBox::StandardButton(QWidget* parent, const QString& title,
+                                                               const QString& text, QMessageBox::StandardButtons)>;
+    void setQuestion(Question question);
+
 public slots:
     void runAll();
     void stepAll();
@@ -105,6 +120,7 @@ private:
     void readSettings();
     void writeSettings();
     void resetLayout();
+    void applyPreferences(const Preferences& preferences, bool changeStudy);
 
     void openDialog();
     bool save();
@@ -136,6 +152,10 @@ private:
     void onJobStateChanged();
     void animationTick();
     widgets::PlotView* viewByName(const QString& name) const;
+
+    Preferences preferences_;
+    bool paletteApplied_ = false;
+    Question question_;
 
     // Document.
     study::Study study_;

@@ -3,10 +3,12 @@
 
 #include "app/window/objective_editor.h"
 #include "core/objective/table.h"
+#include "widgets/theme.h"
 
 #include <QComboBox>
 #include <QDir>
 #include <QDoubleSpinBox>
+#include <QEvent>
 #include <QFileDialog>
 #include <QFileInfo>
 #include <QFontDatabase>
@@ -378,7 +380,7 @@ void ObjectiveEditor::showFormulaError(const QString& message, int position) {
 
 void ObjectiveEditor::showProblem(const QString& message) {
     message_->setText(message);
-    message_->setStyleSheet(QStringLiteral("color: #c01010;"));
+    message_->setStyleSheet(widgets::problemTextStyle(palette()));
     message_->setVisible(!message.isEmpty());
 }
 
@@ -565,6 +567,12 @@ void ObjectiveEditor::loadTablePreview() {
     weights_->addItems(headers);
     if (response_->findText(keepResponse) >= 0) response_->setCurrentText(keepResponse);
     if (weights_->findText(keepWeights) >= 0) weights_->setCurrentText(keepWeights);
+}
+
+void ObjectiveEditor::changeEvent(QEvent* event) {
+    if (event->type() == QEvent::PaletteChange || event->type() == QEvent::ApplicationPaletteChange)
+        message_->setStyleSheet(widgets::problemTextStyle(palette()));
+    QWidget::changeEvent(event);
 }
 
 }  // namespace sw::window

@@ -73,6 +73,9 @@ signals:
     // Only the plotted pair changed.
     void plotAxesChanged();
 
+protected:
+    void changeEvent(QEvent* event) override;
+
 private:
     void buildFormulaPage(QWidget* page);
     void buildFitPage(QWidget* page);
