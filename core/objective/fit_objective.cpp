@@ -8,6 +8,7 @@
 #include <cmath>
 #include <condition_variable>
 #include <cstring>
+#include <exception>
 #include <functional>
 #include <mutex>
 #include <thread>
@@ -196,10 +197,16 @@ public:
             ++generation_;
         }
         wake_.notify_all();
-        task(0);
+        std::exception_ptr failure;
+        try {
+            task(0);
+        } catch (...) {
+            failure = std::current_exception();  // the workers still use task: wait for them first
+        }
         std::unique_lock<std::mutex> lock(mutex_);
         done_.wait(lock, [this] { return pending_ == 0; });
         task_ = nullptr;
+        if (failure) std::rethrow_exception(failure);
         return true;
     }
 
@@ -268,6 +275,7 @@ struct FitObjective::Impl {
     expr::Expression modelExpression;
     std::vector<expr::Expression> modelGradient;
     expr::Program valueProgram, gradientProgram, hessianProgram;
+    std::vector<char> modelHessianZero;  // per upper-triangle entry: identically zero
     int p = 0;
     std::size_t rows = 0;
     unsigned threads = 1;
@@ -333,6 +341,7 @@ struct FitObjective::Impl {
             std::vector<expr::Program::BlockInput> inputs;
             Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
             std::vector<double> residualBlock(factor ? kBlock : 0);
+            Matrix weighted(order >= 2 ? static_cast<Eigen::Index>(kBlock) : 0, order >= 2 ? p : 0);
             std::vector<double*> factorColumns(factor ? static_cast<std::size_t>(p) + 1 : 0);
             for (std::size_t row = begin; row < end; row += kBlock) {
                 const std::size_t count = std::min(kBlock, end - row);
@@ -400,11 +409,12 @@ struct FitObjective::Impl {
                     acc.factor.addRows(factorColumns.data(), count);
                 }
                 if (order == 1) continue;
-                Matrix weighted = second.head(n).asDiagonal() * dm;
-                acc.hessian.noalias() += dm.transpose() * weighted;
+                weighted.topRows(n).noalias() = second.head(n).asDiagonal() * dm;
+                acc.hessian.noalias() += dm.transpose() * weighted.topRows(n);
                 std::size_t k = 0;
                 for (int a = 0; a < p; ++a)
                     for (int b = a; b < p; ++b, ++k) {
+                        if (modelHessianZero[k]) continue;  // e.g. d2m/da^2 of a model linear in a
                         Eigen::Map<const Vector> d2(outs[static_cast<std::size_t>(1 + p) + k], n);
                         const double term = d2.dot(first.head(n));
                         acc.hessian(a, b) += term;
@@ -578,6 +588,8 @@ FitObjective::FitObjective(std::shared_ptr<const Table> table, FitDefinition def
     for (int j = 0; j < d.p; ++j) wrt[static_cast<std::size_t>(j)] = j;
     d.modelGradient = expr::gradient(d.modelExpression, wrt);
     const std::vector<expr::Expression> hessian = expr::hessianUpper(d.modelExpression, wrt);
+    for (const expr::Expression& h : hessian)
+        d.modelHessianZero.push_back(h.isConstant() && h.evaluate(std::vector<double>(symbols.size(), 0.0)) == 0.0);
     std::vector<expr::Expression> outputs = {d.modelExpression};
     d.valueProgram = expr::Program::compile(outputs);
     outputs.insert(outputs.end(), d.modelGradient.begin(), d.modelGradient.end());

@@ -23,10 +23,14 @@
 // parameters broadcast), and combined with the loss's first and second derivatives:
 //   grad f = sum w loss'(m) dm,   Hess f = sum w (loss''(m) dm dm' + loss'(m) d2m).
 // For least squares that is J'J + sum r_i Hess r_i with J = dr/dtheta = -dm.
-// Rows are shared between threads (std::thread over row ranges) when there are many.
+// Rows are shared between threads when there are many (threads kept for the life of the
+// objective). The last point evaluated is remembered with what was computed there (value,
+// gradient, Hessian, least-squares factor), so asking again for the same point is free and
+// gives the same numbers.
 //
 // Least squares and weighted least squares also expose the residual form
-// r_i = sqrt(w_i) (y_i - m_i), so Gauss-Newton and Levenberg-Marquardt can use them.
+// r_i = sqrt(w_i) (y_i - m_i), so Gauss-Newton and Levenberg-Marquardt can use them, and its
+// least-squares factor (R, Q'r, |r|^2 in one pass, see streaming_qr.h).
 
 #include "core/objective/objective.h"
 #include "core/objective/table.h"
