@@ -393,7 +393,9 @@ void MainWindow::applyPreferences(const Preferences& wanted, bool changeStudy) {
 }
 
 PreferencesDialog* MainWindow::showPreferences() {
-    if (auto* open = findChild<PreferencesDialog*>(QString(), Qt::FindDirectChildrenOnly)) {
+    // A closed dialog may still be waiting for its deferred delete: only a visible one counts.
+    for (auto* open : findChildren<PreferencesDialog*>(QString(), Qt::FindDirectChildrenOnly)) {
+        if (!open->isVisible()) continue;
         open->raise();
         open->activateWindow();
         return open;

@@ -569,6 +569,8 @@ void ObjectiveEditor::loadTablePreview() {
     if (weights_->findText(keepWeights) >= 0) weights_->setCurrentText(keepWeights);
 }
 
+QString ObjectiveEditor::tableSummary() const { return tableInfo_->text(); }
+
 void ObjectiveEditor::changeEvent(QEvent* event) {
     if (event->type() == QEvent::PaletteChange || event->type() == QEvent::ApplicationPaletteChange)
         message_->setStyleSheet(widgets::problemTextStyle(palette()));

@@ -66,6 +66,9 @@ public:
     QPlainTextEdit* formulaEdit() const { return formula_; }
     QPlainTextEdit* modelEdit() const { return model_; }
     QTableWidget* variableTable() const { return variables_; }
+    // Data-fit mode: the table's summary line (rows, columns, separator) and its first rows.
+    QString tableSummary() const;
+    QTableWidget* tablePreview() const { return preview_; }
 
 signals:
     // The objective or its variables changed (debounced while typing).

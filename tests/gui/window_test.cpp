@@ -1,7 +1,8 @@
 // The workbench window end to end on the offscreen platform: samples draw every enabled
 // method's path, bad formulas are marked where they are wrong while the last good results
 // stay, dragging the start reruns, selection links the table and the plots, exports write
-// valid files, and a cancelled job leaves the window usable.
+// valid files, a cancelled job leaves the window usable, data-fit mode shows its table and
+// keeps its last results when the model is bad, and closing with unsaved changes asks first.
 #include "app/window/job_runner.h"
 #include "app/window/lineup_editor.h"
 #include "app/window/main_window.h"
@@ -286,6 +287,141 @@ private slots:
         window.setPlaying(false);
         QVERIFY(window.waitForIdle());
         QVERIFY(window.snapshot()->tracks.front().run->trace.size() >= 3);
+    }
+
+    void dataFitModeShowsTheTableKeepsTheLastResultsOnABadModelAndDrawsPaths() {
+        MainWindow window;
+        window.resize(1400, 900);
+        window.show();
+        QString error;
+        QVERIFY2(window.openStudy(QStringLiteral(SW_SAMPLES_DIR "/sensor-warmup.json"), &error), qPrintable(error));
+        QVERIFY(window.waitForIdle());
+        auto* editor = window.objectiveEditor();
+        QVERIFY(editor->fitMode());
+        // The table is shown with the separator it was read with, found by looking at the file.
+        qInfo("table: %s", qPrintable(editor->tableSummary()));
+        QVERIFY(editor->tableSummary().contains("121 rows"));
+        QVERIFY(editor->tableSummary().contains("comma-separated (detected)"));
+        QCOMPARE(editor->tablePreview()->columnCount(), 2);
+        QVERIFY(editor->tablePreview()->rowCount() > 0);
+        QCOMPARE(editor->tablePreview()->item(0, 0)->text().toDouble(), 0.0);
+
+        // A run draws a path for every enabled method, over the fit's parameters.
+        const int enabled = enabledCount(window.study());
+        QCOMPARE(static_cast<int>(window.snapshot()->tracks.size()), enabled);
+        for (int t = 0; t < enabled; ++t)
+            QCOMPARE(window.landscape()->pathCurve(t)->dataCount(),
+                     static_cast<int>(window.snapshot()->tracks[static_cast<std::size_t>(t)].run->trace.size()));
+        QVERIFY(window.lastSummary().contains("converged"));
+
+        // A model with an unclosed bracket: the message names the place; the last results stay.
+        const auto goodSnapshot = window.snapshot();
+        const auto goodObjective = window.objective();
+        const QString model = editor->modelEdit()->toPlainText();
+        editor->modelEdit()->setPlainText("a - b*exp(-minutes/tau");
+        QTRY_VERIFY_WITH_TIMEOUT(!editor->problemText().isEmpty(), 3000);
+        qInfo("bad model: %s (position %d)", qPrintable(editor->problemText()), editor->markedPosition());
+        QVERIFY(editor->markedPosition() >= 0);
+        QCOMPARE(editor->modelEdit()->extraSelections().size(), 1);
+        QVERIFY(window.waitForIdle());
+        QCOMPARE(window.snapshot(), goodSnapshot);
+        QCOMPARE(window.objective(), goodObjective);
+
+        // A column that is not in the table is named.
+        editor->modelEdit()->setPlainText("a - b*exp(-hours/tau)");
+        QTRY_VERIFY_WITH_TIMEOUT(editor->problemText().contains("hours"), 3000);
+        QCOMPARE(window.snapshot(), goodSnapshot);
+
+        // Putting the model back runs again and draws every path.
+        QSignalSpy shown(&window, &MainWindow::runsShown);
+        editor->modelEdit()->setPlainText(model);
+        QTRY_VERIFY_WITH_TIMEOUT(shown.count() > 0, 5000);
+        QVERIFY(window.waitForIdle());
+        QVERIFY(editor->problemText().isEmpty());
+        QVERIFY(window.objective() != goodObjective);
+        QCOMPARE(window.landscape()->pathCount(), enabled);
+    }
+
+    void closingWithUnsavedChangesAsksAndDoesWhatTheAnswerSays() {
+        // A copy of a sample, so Save has a file of its own to write.
+        const QString path = dir_.filePath("prompt.json");
+        QFile::remove(path);
+        QVERIFY(QFile::copy(QStringLiteral(SW_SAMPLES_DIR "/two-valve-saddles.json"), path));
+        QFile::setPermissions(path, QFile::ReadOwner | QFile::WriteOwner);
+        const QByteArray original = [&] {
+            QFile f(path);
+            return f.open(QIODevice::ReadOnly) ? f.readAll() : QByteArray();
+        }();
+
+        int asked = 0;
+        QString askedText;
+        auto answer = [&](QMessageBox::StandardButton button) {
+            return [&, button](QWidget*, const QString&, const QString& text, QMessageBox::StandardButtons offered) {
+                ++asked;
+                askedText = text;
+                return offered.testFlag(button) ? button : QMessageBox::NoButton;
+            };
+        };
+        auto edit = [](MainWindow& window) {
+            // Move the start: an edit of the study, as a drag on the landscape makes.
+            sw::Vector x = window.start();
+            x(0) += 0.125;
+            window.moveStart(x);
+            QVERIFY(window.waitForIdle());
+            QVERIFY(window.isModified());
+        };
+
+        {
+            MainWindow window;
+            window.show();
+            QString error;
+            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
+            QVERIFY(window.waitForIdle());
+            QVERIFY(window.close());  // nothing changed: no question
+            QCOMPARE(asked, 0);
+        }
+        {
+            MainWindow window;
+            window.show();
+            QString error;
+            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
+            QVERIFY(window.waitForIdle());
+            edit(window);
+            const sw::Vector edited = window.start();
+
+            // Cancel: the window stays, with the edit.
+            window.setQuestion(answer(QMessageBox::Cancel));
+            QVERIFY(!window.close());
+            QCOMPARE(asked, 1);
+            QVERIFY(askedText.contains("prompt.json"));
+            QVERIFY(window.isVisible());
+            QVERIFY(window.isModified());
+            QVERIFY(window.start() == edited);
+
+            // Discard: the window closes and the file is as it was.
+            window.setQuestion(answer(QMessageBox::Discard));
+            QVERIFY(window.close());
+            QCOMPARE(asked, 2);
+            QFile f(path);
+            QVERIFY(f.open(QIODevice::ReadOnly));
+            QCOMPARE(f.readAll(), original);
+        }
+        {
+            MainWindow window;
+            window.show();
+            QString error;
+            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
+            QVERIFY(window.waitForIdle());
+            edit(window);
+            const sw::Vector edited = window.start();
+
+            // Save: the window closes and the file holds the edit.
+            window.setQuestion(answer(QMessageBox::Save));
+            QVERIFY(window.close());
+            QCOMPARE(asked, 3);
+            const sw::study::Study saved = sw::study::loadFile(path.toStdString());
+            QVERIFY((saved.start() - edited).norm() < 1e-12);
+        }
     }
 };
 
