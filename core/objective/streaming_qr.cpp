@@ -49,10 +49,17 @@ void plainAxpys(const double* x, double* const* y, const double* alpha, int coun
     }
 }
 
+void plainAxpysThenDots(const double* x, double* const* y, const double* alpha, int count, std::size_t m,
+                        double* sums) {
+    plainAxpys(x, y, alpha, count, m);
+    sums[0] = plainSumSquares(y[0], m);
+    if (count > 1) plainDots(y[0], y + 1, count - 1, m, sums + 1);
+}
+
 }  // namespace
 
 const Kernel& plainKernel() {
-    static const Kernel kernel{plainSumSquares, plainDots, plainAxpys};
+    static const Kernel kernel{plainSumSquares, plainDots, plainAxpys, plainAxpysThenDots};
     return kernel;
 }
 

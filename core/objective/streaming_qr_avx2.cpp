@@ -99,6 +99,71 @@ void avxAxpysOf(const double* x, double* const* y, const double* alpha, std::siz
     }
 }
 
+// The update of C columns and, from the updated values still in registers, |y0|^2 and y0'yc.
+template <int C>
+void avxAxpysThenDotsOf(const double* x, double* const* y, const double* alpha, std::size_t m, double* sums) {
+    double* y0 = y[0];
+    double* y1 = C > 1 ? y[1] : y0;
+    double* y2 = C > 2 ? y[2] : y0;
+    double* y3 = C > 3 ? y[3] : y0;
+    const __m256d a0 = _mm256_set1_pd(alpha[0]), a1 = _mm256_set1_pd(C > 1 ? alpha[1] : 0.0),
+                  a2 = _mm256_set1_pd(C > 2 ? alpha[2] : 0.0), a3 = _mm256_set1_pd(C > 3 ? alpha[3] : 0.0);
+    __m256d s0 = _mm256_setzero_pd(), s1 = _mm256_setzero_pd(), s2 = _mm256_setzero_pd(), s3 = _mm256_setzero_pd();
+    std::size_t i = 0;
+    for (; i + 4 <= m; i += 4) {
+        const __m256d v = _mm256_loadu_pd(x + i);
+        const __m256d u0 = _mm256_fmadd_pd(a0, v, _mm256_loadu_pd(y0 + i));
+        _mm256_storeu_pd(y0 + i, u0);
+        s0 = _mm256_fmadd_pd(u0, u0, s0);
+        if constexpr (C > 1) {
+            const __m256d u = _mm256_fmadd_pd(a1, v, _mm256_loadu_pd(y1 + i));
+            _mm256_storeu_pd(y1 + i, u);
+            s1 = _mm256_fmadd_pd(u0, u, s1);
+        }
+        if constexpr (C > 2) {
+            const __m256d u = _mm256_fmadd_pd(a2, v, _mm256_loadu_pd(y2 + i));
+            _mm256_storeu_pd(y2 + i, u);
+            s2 = _mm256_fmadd_pd(u0, u, s2);
+        }
+        if constexpr (C > 3) {
+            const __m256d u = _mm256_fmadd_pd(a3, v, _mm256_loadu_pd(y3 + i));
+            _mm256_storeu_pd(y3 + i, u);
+            s3 = _mm256_fmadd_pd(u0, u, s3);
+        }
+    }
+    double t0 = horizontalSum(s0), t1 = horizontalSum(s1), t2 = horizontalSum(s2), t3 = horizontalSum(s3);
+    for (; i < m; ++i) {
+        y0[i] += alpha[0] * x[i];
+        t0 += y0[i] * y0[i];
+        if constexpr (C > 1) {
+            y1[i] += alpha[1] * x[i];
+            t1 += y0[i] * y1[i];
+        }
+        if constexpr (C > 2) {
+            y2[i] += alpha[2] * x[i];
+            t2 += y0[i] * y2[i];
+        }
+        if constexpr (C > 3) {
+            y3[i] += alpha[3] * x[i];
+            t3 += y0[i] * y3[i];
+        }
+    }
+    sums[0] = t0;
+    if constexpr (C > 1) sums[1] = t1;
+    if constexpr (C > 2) sums[2] = t2;
+    if constexpr (C > 3) sums[3] = t3;
+}
+
+void avxAxpysThenDots(const double* x, double* const* y, const double* alpha, int count, std::size_t m,
+                      double* sums) {
+    switch (count) {
+        case 1: avxAxpysThenDotsOf<1>(x, y, alpha, m, sums); break;
+        case 2: avxAxpysThenDotsOf<2>(x, y, alpha, m, sums); break;
+        case 3: avxAxpysThenDotsOf<3>(x, y, alpha, m, sums); break;
+        default: avxAxpysThenDotsOf<4>(x, y, alpha, m, sums); break;
+    }
+}
+
 void avxAxpys(const double* x, double* const* y, const double* alpha, int count, std::size_t m) {
     switch (count) {
         case 1: avxAxpysOf<1>(x, y, alpha, m); break;
@@ -113,7 +178,7 @@ void avxAxpys(const double* x, double* const* y, const double* alpha, int count,
 }  // namespace
 
 const Kernel* avx2Kernel() {
-    static const Kernel kernel{avxSumSquares, avxDots, avxAxpys};
+    static const Kernel kernel{avxSumSquares, avxDots, avxAxpys, avxAxpysThenDots};
     __builtin_cpu_init();
     if (!__builtin_cpu_supports("avx2") || !__builtin_cpu_supports("fma")) return nullptr;
     return &kernel;

@@ -48,7 +48,7 @@ void randomProblem(Eigen::Index m, Eigen::Index n, unsigned seed, Matrix& j, Vec
     r.resize(m);
     for (Eigen::Index i = 0; i < m; ++i) {
         for (Eigen::Index c = 0; c < n; ++c) j(i, c) = normal(gen) * std::pow(10.0, static_cast<double>(c) - 2.0);
-        j(i, n - 1) += 0.999 * j(i, 0) * 1e3;  // nearly parallel to column 0, on its own scale
+        if (n > 1) j(i, n - 1) += 0.999 * j(i, 0) * 1e3;  // nearly parallel to column 0, on its own scale
         r(i) = normal(gen);
     }
 }
@@ -56,36 +56,41 @@ void randomProblem(Eigen::Index m, Eigen::Index n, unsigned seed, Matrix& j, Vec
 }  // namespace
 
 TEST(StreamingQr, MatchesTheQrOfTheWholeMatrixAcrossBlocksAndMergedParts) {
-    Matrix j;
-    Vector r;
-    randomProblem(5000, 5, 11, j, r);
-    // Three parts of unequal size, each fed in blocks of 512 rows (the last one partial), merged.
-    StreamingQr whole(5), second(5), third(5);
-    feed(whole, j, r, 0, 1700, 512);
-    feed(second, j, r, 1700, 3901, 512);
-    feed(third, j, r, 3901, 5000, 333);
-    whole.merge(second);
-    whole.merge(third);
-    EXPECT_EQ(whole.rows(), 5000);
+    // Up to 4 columns the fold takes its fused path (one pass per reflection), above it the
+    // grouped one: both are checked.
+    for (int n : {1, 2, 4, 5, 9}) {
+        SCOPED_TRACE("columns " + std::to_string(n));
+        Matrix j;
+        Vector r;
+        randomProblem(5000, n, 11 + static_cast<unsigned>(n), j, r);
+        // Three parts of unequal size, each fed in blocks (the last one partial), merged.
+        StreamingQr whole(n), second(n), third(n);
+        feed(whole, j, r, 0, 1700, 512);
+        feed(second, j, r, 1700, 3901, 512);
+        feed(third, j, r, 3901, 5000, 333);
+        whole.merge(second);
+        whole.merge(third);
+        EXPECT_EQ(whole.rows(), 5000);
 
-    const Matrix rs = whole.r();
-    const Vector qtr = whole.qtr();
-    const Matrix gram = j.transpose() * j;
-    const Vector jtr = j.transpose() * r;
-    EXPECT_LT(relativeDifference(rs.transpose() * rs, gram), 1e-12);
-    EXPECT_LT((rs.transpose() * qtr - jtr).norm() / jtr.norm(), 1e-12);
-    EXPECT_NEAR(whole.residualNormSq(), r.squaredNorm(), 1e-12 * r.squaredNorm());
+        const Matrix rs = whole.r();
+        const Vector qtr = whole.qtr();
+        const Matrix gram = j.transpose() * j;
+        const Vector jtr = j.transpose() * r;
+        EXPECT_LT(relativeDifference(rs.transpose() * rs, gram), 1e-12);
+        EXPECT_LT((rs.transpose() * qtr - jtr).norm() / jtr.norm(), 1e-12);
+        EXPECT_NEAR(whole.residualNormSq(), r.squaredNorm(), 1e-12 * r.squaredNorm());
 
-    // R and Q'r equal Eigen's Householder QR of the explicit J up to the sign of each row.
-    Eigen::HouseholderQR<Matrix> reference(j);
-    const Matrix rr = reference.matrixQR().topRows(5).triangularView<Eigen::Upper>();
-    const Vector rq = (reference.householderQ().transpose() * r).head(5);
-    for (int i = 0; i < 5; ++i) {
-        const double sign = (rs(i, i) > 0) == (rr(i, i) > 0) ? 1.0 : -1.0;
-        EXPECT_LT((sign * rs.row(i) - rr.row(i)).norm(), 1e-12 * rr.norm()) << "row " << i;
-        EXPECT_NEAR(sign * qtr[i], rq[i], 1e-12 * rq.norm()) << "row " << i;
+        // R and Q'r equal Eigen's Householder QR of the explicit J up to the sign of each row.
+        Eigen::HouseholderQR<Matrix> reference(j);
+        const Matrix rr = reference.matrixQR().topRows(n).triangularView<Eigen::Upper>();
+        const Vector rq = (reference.householderQ().transpose() * r).head(n);
+        for (int i = 0; i < n; ++i) {
+            const double sign = (rs(i, i) > 0) == (rr(i, i) > 0) ? 1.0 : -1.0;
+            EXPECT_LT((sign * rs.row(i) - rr.row(i)).norm(), 1e-12 * rr.norm()) << "row " << i;
+            EXPECT_NEAR(sign * qtr[i], rq[i], 1e-12 * rq.norm()) << "row " << i;
+        }
+        EXPECT_TRUE(rs.isUpperTriangular());
     }
-    EXPECT_TRUE(rs.isUpperTriangular());
 }
 
 TEST(StreamingQr, KeepsTheAccuracyOfQrWhereTheNormalEquationsLoseIt) {
@@ -110,15 +115,18 @@ TEST(StreamingQr, KeepsTheAccuracyOfQrWhereTheNormalEquationsLoseIt) {
 }
 
 TEST(StreamingQr, ReportsARankDeficientMatrixThroughItsSingularValues) {
-    Matrix j;
-    Vector r;
-    randomProblem(2000, 4, 5, j, r);
-    j.col(3) = 2.0 * j.col(0) - j.col(1);  // column 3 depends on columns 0 and 1
-    StreamingQr qr(4);
-    feed(qr, j, r, 0, 2000, 512);
-    const Vector s = Eigen::JacobiSVD<Matrix>(qr.r()).singularValues();
-    EXPECT_GT(s[2], 1e-6 * s[0]);
-    EXPECT_LT(s[3], 1e-13 * s[0]) << "the dependent column leaves a zero singular value";
+    for (int n : {4, 6}) {
+        SCOPED_TRACE("columns " + std::to_string(n));
+        Matrix j;
+        Vector r;
+        randomProblem(2000, n, 5, j, r);
+        j.col(3) = 2.0 * j.col(0) - j.col(1);  // column 3 depends on columns 0 and 1
+        StreamingQr qr(n);
+        feed(qr, j, r, 0, 2000, 512);
+        const Vector s = Eigen::JacobiSVD<Matrix>(qr.r()).singularValues();
+        EXPECT_GT(s[n - 2], 1e-9 * s[0]);
+        EXPECT_LT(s[n - 1], 1e-13 * s[0]) << "the dependent column leaves a zero singular value";
+    }
 }
 
 TEST(StreamingQr, LeavesAllZeroColumnsAndEmptyBlocksAlone) {
