@@ -4,6 +4,7 @@
 #include "core/objective/streaming_qr.h"
 
 #include <algorithm>
+#include <atomic>
 #include <cctype>
 #include <cmath>
 #include <condition_variable>
@@ -164,8 +165,11 @@ struct Partial {
 };
 
 // Threads kept for the life of the objective, so a pass over the rows does not pay for
-// starting threads (tens of microseconds each, on every pass of every iteration). One pass
-// at a time: a second caller finds them busy and starts threads of its own.
+// starting threads (tens of microseconds each, on every pass of every iteration). Between
+// passes a worker first watches for the next one for a few tens of microseconds (a solver's
+// own work between passes is about that long) and only then sleeps; the caller likewise
+// watches for the workers to finish before sleeping. One pass at a time: a second caller
+// finds them busy and starts threads of its own.
 class RowWorkers {
 public:
     explicit RowWorkers(std::size_t extra) {
@@ -174,7 +178,7 @@ public:
     ~RowWorkers() {
         {
             std::lock_guard<std::mutex> lock(mutex_);
-            stop_ = true;
+            stop_.store(true);
         }
         wake_.notify_all();
         for (auto& t : threads_) t.join();
@@ -189,12 +193,12 @@ public:
     bool run(std::size_t parts, const std::function<void(std::size_t)>& task) {
         std::unique_lock<std::mutex> busy(busy_, std::try_to_lock);
         if (!busy.owns_lock()) return false;
+        task_ = &task;
+        parts_ = parts;
+        pending_.store(parts - 1);
         {
             std::lock_guard<std::mutex> lock(mutex_);
-            task_ = &task;
-            parts_ = parts;
-            pending_ = parts - 1;
-            ++generation_;
+            generation_.fetch_add(1, std::memory_order_release);
         }
         wake_.notify_all();
         std::exception_ptr failure;
@@ -203,27 +207,45 @@ public:
         } catch (...) {
             failure = std::current_exception();  // the workers still use task: wait for them first
         }
-        std::unique_lock<std::mutex> lock(mutex_);
-        done_.wait(lock, [this] { return pending_ == 0; });
+        for (int spin = 0; spin < kSpins && pending_.load(std::memory_order_acquire) != 0; ++spin) pause();
+        if (pending_.load(std::memory_order_acquire) != 0) {
+            std::unique_lock<std::mutex> lock(mutex_);
+            done_.wait(lock, [this] { return pending_.load(std::memory_order_acquire) == 0; });
+        }
         task_ = nullptr;
         if (failure) std::rethrow_exception(failure);
         return true;
     }
 
 private:
+    static constexpr int kSpins = 4000;  // about 20-50 microseconds of pause instructions
+
+    static void pause() {
+#if defined(__x86_64__) || defined(__i386__)
+        __builtin_ia32_pause();
+#else
+        std::this_thread::yield();
+#endif
+    }
+
     void work(std::size_t index) {
         unsigned long seen = 0;
-        std::unique_lock<std::mutex> lock(mutex_);
         for (;;) {
-            wake_.wait(lock, [&] { return stop_ || generation_ != seen; });
-            if (stop_) return;
-            seen = generation_;
+            for (int spin = 0; spin < kSpins && generation_.load(std::memory_order_acquire) == seen && !stop_.load();
+                 ++spin)
+                pause();
+            if (generation_.load(std::memory_order_acquire) == seen && !stop_.load()) {
+                std::unique_lock<std::mutex> lock(mutex_);
+                wake_.wait(lock, [&] { return stop_.load() || generation_.load(std::memory_order_acquire) != seen; });
+            }
+            if (stop_.load()) return;
+            seen = generation_.load(std::memory_order_acquire);
             if (index >= parts_) continue;
-            const std::function<void(std::size_t)>* task = task_;
-            lock.unlock();
-            (*task)(index);
-            lock.lock();
-            if (--pending_ == 0) done_.notify_one();
+            (*task_)(index);
+            if (pending_.fetch_sub(1, std::memory_order_acq_rel) == 1) {
+                std::lock_guard<std::mutex> lock(mutex_);
+                done_.notify_one();
+            }
         }
     }
 
@@ -231,9 +253,10 @@ private:
     std::mutex mutex_;
     std::condition_variable wake_, done_;
     const std::function<void(std::size_t)>* task_ = nullptr;
-    std::size_t parts_ = 0, pending_ = 0;
-    unsigned long generation_ = 0;
-    bool stop_ = false;
+    std::size_t parts_ = 0;
+    std::atomic<std::size_t> pending_{0};
+    std::atomic<unsigned long> generation_{0};
+    std::atomic<bool> stop_{false};
     std::vector<std::thread> threads_;
 };
 
@@ -341,7 +364,7 @@ struct FitObjective::Impl {
             std::vector<expr::Program::BlockInput> inputs;
             Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
             std::vector<double> residualBlock(factor ? kBlock : 0);
-            Matrix weighted(order >= 2 ? static_cast<Eigen::Index>(kBlock) : 0, order >= 2 ? p : 0);
+            Vector weighted(order >= 2 ? static_cast<Eigen::Index>(kBlock) : 0);
             std::vector<double*> factorColumns(factor ? static_cast<std::size_t>(p) + 1 : 0);
             for (std::size_t row = begin; row < end; row += kBlock) {
                 const std::size_t count = std::min(kBlock, end - row);
@@ -409,8 +432,16 @@ struct FitObjective::Impl {
                     acc.factor.addRows(factorColumns.data(), count);
                 }
                 if (order == 1) continue;
-                weighted.topRows(n).noalias() = second.head(n).asDiagonal() * dm;
-                acc.hessian.noalias() += dm.transpose() * weighted.topRows(n);
+                // dm' diag(second) dm, one dot product per upper-triangle entry (for a few
+                // parameters and a block of rows cheaper than a general matrix product).
+                for (int a = 0; a < p; ++a) {
+                    weighted.head(n) = second.head(n).cwiseProduct(dm.col(a));
+                    for (int b = a; b < p; ++b) {
+                        const double term = weighted.head(n).dot(dm.col(b));
+                        acc.hessian(a, b) += term;
+                        if (b != a) acc.hessian(b, a) += term;
+                    }
+                }
                 std::size_t k = 0;
                 for (int a = 0; a < p; ++a)
                     for (int b = a; b < p; ++b, ++k) {
