@@ -363,7 +363,7 @@ struct FitObjective::Impl {
             std::vector<double*> outs(static_cast<std::size_t>(outputs));
             std::vector<expr::Program::BlockInput> inputs;
             Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
-            std::vector<double> residualBlock(factor ? kBlock : 0);
+            std::vector<double> residualBlock(hasResidualForm(def.loss) ? kBlock : 0);
             Vector weighted(order >= 2 ? static_cast<Eigen::Index>(kBlock) : 0);
             std::vector<double*> factorColumns(factor ? static_cast<std::size_t>(p) + 1 : 0);
             for (std::size_t row = begin; row < end; row += kBlock) {
@@ -373,37 +373,24 @@ struct FitObjective::Impl {
                 program.evaluateBlock(inputs.data(), count, outs.data(), workspace);
                 const double* m = outs[0];
                 if (hasResidualForm(def.loss)) {
-                    // The same terms as lossTerms() for (weighted) least squares, in a loop the
-                    // compiler can vectorise: 1/2 w r^2, -w r, w with r = y - m; and for the
+                    // The same terms as lossTerms() for (weighted) least squares, as whole-block
+                    // array operations (vectorised): r = y - m, 1/2 w r^2, -w r, w; and for the
                     // factor the residuals sqrt(w) r.
-                    const double* yb = y.data() + row;
-                    const double* wb = w.data() + row;
-                    double* fb = first.data();
-                    double* sb = second.data();
-                    double s0 = 0, s1 = 0;
-                    std::size_t i = 0;
-                    for (; i + 2 <= count; i += 2) {
-                        const double r0 = yb[i] - m[i], r1 = yb[i + 1] - m[i + 1];
-                        s0 += wb[i] * (0.5 * r0 * r0);
-                        s1 += wb[i + 1] * (0.5 * r1 * r1);
-                        fb[i] = wb[i] * -r0;
-                        fb[i + 1] = wb[i + 1] * -r1;
-                    }
-                    for (; i < count; ++i) {
-                        const double r0 = yb[i] - m[i];
-                        s0 += wb[i] * (0.5 * r0 * r0);
-                        fb[i] = wb[i] * -r0;
-                    }
-                    acc.value += s0 + s1;
-                    if (order >= 2) std::memcpy(sb, wb, count * sizeof(double));
-                    if (factor) {
-                        double* rb = residualBlock.data();
-                        if (hasWeights) {
-                            const double* qb = sqrtW.data() + row;
-                            for (i = 0; i < count; ++i) rb[i] = qb[i] * (yb[i] - m[i]);
-                        } else {
-                            for (i = 0; i < count; ++i) rb[i] = yb[i] - m[i];
-                        }
+                    const auto n = static_cast<Eigen::Index>(count);
+                    const auto at = static_cast<Eigen::Index>(row);
+                    Eigen::Map<const Eigen::ArrayXd> mb(m, n);
+                    Eigen::Map<Eigen::ArrayXd> rb(residualBlock.data(), n);
+                    rb = y.array().segment(at, n) - mb;
+                    if (hasWeights) {
+                        const auto wb = w.array().segment(at, n);
+                        acc.value += 0.5 * (wb * rb.square()).sum();
+                        first.head(n).array() = -(wb * rb);
+                        if (order >= 2) second.head(n) = w.segment(at, n);
+                        if (factor) rb *= sqrtW.array().segment(at, n);
+                    } else {
+                        acc.value += 0.5 * rb.square().sum();
+                        first.head(n).array() = -rb;
+                        if (order >= 2) second.head(n).setOnes();
                     }
                 } else {
                     for (std::size_t i = 0; i < count; ++i) {
