@@ -156,7 +156,7 @@ std::shared_ptr<Table> exponentialTable(int rows) {
         const double ti = 10.0 * i / rows;
         t->columns[0].push_back(ti);
         t->columns[1].push_back(2.0 * std::exp(-1.3 * ti) + 0.7 * std::exp(-0.2 * ti) + noise(gen));
-        t->columns[2].push_back(0.5 + 0.5 * std::cos(ti));
+        t->columns[2].push_back(0.02 * (1.5 + std::cos(ti)));  // sd in [0.01, 0.05]
     }
     return t;
 }
@@ -277,4 +277,59 @@ TEST(FitLeastSquaresFactor, ANonFiniteResidualIsNamedByTheEvaluator) {
     EXPECT_NE(eval.nonFinite().find("residual 1 "), std::string::npos) << eval.nonFinite();
     EXPECT_EQ(eval.counts().value, 1);
     EXPECT_EQ(eval.counts().gradient, 1);
+}
+
+namespace {
+
+// The same objective without its least-squares factor: methods fall back to the explicit
+// residuals and Jacobian (Householder QR of the whole J).
+class WithoutFactor final : public Objective {
+public:
+    explicit WithoutFactor(const Objective& inner) : inner_(inner) {}
+    int dimension() const override { return inner_.dimension(); }
+    std::vector<std::string> variableNames() const override { return inner_.variableNames(); }
+    std::string description() const override { return inner_.description(); }
+    double value(const Vector& x) const override { return inner_.value(x); }
+    double valueGradient(const Vector& x, Vector& g) const override { return inner_.valueGradient(x, g); }
+    double valueGradientHessian(const Vector& x, Vector& g, Matrix& h) const override {
+        return inner_.valueGradientHessian(x, g, h);
+    }
+    bool hasResiduals() const override { return inner_.hasResiduals(); }
+    int residualCount() const override { return inner_.residualCount(); }
+    void residuals(const Vector& x, Vector& r, Matrix* j) const override { inner_.residuals(x, r, j); }
+
+private:
+    const Objective& inner_;
+};
+
+}  // namespace
+
+TEST(FitLeastSquaresFactor, LeastSquaresMethodsTakeTheSameStepsWithOrWithoutIt) {
+    auto table = exponentialTable(40000);
+    for (bool weighted : {false, true})
+        for (const char* method : {"levenberg-marquardt", "gauss-newton"}) {
+            SCOPED_TRACE(std::string(method) + (weighted ? ", weighted" : ""));
+            FitObjective f(table, exponentialFit(2, weighted));
+            WithoutFactor explicitJacobian(f);
+            Vector x(4);
+            x << 1.0, 2.0, 1.0, 0.1;
+            solve::StoppingRules rules;
+            rules.maxIterations = 200;
+            const solve::Run streamed = solve::solve(method, f, x, {}, rules);
+            const solve::Run plain = solve::solve(method, explicitJacobian, x, {}, rules);
+            ASSERT_TRUE(solve::isConvergence(streamed.termination)) << streamed.message;
+            ASSERT_TRUE(solve::isConvergence(plain.termination)) << plain.message;
+            EXPECT_LT((streamed.x - plain.x).norm(), 1e-9 * plain.x.norm());
+            EXPECT_NEAR(streamed.value, plain.value, 1e-12 * plain.value);
+            // Iterate by iterate the same path (rounding aside), with the same rank and condition;
+            // only the last, rounding-level iterations may differ in number.
+            const std::size_t common = std::min(streamed.trace.size(), plain.trace.size());
+            for (std::size_t k = 0; k + 1 < common && k < 6; ++k) {
+                EXPECT_LT((streamed.trace[k].x - plain.trace[k].x).norm(), 1e-8 * plain.trace[k].x.norm()) << "record " << k;
+                EXPECT_EQ(streamed.trace[k].jacobianRank, plain.trace[k].jacobianRank) << "record " << k;
+                EXPECT_NEAR(streamed.trace[k].jacobianCondition, plain.trace[k].jacobianCondition,
+                            1e-6 * plain.trace[k].jacobianCondition)
+                    << "record " << k;
+            }
+        }
 }
