@@ -101,6 +101,9 @@ namespace {
 
 constexpr std::size_t kBlock = 512;           // rows per program call
 constexpr std::size_t kRowsPerThread = 16384;  // below this, one thread does the work
+// Rows per unit of work a thread takes (16 blocks). The chunks depend on the row count alone,
+// and their partial sums are added in chunk order, so results do not depend on the threads.
+constexpr std::size_t kChunkRows = 8192;
 
 bool isIdentifierStart(char c) { return std::isalpha(static_cast<unsigned char>(c)) || c == '_'; }
 bool isIdentifierChar(char c) { return std::isalnum(static_cast<unsigned char>(c)) || c == '_'; }
@@ -306,27 +309,29 @@ struct FitObjective::Impl {
     mutable std::unique_ptr<RowWorkers> workers;
     mutable PointCache cache;
 
-    // Runs fn(begin, end, part) over row ranges, one per thread.
+    std::size_t chunkCount() const { return std::max<std::size_t>(1, (rows + kChunkRows - 1) / kChunkRows); }
+
+    // Runs fn(begin, end, chunk) for every chunk of kChunkRows rows, on up to partsFor()
+    // threads. Each thread takes the next chunk when it is done with one, so a thread the
+    // system pauses (a busy machine) holds the pass up by one chunk at most.
     template <class Fn>
-    void forRowRanges(std::size_t parts, Fn&& fn) const {
+    void forRowChunks(Fn&& fn) const {
+        const std::size_t chunks = chunkCount();
+        const auto range = [&](std::size_t c) { fn(c * kChunkRows, std::min(rows, (c + 1) * kChunkRows), c); };
+        const std::size_t parts = std::min(partsFor(), chunks);
         if (parts <= 1) {
-            fn(std::size_t{0}, rows, std::size_t{0});
+            for (std::size_t c = 0; c < chunks; ++c) range(c);
             return;
         }
-        const std::size_t chunk = (rows + parts - 1) / parts;
+        std::atomic<std::size_t> next{0};
+        const std::function<void(std::size_t)> drain = [&](std::size_t) {
+            for (std::size_t c = next.fetch_add(1); c < chunks; c = next.fetch_add(1)) range(c);
+        };
         std::call_once(workersMade, [this] { workers = std::make_unique<RowWorkers>(threads - 1); });
-        if (parts <= workers->size()) {
-            const std::function<void(std::size_t)> task = [&](std::size_t t) {
-                fn(std::min(rows, t * chunk), std::min(rows, (t + 1) * chunk), t);
-            };
-            if (workers->run(parts, task)) return;
-        }
+        if (parts <= workers->size() && workers->run(parts, drain)) return;
         std::vector<std::thread> pool;
-        for (std::size_t t = 1; t < parts; ++t) {
-            const std::size_t b = std::min(rows, t * chunk), e = std::min(rows, (t + 1) * chunk);
-            pool.emplace_back([&fn, b, e, t] { fn(b, e, t); });
-        }
-        fn(std::size_t{0}, std::min(rows, chunk), std::size_t{0});
+        for (std::size_t t = 1; t < parts; ++t) pool.emplace_back([&drain, t] { drain(t); });
+        drain(0);
         for (auto& th : pool) th.join();
     }
 
@@ -350,10 +355,10 @@ struct FitObjective::Impl {
     // -J: its R is -R of J and its Q'r that of J.
     Partial accumulate(const Vector& x, int order, bool factor = false) const {
         const expr::Program& program = order == 0 ? valueProgram : order == 1 ? gradientProgram : hessianProgram;
-        const std::size_t parts = partsFor();
+        const std::size_t parts = chunkCount();
         std::vector<Partial> partials(parts);
         const int outputs = program.outputCount();
-        forRowRanges(parts, [&](std::size_t begin, std::size_t end, std::size_t part) {
+        forRowChunks([&](std::size_t begin, std::size_t end, std::size_t part) {
             Partial& acc = partials[part];
             if (order >= 1) acc.gradient = Vector::Zero(p);
             if (order >= 2) acc.hessian = Matrix::Zero(p, p);
@@ -481,8 +486,7 @@ struct FitObjective::Impl {
     // Model values (and derivatives, column-major rows x p) written straight into the outputs.
     void modelInto(const Vector& x, double* values, double* derivatives, Eigen::Index ld) const {
         const expr::Program& program = derivatives ? gradientProgram : valueProgram;
-        const std::size_t parts = partsFor();
-        forRowRanges(parts, [&](std::size_t begin, std::size_t end, std::size_t) {
+        forRowChunks([&](std::size_t begin, std::size_t end, std::size_t) {
             expr::Program::Workspace workspace = program.makeWorkspace();
             std::vector<double*> outs(static_cast<std::size_t>(program.outputCount()));
             std::vector<expr::Program::BlockInput> inputs;
