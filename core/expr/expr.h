@@ -96,6 +96,7 @@ public:
         std::vector<double*> rows;           // where each register's block lives this time
         std::vector<char> uniform;           // per instruction: same value at every point of the call
         std::uint64_t preparedFor = 0;       // id of the program whose constants are loaded
+        std::uint64_t blockPreparedFor = 0;  // the same for the block registers
     };
     // Points per internal block of evaluateBlock (registers of this many doubles).
     static constexpr std::size_t kBlockSize = 128;

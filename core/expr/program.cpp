@@ -268,22 +268,32 @@ int Program::inputCount() const { return impl_ ? impl_->inputs : 0; }
 int Program::outputCount() const { return impl_ ? static_cast<int>(impl_->outputRegister.size()) : 0; }
 std::size_t Program::instructionCount() const { return impl_ ? impl_->code.size() : 0; }
 
+// Single-point registers with the program's constants loaded. Cheap, so one workspace can
+// serve several programs in turn (each switch reloads the constants).
 static void prepare(const Program::Impl& p, Program::Workspace& ws) {
     if (ws.preparedFor == p.id) return;
-    const std::size_t B = Program::kBlockSize;
     ws.registerValues.assign(p.registers, 0.0);
+    for (const auto& [r, v] : p.constants) ws.registerValues[r] = v;
+    ws.preparedFor = p.id;
+}
+
+// Block registers (kBlockSize values each) with the constants broadcast: only block
+// evaluation pays for them.
+static void prepareBlock(const Program::Impl& p, Program::Workspace& ws) {
+    if (ws.blockPreparedFor == p.id) return;
+    const std::size_t B = Program::kBlockSize;
     ws.block.assign(static_cast<std::size_t>(p.registers) * B, 0.0);
     ws.rows.assign(p.registers, nullptr);
-    for (const auto& [r, v] : p.constants) {
-        ws.registerValues[r] = v;
-        std::fill_n(ws.block.data() + static_cast<std::size_t>(r) * B, B, v);
-    }
-    ws.preparedFor = p.id;
+    for (const auto& [r, v] : p.constants) std::fill_n(ws.block.data() + static_cast<std::size_t>(r) * B, B, v);
+    ws.blockPreparedFor = p.id;
 }
 
 Program::Workspace Program::makeWorkspace() const {
     Workspace ws;
-    if (impl_) prepare(*impl_, ws);
+    if (impl_) {
+        prepare(*impl_, ws);
+        prepareBlock(*impl_, ws);
+    }
     return ws;
 }
 
@@ -432,7 +442,7 @@ __attribute__((target_clones("avx2", "default"))) void runBlock(const Instructio
 void Program::evaluateBlock(const BlockInput* inputs, std::size_t count, double* const* outputs, Workspace& ws) const {
     if (!impl_ || count == 0) return;
     const Impl& p = *impl_;
-    prepare(p, ws);
+    prepareBlock(p, ws);
     const std::size_t B = kBlockSize;
     double* const storage = ws.block.data();
     double** rows = ws.rows.data();

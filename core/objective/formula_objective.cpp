@@ -36,7 +36,10 @@ std::vector<double> FormulaObjective::inputsFor(const Vector& x) const {
     return in;
 }
 
-FormulaObjective::~FormulaObjective() { delete spare_.exchange(nullptr); }
+FormulaObjective::Scratch& FormulaObjective::threadScratch() {
+    thread_local Scratch scratch;
+    return scratch;
+}
 
 // A point of the wrong size reads NaN for the missing coordinates rather than out of bounds.
 const double* FormulaObjective::inputs(const Vector& x, Scratch& s) const {
@@ -48,57 +51,28 @@ const double* FormulaObjective::inputs(const Vector& x, Scratch& s) const {
     return s.inputs.data();
 }
 
-std::unique_ptr<FormulaObjective::Scratch> FormulaObjective::acquire() const {
-    if (Scratch* s = spare_.exchange(nullptr, std::memory_order_acquire)) return std::unique_ptr<Scratch>(s);
-    {
-        std::lock_guard lock(poolMutex_);
-        if (!pool_.empty()) {
-            auto s = std::move(pool_.back());
-            pool_.pop_back();
-            return s;
-        }
-    }
-    auto s = std::make_unique<Scratch>();
-    s->valueWs = valueProgram_.makeWorkspace();
-    s->gradientWs = gradientProgram_.makeWorkspace();
-    s->hessianWs = derivatives_.program().makeWorkspace();
-    return s;
-}
-
-void FormulaObjective::release(std::unique_ptr<Scratch> s) const {
-    Scratch* empty = nullptr;
-    if (spare_.compare_exchange_strong(empty, s.get(), std::memory_order_release, std::memory_order_relaxed)) {
-        s.release();
-        return;
-    }
-    std::lock_guard lock(poolMutex_);
-    pool_.push_back(std::move(s));
-}
-
 double FormulaObjective::value(const Vector& x) const {
-    auto s = acquire();
+    Scratch* s = &threadScratch();
     s->outputs.resize(1);
     valueProgram_.evaluate(inputs(x, *s), s->outputs.data(), s->valueWs);
     const double f = s->outputs[0];
-    release(std::move(s));
     return f;
 }
 
 double FormulaObjective::valueGradient(const Vector& x, Vector& gradient) const {
     const int n = dimension();
-    auto s = acquire();
+    Scratch* s = &threadScratch();
     s->outputs.resize(1 + n);
     gradientProgram_.evaluate(inputs(x, *s), s->outputs.data(), s->gradientWs);
     gradient.resize(n);
     for (int i = 0; i < n; ++i) gradient[i] = s->outputs[1 + i];
     const double f = s->outputs[0];
-    release(std::move(s));
     return f;
 }
 
 double FormulaObjective::valueGradientHessian(const Vector& x, Vector& gradient, Matrix& hessian) const {
     const int n = dimension();
-    auto s = acquire();
+    Scratch* s = &threadScratch();
     const auto& program = derivatives_.program();
     s->outputs.resize(program.outputCount());
     program.evaluate(inputs(x, *s), s->outputs.data(), s->hessianWs);
@@ -109,7 +83,6 @@ double FormulaObjective::valueGradientHessian(const Vector& x, Vector& gradient,
     for (int i = 0; i < n; ++i)
         for (int j = i; j < n; ++j, ++k) hessian(i, j) = hessian(j, i) = s->outputs[k];
     const double f = s->outputs[0];
-    release(std::move(s));
     return f;
 }
 

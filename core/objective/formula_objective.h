@@ -20,7 +20,6 @@ public:
     // Throws expr::FormulaError for a formula that cannot be read.
     FormulaObjective(const std::string& formula, std::vector<std::string> variables,
                      std::vector<std::pair<std::string, double>> constants = {});
-    ~FormulaObjective() override;
     FormulaObjective(const FormulaObjective&) = delete;
     FormulaObjective& operator=(const FormulaObjective&) = delete;
 
@@ -47,21 +46,17 @@ private:
     expr::Program valueProgram_;     // f only
     expr::Program gradientProgram_;  // f and gradient
 
-    // Scratch space for concurrent callers: taken from and returned to a small pool.
+    // Scratch space: one per thread, shared by every formula objective on that thread (a
+    // workspace reloads a program's constants when another program used it last), so
+    // concurrent callers never share and no call takes a lock or allocates.
     struct Scratch {
         std::vector<double> inputs, outputs;
         expr::Program::Workspace valueWs, gradientWs, hessianWs;
     };
-    std::unique_ptr<Scratch> acquire() const;
+    static Scratch& threadScratch();
     // The program's inputs for x: x itself when it has the right size and there are no
     // constants (no copy), else x and the constants copied into the scratch space.
     const double* inputs(const Vector& x, Scratch& s) const;
-    void release(std::unique_ptr<Scratch> s) const;
-    // One scratch space waits here, taken and given back without a lock (the common case: one
-    // solver calling at a time); further ones for concurrent callers live in the pool.
-    mutable std::atomic<Scratch*> spare_{nullptr};
-    mutable std::mutex poolMutex_;
-    mutable std::vector<std::unique_ptr<Scratch>> pool_;
 };
 
 }  // namespace sw
