@@ -333,3 +333,23 @@ TEST(FitLeastSquaresFactor, LeastSquaresMethodsTakeTheSameStepsWithOrWithoutIt) 
             }
         }
 }
+
+TEST(FitLeastSquaresFactor, GivesTheSameBitsOnOneThreadAsOnTwo) {
+    // Rows go to threads in fixed chunks whose sums are added in chunk order.
+    auto table = exponentialTable(50000);
+    FitObjective one(table, exponentialFit(1, true)), two(table, exponentialFit(2, true));
+    Vector x(4);
+    x << 1.5, 1.0, 1.0, 0.3;
+    Matrix r1, r2;
+    Vector q1, q2, g1, g2;
+    double s1 = 0, s2 = 0;
+    ASSERT_TRUE(one.leastSquaresFactor(x, r1, q1, s1));
+    ASSERT_TRUE(two.leastSquaresFactor(x, r2, q2, s2));
+    EXPECT_EQ(r1, r2);
+    EXPECT_EQ(q1, q2);
+    EXPECT_EQ(s1, s2);
+    Matrix h1, h2;
+    EXPECT_EQ(one.valueGradientHessian(x, g1, h1), two.valueGradientHessian(x, g2, h2));
+    EXPECT_EQ(g1, g2);
+    EXPECT_EQ(h1, h2);
+}
