@@ -292,5 +292,101 @@ TEST(Nesterov, StepsFollowTheLookAheadForm) {
     }
 }
 
+TEST(DampedNewton, SteepestDescentFallbackStartsFromAStepOfLengthAtMostOne) {
+    // Near Himmelblau's maximum the gradient is large; a first trial alpha = 1 along -g would
+    // jump far. The fallback's first trial is a step of length at most 1 (N&W eq. 3.60 later on).
+    const FunctionObjective f = problems::himmelblau();
+    solve::Run run = solve("damped-newton", f, point(-0.3, -0.9));
+    ASSERT_GE(run.trace.size(), 2u);
+    ASSERT_EQ(run.trace[0].stepKind, StepKind::Gradient);
+    ASSERT_FALSE(run.trace[0].trials.empty());
+    const double firstTrialLength = run.trace[0].trials.front().alpha * run.trace[0].gradient.norm();
+    EXPECT_LE(firstTrialLength, 1.0 + 1e-12);
+}
+
+TEST(NelderMead, RelativeStartSimplexScalesEachCoordinate) {
+    // Vertex i+1 = x0 with x_i multiplied by 1 + initial_size, or zero_size when x_i = 0
+    // (common practice, no published source). The first record holds the best vertex.
+    const FunctionObjective f = problems::convexQuadratic();
+    StoppingRules rules;
+    rules.maxIterations = 1;
+    for (const Vector& start : {point(2, -1), point(0, 3)}) {
+        solve::Run relative = solve("nelder-mead", f, start, {}, rules);
+        const double fStart = f.value(start);
+        Vector a = start, b = start;
+        a[0] = start[0] != 0 ? 1.05 * start[0] : 0.00025;
+        b[1] = start[1] != 0 ? 1.05 * start[1] : 0.00025;
+        const double best = std::min({fStart, f.value(a), f.value(b)});
+        EXPECT_DOUBLE_EQ(relative.trace[0].value, best);
+        solve::Run absolute = solve("nelder-mead", f, start, {{"start_simplex", "absolute"}}, rules);
+        a = start, b = start;
+        a[0] += 0.05 * std::max(1.0, std::abs(start[0]));
+        b[1] += 0.05 * std::max(1.0, std::abs(start[1]));
+        EXPECT_DOUBLE_EQ(absolute.trace[0].value, std::min({fStart, f.value(a), f.value(b)}));
+    }
+}
+
+TEST(ConjugateGradient, PolakRibiereRestartsPeriodicallyOnlyWhenAsked) {
+    const FunctionObjective f = problems::rosenbrock();
+    const solve::Run plain = solve("cg-polak-ribiere", f, point(-1.2, 1));
+    for (const IterationRecord& r : plain.trace) EXPECT_EQ(r.note.find("restart after"), std::string::npos) << r.note;
+    const solve::Run periodic =
+        solve("cg-polak-ribiere", f, point(-1.2, 1), {{"periodic_restart", "true"}, {"restart_every", "3"}});
+    bool sawPeriodic = false;
+    for (const IterationRecord& r : periodic.trace) sawPeriodic = sawPeriodic || r.note.find("restart after 3 steps") != std::string::npos;
+    EXPECT_TRUE(sawPeriodic);
+}
+
+TEST(Lbfgs, RingBufferGivesTheTwoLoopDirectionAfterTheMemoryWrapsAround) {
+    // With memory 2 the newest pairs overwrite the oldest; each direction must still be the
+    // two-loop recursion (Nocedal & Wright Alg. 7.4) over the last two accepted (s, y) pairs.
+    const FunctionObjective f = problems::rosenbrock();
+    solve::Run run = solve("lbfgs", f, point(-1.2, 1), {{"memory", "2"}});
+    ASSERT_GE(run.trace.size(), 8u);
+    std::vector<Vector> s, y;
+    for (std::size_t k = 0; k + 1 < run.trace.size(); ++k) {
+        const IterationRecord& r = run.trace[k];
+        const IterationRecord& next = run.trace[k + 1];
+        // step = x_{k+1} - x_k loses digits once it is tiny against x: compare while it is not
+        // (a wrong pair order would differ in the leading digits).
+        if (!s.empty() && r.note.empty() && r.step.norm() > 1e-6 * (1 + r.x.norm())) {
+            // Reference two-loop over the stored pairs (oldest first).
+            Vector q = r.gradient;
+            std::vector<double> alpha(s.size());
+            for (std::size_t i = s.size(); i-- > 0;) {
+                alpha[i] = s[i].dot(q) / y[i].dot(s[i]);
+                q -= alpha[i] * y[i];
+            }
+            q *= s.back().dot(y.back()) / y.back().squaredNorm();
+            for (std::size_t i = 0; i < s.size(); ++i) q += (alpha[i] - y[i].dot(q) / y[i].dot(s[i])) * s[i];
+            const Vector direction = -q;
+            const Vector step = r.step / r.stepLength;
+            EXPECT_NEAR((step - direction).norm() / direction.norm(), 0, 1e-7) << "iteration " << k;
+        }
+        const Vector sk = next.x - r.x, yk = next.gradient - r.gradient;
+        if (yk.dot(sk) > 1e-12 * sk.norm() * yk.norm()) {
+            s.push_back(sk);
+            y.push_back(yk);
+            if (s.size() > 2) {
+                s.erase(s.begin());
+                y.erase(y.begin());
+            }
+        }
+    }
+}
+
+TEST(Solve, MovingTheSolverInGivesTheSameRunAsSolvingByReference) {
+    const FunctionObjective f = problems::rosenbrock();
+    SolverOrError a = makeSolver("bfgs", f, point(-1.2, 1));
+    SolverOrError b = makeSolver("bfgs", f, point(-1.2, 1));
+    ASSERT_TRUE(a.solver && b.solver);
+    const solve::Run byReference = solve(*a.solver);
+    const solve::Run byMove = solve(std::move(b.solver));
+    EXPECT_EQ(byMove.trace.size(), byReference.trace.size());
+    EXPECT_EQ(byMove.termination, byReference.termination);
+    EXPECT_EQ(byMove.x, byReference.x);
+    EXPECT_EQ(a.solver->run().trace.size(), byReference.trace.size()) << "solving by reference leaves the run in place";
+}
+
 }  // namespace
 }  // namespace sw::solve
