@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <chrono>
 #include <cctype>
 #include <cmath>
 #include <condition_variable>
@@ -210,7 +211,7 @@ public:
         } catch (...) {
             failure = std::current_exception();  // the workers still use task: wait for them first
         }
-        for (int spin = 0; spin < kSpins && pending_.load(std::memory_order_acquire) != 0; ++spin) pause();
+        watch([this] { return pending_.load(std::memory_order_acquire) == 0; });
         if (pending_.load(std::memory_order_acquire) != 0) {
             std::unique_lock<std::mutex> lock(mutex_);
             done_.wait(lock, [this] { return pending_.load(std::memory_order_acquire) == 0; });
@@ -221,22 +222,26 @@ public:
     }
 
 private:
-    static constexpr int kSpins = 4000;  // about 20-50 microseconds of pause instructions
-
-    static void pause() {
+    // Spins until done() or about 30 microseconds have passed (a pause instruction takes from
+    // about 10 to about 140 cycles depending on the processor, so the limit is a time).
+    template <class Done>
+    static void watch(Done done) {
+        const auto until = std::chrono::steady_clock::now() + std::chrono::microseconds(30);
+        for (;;) {
+            for (int i = 0; i < 16; ++i) {
+                if (done()) return;
 #if defined(__x86_64__) || defined(__i386__)
-        __builtin_ia32_pause();
-#else
-        std::this_thread::yield();
+                __builtin_ia32_pause();
 #endif
+            }
+            if (std::chrono::steady_clock::now() >= until) return;
+        }
     }
 
     void work(std::size_t index) {
         unsigned long seen = 0;
         for (;;) {
-            for (int spin = 0; spin < kSpins && generation_.load(std::memory_order_acquire) == seen && !stop_.load();
-                 ++spin)
-                pause();
+            watch([&] { return generation_.load(std::memory_order_acquire) != seen || stop_.load(); });
             if (generation_.load(std::memory_order_acquire) == seen && !stop_.load()) {
                 std::unique_lock<std::mutex> lock(mutex_);
                 wake_.wait(lock, [&] { return stop_.load() || generation_.load(std::memory_order_acquire) != seen; });
