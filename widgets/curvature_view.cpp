@@ -36,6 +36,7 @@ CurvatureView::CurvatureView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
+    enableLegendReflow(3);
     applyPlotStyle(plot_);
     rebuild();
 }

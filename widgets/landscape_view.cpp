@@ -76,6 +76,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
+    enableLegendReflow(3);
     plot_->plotLayout()->setRowStretchFactor(1, 0.001);
 
     startCurve_ = new QCPCurve(plot_->xAxis, plot_->yAxis);

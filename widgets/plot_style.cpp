@@ -2,7 +2,9 @@
 
 #include <QEvent>
 #include <QFileInfo>
+#include <QHelpEvent>
 #include <QSvgGenerator>
+#include <QToolTip>
 #include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
@@ -252,6 +254,98 @@ bool exportPlot(QCustomPlot* plot, const QString& path, int w, int h, QString* e
     return true;
 }
 
+ElidedLegendItem::ElidedLegendItem(QCPLegend* legend, QCPAbstractPlottable* plottable)
+    : QCPPlottableLegendItem(legend, plottable) {}
+
+QString ElidedLegendItem::fullName() const { return mPlottable ? mPlottable->name() : QString(); }
+
+QString ElidedLegendItem::shownName() const {
+    const QString name = fullName();
+    if (limit_ <= 0) return name;
+    return QFontMetrics(getFont()).elidedText(name, Qt::ElideRight, limit_);
+}
+
+bool ElidedLegendItem::isElided() const { return shownName() != fullName(); }
+
+// QCustomPlot draws and measures the plottable's name; for the few microseconds of drawing
+// the name is swapped for its elided form (drawLegendIcon is not reachable from here, so the
+// base class must do the drawing).
+void ElidedLegendItem::draw(QCPPainter* painter) {
+    if (!mPlottable || !isElided()) return QCPPlottableLegendItem::draw(painter);
+    const QString full = mPlottable->name();
+    mPlottable->setName(shownName());
+    QCPPlottableLegendItem::draw(painter);
+    mPlottable->setName(full);
+}
+
+QSize ElidedLegendItem::minimumOuterSizeHint() const {
+    if (!mPlottable || !isElided()) return QCPPlottableLegendItem::minimumOuterSizeHint();
+    const QString full = mPlottable->name();
+    mPlottable->setName(shownName());
+    const QSize size = QCPPlottableLegendItem::minimumOuterSizeHint();
+    mPlottable->setName(full);
+    return size;
+}
+
+void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns) {
+    QCPLegend* legend = plot->legend;
+    // itemCount() counts the cells of the legend's grid; a cell past the last entry is empty.
+    std::vector<QCPPlottableLegendItem*> entries;
+    bool plain = false;
+    for (int i = 0; i < legend->itemCount(); ++i) {
+        auto* entry = qobject_cast<QCPPlottableLegendItem*>(legend->item(i));
+        if (!entry) continue;
+        entries.push_back(entry);
+        if (!dynamic_cast<ElidedLegendItem*>(entry)) plain = true;
+    }
+    if (entries.empty()) return;
+    std::vector<ElidedLegendItem*> items;
+    if (plain) {
+        std::vector<QCPAbstractPlottable*> plottables;
+        for (QCPPlottableLegendItem* entry : entries) plottables.push_back(entry->plottable());
+        legend->clearItems();
+        for (QCPAbstractPlottable* p : plottables) {
+            auto* item = new ElidedLegendItem(legend, p);
+            legend->addItem(item);
+            items.push_back(item);
+        }
+    } else {
+        for (QCPPlottableLegendItem* entry : entries) items.push_back(static_cast<ElidedLegendItem*>(entry));
+    }
+    const int n = static_cast<int>(items.size());
+    std::vector<int> widths;
+    for (ElidedLegendItem* item : items) {
+        item->setTextWidthLimit(0);
+        widths.push_back(static_cast<QCPLayoutElement*>(item)->minimumOuterSizeHint().width());
+    }
+    const int room = availableWidth - legend->margins().left() - legend->margins().right();
+    int columns = 1;
+    for (int c = std::min(maxColumns, n); c >= 1; --c) {
+        std::vector<int> columnWidth(static_cast<std::size_t>(c), 0);
+        for (int i = 0; i < n; ++i)
+            columnWidth[static_cast<std::size_t>(i % c)] =
+                std::max(columnWidth[static_cast<std::size_t>(i % c)], widths[static_cast<std::size_t>(i)]);
+        int total = (c - 1) * legend->columnSpacing();
+        for (int w : columnWidth) total += w;
+        if (total <= room || c == 1) {
+            columns = c;
+            if (c == 1 && total > room) {
+                // One column is still too wide: elide each name to what is left beside its icon.
+                for (ElidedLegendItem* item : items) {
+                    const int decoration = legend->iconSize().width() + legend->iconTextPadding() +
+                                           item->margins().left() + item->margins().right();
+                    item->setTextWidthLimit(std::max(24, room - decoration));
+                }
+            }
+            break;
+        }
+    }
+    if (legend->wrap() != columns || plain) {
+        legend->setWrap(columns);
+        legend->setFillOrder(QCPLayoutGrid::foColumnsFirst, true);
+    }
+}
+
 PlotView::PlotView(QWidget* parent) : QWidget(parent) {
     layout_ = new QVBoxLayout(this);
     layout_->setContentsMargins(0, 0, 0, 0);
@@ -260,6 +354,7 @@ PlotView::PlotView(QWidget* parent) : QWidget(parent) {
     plot_->setMinimumSize(160, 120);
     plot_->setAntialiasedElements(QCP::aePlottables | QCP::aeItems | QCP::aeScatters);
     layout_->addWidget(plot_, 1);
+    plot_->installEventFilter(this);
     connect(plot_, &QCustomPlot::mousePress, this, [this](QMouseEvent* event) { clickPressPixel_ = event->position(); });
     connect(plot_, &QCustomPlot::mouseRelease, this, [this](QMouseEvent* event) {
         if (event->button() != Qt::LeftButton || pickPoints_.empty()) return;
@@ -312,5 +407,26 @@ void PlotView::changeEvent(QEvent* event) {
 }
 
 void PlotView::queueReplot() { plot_->replot(QCustomPlot::rpQueuedReplot); }
+
+void PlotView::enableLegendReflow(int maxColumns) {
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this, maxColumns] {
+        if (!plot_->legend->visible()) return;
+        // The legend row is as wide as the main axis rect's column (from the last layout;
+        // before the first one, the whole plot); 8 px for the row's own margins.
+        const int column = plot_->axisRect()->outerRect().width();
+        fitLegendToWidth(plot_, (column > 0 ? column : plot_->width()) - 8, maxColumns);
+    });
+}
+
+bool PlotView::eventFilter(QObject* watched, QEvent* event) {
+    if (watched == plot_ && event->type() == QEvent::ToolTip) {
+        auto* help = static_cast<QHelpEvent*>(event);
+        if (auto* item = dynamic_cast<ElidedLegendItem*>(plot_->layoutElementAt(help->pos()))) {
+            QToolTip::showText(help->globalPos(), item->fullName(), plot_);
+            return true;
+        }
+    }
+    return QWidget::eventFilter(watched, event);
+}
 
 }  // namespace sw::widgets

@@ -76,6 +76,30 @@ QSharedPointer<TransformTicker> symmetricLogTicker(double c);
 // (1..20000) or the file cannot be written.
 bool exportPlot(QCustomPlot* plot, const QString& path, int w, int h, QString* error);
 
+// A legend entry that elides its text to a width limit (0: no limit); PlotView shows the
+// full name as a tooltip when the pointer rests on it.
+class ElidedLegendItem : public QCPPlottableLegendItem {
+public:
+    ElidedLegendItem(QCPLegend* legend, QCPAbstractPlottable* plottable);
+    void setTextWidthLimit(int pixels) { limit_ = pixels; }
+    int textWidthLimit() const { return limit_; }
+    QString fullName() const;
+    bool isElided() const;
+
+protected:
+    void draw(QCPPainter* painter) override;
+    QSize minimumOuterSizeHint() const override;
+
+private:
+    QString shownName() const;
+    int limit_ = 0;
+};
+
+// Lays the legend of `plot` out in as many columns (up to maxColumns) as fit in
+// `availableWidth` pixels, filled row by row; when even one column is too narrow, names are
+// elided. Plain plottable entries are replaced by ElidedLegendItem on the way.
+void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns = 3);
+
 // Common base of the plot views: holds the snapshot and the selection, owns the plot,
 // and re-applies the palette when the theme changes. Replots are queued.
 class PlotView : public QWidget {
@@ -101,7 +125,11 @@ protected:
     // Move only the selection-dependent items; the default rebuilds.
     virtual void selectionChanged() { rebuild(); }
     void changeEvent(QEvent* event) override;
+    bool eventFilter(QObject* watched, QEvent* event) override;
     void queueReplot();
+    // For views whose legend sits in its own row under the plot: before each replot the
+    // legend takes as many columns as the width allows, and elides names when one is too many.
+    void enableLegendReflow(int maxColumns = 3);
 
     // Click-to-select: views list their clickable iterates here (plot coordinates on the
     // given axes); a click within a few pixels of one emits selectionRequested.

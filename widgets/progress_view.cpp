@@ -1,5 +1,6 @@
 #include "widgets/progress_view.h"
 
+#include <QApplication>
 #include <QComboBox>
 #include <QHBoxLayout>
 #include <QLabel>
@@ -34,6 +35,18 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
+    enableLegendReflow(3);
+
+    // What f_best is, in a line above the plots: as the axis label it was clipped whenever
+    // the panel was short.
+    plot_->plotLayout()->insertRow(0);
+    bestNote_ = new QCPTextElement(plot_, QString());
+    QFont noteFont = QApplication::font();
+    noteFont.setPointSizeF(std::max(7.0, noteFont.pointSizeF() * 0.9));
+    bestNote_->setFont(noteFont);
+    bestNote_->setMargins(QMargins(4, 2, 4, 0));
+    plot_->plotLayout()->addElement(0, 0, bestNote_);
+    plot_->plotLayout()->setRowStretchFactor(0, 0.001);
 
     auto* row = new QHBoxLayout;
     row->setContentsMargins(4, 0, 4, 2);
@@ -41,6 +54,9 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     axisChoice_ = new QComboBox(this);
     axisChoice_->addItem(tr("iteration"));
     axisChoice_->addItem(tr("evaluations (value + gradient + Hessian)"));
+    // The choice may shrink so the panel can be docked narrow.
+    axisChoice_->setSizeAdjustPolicy(QComboBox::AdjustToMinimumContentsLengthWithIcon);
+    axisChoice_->setMinimumContentsLength(8);
     axisChoice_->setToolTip(tr("Plot progress against iterations, or against the work spent in evaluations"));
     label->setBuddy(axisChoice_);
     row->addWidget(label);
@@ -52,6 +68,8 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     applyPlotStyle(plot_);
     rebuild();
 }
+
+QString ProgressView::bestNoteText() const { return bestNote_->text(); }
 
 void ProgressView::setAgainstEvaluations(bool on) {
     if (on == againstEvaluations_) return;
@@ -126,7 +144,9 @@ void ProgressView::rebuild() {
     if (!std::isfinite(best_)) best_ = 0;
     floor_ = std::isfinite(smallestGap) ? smallestGap / 10 : 1e-16 * std::max(1.0, std::abs(best_));
     const double gradientFloor = std::isfinite(smallestGradient) ? smallestGradient / 10 : 1e-16;
-    gy->setLabel(tr("f − f_best, f_best = %1\n(zero drawn at %2)").arg(formatNumber(best_), formatNumber(floor_, 2)));
+    gy->setLabel(tr("f − f_best"));
+    bestNote_->setText(tr("f_best = %1 (lowest f seen)\nzero gap drawn at %2")
+                           .arg(formatNumber(best_), formatNumber(floor_, 2)));
 
     double xMax = 1;
     double gLo = std::numeric_limits<double>::infinity(), gHi = 0, dLo = gLo, dHi = 0;

@@ -22,6 +22,7 @@ public:
     QCPAxisRect* gapRect() const { return gapRect_; }
     QCPAxisRect* gradientRect() const { return gradientRect_; }
     QPointF highlightPosition() const;  // in the f - f_best panel
+    QString bestNoteText() const;       // "f_best = ... (the lowest f of any method) ..."
 
 signals:
     void againstEvaluationsChanged(bool on);
@@ -38,6 +39,7 @@ private:
     double best_ = 0;
     double floor_ = 1e-16;
     QComboBox* axisChoice_ = nullptr;
+    QCPTextElement* bestNote_ = nullptr;  // f_best and the floor, above the plots
     QCPAxisRect* gapRect_ = nullptr;
     QCPAxisRect* gradientRect_ = nullptr;
     std::vector<QCPGraph*> gapGraphs_;

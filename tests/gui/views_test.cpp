@@ -142,6 +142,7 @@ private slots:
     void curvatureDrawsEigenvaluesOnSymmetricLogScale();
     void symmetricLogRoundTripsAndLabelsRealValues();
     void progressDrawsGapAndGradientForEveryTrack();
+    void progressLegendFitsANarrowDockAndKeepsFullNamesInTooltips();
     void sliceShowsTrueModelArmijoTrialsAndStep();
     void sliceAlongAnEigenvector();
     void everyViewExportsValidPngSvgAndPdf();
@@ -429,6 +430,50 @@ void ViewsTest::progressDrawsGapAndGradientForEveryTrack() {
     QCOMPARE(view.highlightPosition().x(), static_cast<double>(snapshot->tracks[1].run->trace[3].evaluations.total()));
     view.setAgainstEvaluations(false);
     keepImage(view, "progress");
+}
+
+void ViewsTest::progressLegendFitsANarrowDockAndKeepsFullNamesInTooltips() {
+    auto snapshot = valleySnapshot();
+    const QStringList labels = {"steepest descent with a strong Wolfe line search", "BFGS from H0 = I",
+                                "dogleg trust region, initial radius 0.1"};
+    for (int t = 0; t < 3; ++t) snapshot->tracks[static_cast<std::size_t>(t)].label = labels[t];
+    ProgressView view;
+    view.setSnapshot(snapshot);
+    QCPLegend* legend = view.plot()->legend;
+    auto everyEntryInside = [&](int width) {
+        for (int i = 0; i < legend->itemCount(); ++i) {
+            const QRect r = legend->item(i)->outerRect();
+            if (r.left() < 0 || r.right() > width) return false;
+        }
+        return true;
+    };
+    // Wide: the names fit side by side, none shortened.
+    view.resize(1100, 420);
+    view.show();
+    view.plot()->replot();
+    view.plot()->replot();  // the second layout sees the first one's column width
+    QVERIFY(legend->wrap() > 1);
+    QVERIFY(everyEntryInside(view.plot()->width()));
+    for (int i = 0; i < legend->itemCount(); ++i)
+        if (auto* item = dynamic_cast<ElidedLegendItem*>(legend->item(i))) QVERIFY(!item->isElided());
+    // Narrow, as in a slim dock: one column, names shortened to fit, full names kept.
+    for (int width : {360, 220}) {
+        view.resize(width, 420);
+        view.plot()->replot();
+        view.plot()->replot();
+        QCOMPARE(legend->wrap(), 1);
+        QVERIFY2(everyEntryInside(view.plot()->width()), qPrintable(QString::number(width)));
+        QStringList shown;
+        for (int i = 0; i < legend->itemCount(); ++i)
+            if (auto* item = dynamic_cast<ElidedLegendItem*>(legend->item(i))) shown << item->fullName();
+        for (const QString& label : labels) QVERIFY(shown.contains(label));
+    }
+    keepImage(view, "progress-narrow");
+    bool anyElided = false;
+    for (int i = 0; i < legend->itemCount(); ++i)
+        if (auto* item = dynamic_cast<ElidedLegendItem*>(legend->item(i))) anyElided = anyElided || item->isElided();
+    qInfo("narrow plot: %d px wide", view.plot()->width());
+    QVERIFY(anyElided);
 }
 
 void ViewsTest::sliceShowsTrueModelArmijoTrialsAndStep() {
