@@ -25,7 +25,8 @@ struct RadiusSettings {
     double eta = 0.1;            // accept the step when rho > eta (N&W: eta in [0, 1/4))
     double shrinkBelow = 0.25;   // rho below this shrinks the region
     double expandAbove = 0.75;   // rho above this, with a step on the boundary, expands it
-    double shrinkFactor = 0.25;  // new radius = shrinkFactor * |p| on a shrink
+    double shrinkFactor = 0.25;  // on a shrink: new radius = shrinkFactor * radius (or * |p|, see below)
+    bool shrinkFromStep = false; // shrink from min(radius, |p|) instead of the radius (N&W Alg. 4.1 uses the radius)
     double expandFactor = 2.0;   // new radius = expandFactor * radius on an expansion
     double minRadius = 1e-13;    // collapse when the radius < minRadius * (1 + |x|)
 
@@ -43,7 +44,7 @@ struct RadiusSettings {
     }
 };
 
-std::vector<OptionSpec> radiusOptionSpecs(double etaDefault) {
+std::vector<OptionSpec> radiusOptionSpecs(double etaDefault, int shrinkFromDefault) {
     return {
         realOption("initial_radius", "trust radius of the first step", 1.0, 0, kUnbounded, true, false),
         realOption("max_radius", "the radius never grows past this", 1e10, 0, kUnbounded, true, false),
@@ -52,7 +53,11 @@ std::vector<OptionSpec> radiusOptionSpecs(double etaDefault) {
         realOption("shrink_below", "a ratio below this shrinks the region", 0.25, 0, 1, true, true),
         realOption("expand_above", "a ratio above this, with the step on the boundary, expands the region", 0.75, 0,
                    1, true, true),
-        realOption("shrink_factor", "on a shrink the new radius is this times the step length", 0.25, 0, 1, true,
+        choiceOption("shrink_from",
+                     "a shrink multiplies this by shrink_factor: the radius (Nocedal & Wright Alg. 4.1) or the step "
+                     "length when it is shorter",
+                     {"radius", "step"}, shrinkFromDefault),
+        realOption("shrink_factor", "on a shrink the new radius is this times the radius or step (see shrink_from)", 0.25, 0, 1, true,
                    true),
         realOption("expand_factor", "on an expansion the radius is multiplied by this", 2.0, 1, kUnbounded, true,
                    false),
@@ -69,6 +74,7 @@ RadiusSettings radiusSettings(const std::vector<OptionSpec>& specs, const Option
     s.shrinkBelow = optionNumber(specs, v, "shrink_below");
     s.expandAbove = optionNumber(specs, v, "expand_above");
     s.shrinkFactor = optionNumber(specs, v, "shrink_factor");
+    s.shrinkFromStep = optionChoice(specs, v, "shrink_from") == "step";
     s.expandFactor = optionNumber(specs, v, "expand_factor");
     s.minRadius = optionNumber(specs, v, "min_radius");
     return s;
@@ -164,7 +170,7 @@ public:
         // Nocedal & Wright (2006), Alg. 4.1.
         const double before = radius_;
         if (trial.ratio < settings_.shrinkBelow) {
-            radius_ = settings_.shrinkFactor * std::min(radius_, stepNorm);
+            radius_ = settings_.shrinkFactor * (settings_.shrinkFromStep ? std::min(radius_, stepNorm) : radius_);
         } else if (trial.ratio > settings_.expandAbove && stepNorm >= 0.99 * radius_) {
             radius_ = std::min(settings_.expandFactor * radius_, settings_.maxRadius);
         }
@@ -321,7 +327,8 @@ public:
         if (trial.ratio > settings_.radius.expandAbove) {
             if (stepNorm > 0.8 * radius_) radius_ = std::min(settings_.radius.expandFactor * radius_, settings_.radius.maxRadius);
         } else if (!(trial.ratio >= settings_.radius.shrinkBelow)) {
-            radius_ = settings_.radius.shrinkFactor * std::min(radius_, std::max(stepNorm, kEps));
+            radius_ = settings_.radius.shrinkFactor *
+                      (settings_.radius.shrinkFromStep ? std::min(radius_, std::max(stepNorm, kEps)) : radius_);
         }
         if (radius_ < before) appendNote(record.note, "radius shrinks to " + shortNumber(radius_));
         else if (radius_ > before) appendNote(record.note, "radius grows to " + shortNumber(radius_));
@@ -355,7 +362,7 @@ MethodInfo trustInfo(std::string id, std::string summary, std::vector<OptionSpec
     info.summary = std::move(summary);
     info.needsGradient = true;
     info.needsHessian = true;
-    info.options = radiusOptionSpecs(0.1);
+    info.options = radiusOptionSpecs(0.1, 0);  // shrink from the radius, as N&W Alg. 4.1
     for (OptionSpec& s : extra) info.options.push_back(std::move(s));
     return info;
 }
@@ -431,7 +438,7 @@ std::vector<MethodRegistration> trustRegionMethods() {
         info.summary = "symmetric rank-one quasi-Newton model in a trust region (Nocedal & Wright 2006, Alg. 6.2)";
         info.needsGradient = true;
         info.needsHessian = false;
-        info.options = radiusOptionSpecs(1e-4);
+        info.options = radiusOptionSpecs(1e-4, 1);  // SR1 keeps shrinking from the step (its records so far)
         info.options.push_back(realOption("skip_threshold",
                                           "r: the update is skipped when |s'(y - Bs)| < r |s| |y - Bs|", 1e-8, 0, 1,
                                           true, true));

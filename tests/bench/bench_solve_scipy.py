@@ -34,9 +34,9 @@ BELOW_TARGET = {
                            "mostly the exact Hessian, the record and its note",
 }
 MORE_ITERATIONS = {
-    "trust-region-exact": "radius update: ours shrinks to 1/4 of the step length, SciPy to 1/4 of the radius",
-    "trust-region-cg": "radius update: ours shrinks to 1/4 of the step length, SciPy to 1/4 of the radius",
-    "trust-region-dogleg": "radius update: ours shrinks to 1/4 of the step length, SciPy to 1/4 of the radius",
+    "trust-region-exact": "same radius update (N&W Alg. 4.1); the subproblem solvers stop at different accuracies",
+    "trust-region-cg": "same radius update (N&W Alg. 4.1); Steihaug-Toint stopping tolerances differ",
+    "trust-region-dogleg": "same radius update (N&W Alg. 4.1); ours shifts an indefinite Hessian, SciPy stops",
     "bfgs": "first trial step: SciPy guesses it from the last decrease, ours tries the full step alpha = 1",
     "lbfgs": "L-BFGS-B's own line search and projected-gradient test (max norm)",
     "cg-polak-ribiere": "line search: ours c2 = 0.02 with orthogonality restarts, SciPy c2 = 0.4 with a descent test",

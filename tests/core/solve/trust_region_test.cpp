@@ -177,5 +177,24 @@ TEST(TrustRegionOptions, RejectsBadValuesWithTheOptionAndItsRange) {
     EXPECT_NE(d.error.find("exact, cg"), std::string::npos) << d.error;
 }
 
+// Nocedal & Wright (2006), Alg. 4.1: a step with rho < 1/4 shrinks the radius to a quarter of
+// the radius; shrink_from=step takes a quarter of the step length when that is shorter.
+TEST(TrustRegion, ShrinksFromTheRadiusByDefaultAndFromTheStepWhenAsked) {
+    const FunctionObjective f = problems::rosenbrock();
+    for (const char* from : {"radius", "step"}) {
+        SCOPED_TRACE(from);
+        const RunResult run = solve("trust-region-cg", f, problems::point(-1.2, 1), {{"shrink_from", from}});
+        int shrinks = 0;
+        for (std::size_t k = 0; k + 2 < run.trace.size(); ++k) {
+            const IterationRecord& r = run.trace[k];
+            if (!(r.ratio < 0.25)) continue;
+            const double base = std::string(from) == "radius" ? r.trustRadius : std::min(r.trustRadius, r.step.norm());
+            EXPECT_DOUBLE_EQ(run.trace[k + 1].trustRadius, 0.25 * base) << "iteration " << k;
+            ++shrinks;
+        }
+        EXPECT_GT(shrinks, 0) << "Rosenbrock from the standard start shrinks the region at least once";
+    }
+}
+
 }  // namespace
 }  // namespace sw::solve
