@@ -330,8 +330,12 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         Evaluator probe(objective, 3);
         Vector g;
         Matrix h;
+        Vector qtr;
+        double residualValue = 0;
         if (info.needsHessian) probe.hessian(start, g, h);
-        else probe.gradient(start, g);
+        // A least-squares method's first request is the residual factor at the start: asking for
+        // it here lets an objective that remembers its last point (a fit) answer it for free.
+        else if (!info.needsResiduals || !probe.leastSquaresFactor(start, h, qtr, residualValue)) probe.gradient(start, g);
         if (probe.sawNonFinite()) {
             result.error = "the objective is not finite at the start point " +
                            pointText(start, objective.variableNames()) + ": " +
