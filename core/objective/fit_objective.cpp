@@ -431,10 +431,12 @@ struct FitObjective::Impl {
                 if (order == 1) continue;
                 // dm' diag(second) dm, one dot product per upper-triangle entry (for a few
                 // parameters and a block of rows cheaper than a general matrix product).
+                const bool unitCurvature = hasResidualForm(def.loss) && !hasWeights;  // second = 1
                 for (int a = 0; a < p; ++a) {
-                    weighted.head(n) = second.head(n).cwiseProduct(dm.col(a));
+                    if (!unitCurvature) weighted.head(n) = second.head(n).cwiseProduct(dm.col(a));
                     for (int b = a; b < p; ++b) {
-                        const double term = weighted.head(n).dot(dm.col(b));
+                        const double term =
+                            unitCurvature ? dm.col(a).dot(dm.col(b)) : weighted.head(n).dot(dm.col(b));
                         acc.hessian(a, b) += term;
                         if (b != a) acc.hessian(b, a) += term;
                     }
