@@ -375,6 +375,20 @@ struct FitObjective::Impl {
             Vector first(static_cast<Eigen::Index>(kBlock)), second(static_cast<Eigen::Index>(kBlock));
             std::vector<double> residualBlock(hasResidualForm(def.loss) ? kBlock : 0);
             Vector weighted(order >= 2 ? static_cast<Eigen::Index>(kBlock) : 0);
+            std::vector<double> sums(static_cast<std::size_t>(p * (p + 1) / 2 + 1));
+            // Hessian entries (a, b) whose model second derivative is not identically zero, and
+            // where the program writes them.
+            std::vector<const double*> curvatureColumns;
+            std::vector<std::pair<int, int>> curvatureEntries;
+            if (order >= 2) {
+                std::size_t k = 0;
+                for (int a = 0; a < p; ++a)
+                    for (int b = a; b < p; ++b, ++k)
+                        if (!modelHessianZero[k]) {
+                            curvatureColumns.push_back(buffer.data() + (static_cast<std::size_t>(1 + p) + k) * kBlock);
+                            curvatureEntries.emplace_back(a, b);
+                        }
+            }
             std::vector<double*> factorColumns(factor ? static_cast<std::size_t>(p) + 1 : 0);
             for (std::size_t row = begin; row < end; row += kBlock) {
                 const std::size_t count = std::min(kBlock, end - row);
@@ -416,7 +430,10 @@ struct FitObjective::Impl {
                 const auto n = static_cast<Eigen::Index>(count);
                 Eigen::Map<const Matrix, 0, Eigen::OuterStride<>> dm(outs[1], n, p,
                                                                      Eigen::OuterStride<>(static_cast<Eigen::Index>(kBlock)));
-                acc.gradient.noalias() += dm.transpose() * first.head(n);
+                // Sums over the block's rows by the 4-wide dot products of streaming_qr.h.
+                const double* const* dmColumns = outs.data() + 1;
+                dotProducts(first.data(), dmColumns, p, count, sums.data());
+                for (int j = 0; j < p; ++j) acc.gradient[j] += sums[static_cast<std::size_t>(j)];
                 if (factor) {
                     // The block's rows of [-J r], folded into R and Q'r (the buffers are scratch now).
                     for (int j = 0; j < p; ++j) {
@@ -434,22 +451,23 @@ struct FitObjective::Impl {
                 const bool unitCurvature = hasResidualForm(def.loss) && !hasWeights;  // second = 1
                 for (int a = 0; a < p; ++a) {
                     if (!unitCurvature) weighted.head(n) = second.head(n).cwiseProduct(dm.col(a));
+                    const double* left = unitCurvature ? outs[static_cast<std::size_t>(1 + a)] : weighted.data();
+                    dotProducts(left, dmColumns + a, p - a, count, sums.data());
                     for (int b = a; b < p; ++b) {
-                        const double term =
-                            unitCurvature ? dm.col(a).dot(dm.col(b)) : weighted.head(n).dot(dm.col(b));
+                        const double term = sums[static_cast<std::size_t>(b - a)];
                         acc.hessian(a, b) += term;
                         if (b != a) acc.hessian(b, a) += term;
                     }
                 }
-                std::size_t k = 0;
-                for (int a = 0; a < p; ++a)
-                    for (int b = a; b < p; ++b, ++k) {
-                        if (modelHessianZero[k]) continue;  // e.g. d2m/da^2 of a model linear in a
-                        Eigen::Map<const Vector> d2(outs[static_cast<std::size_t>(1 + p) + k], n);
-                        const double term = d2.dot(first.head(n));
-                        acc.hessian(a, b) += term;
-                        if (b != a) acc.hessian(b, a) += term;
-                    }
+                // sum first * d2m over the entries that are not identically zero (e.g. d2m/da^2
+                // of a model linear in a).
+                dotProducts(first.data(), curvatureColumns.data(), static_cast<int>(curvatureColumns.size()), count,
+                            sums.data());
+                for (std::size_t c = 0; c < curvatureColumns.size(); ++c) {
+                    const auto [a, b] = curvatureEntries[c];
+                    acc.hessian(a, b) += sums[c];
+                    if (b != a) acc.hessian(b, a) += sums[c];
+                }
             }
         });
         Partial total = std::move(partials[0]);

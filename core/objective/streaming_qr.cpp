@@ -25,7 +25,7 @@ double plainSumSquares(const double* a, std::size_t m) {
     return (s0 + s1) + (s2 + s3);
 }
 
-void plainDots(const double* a, double* const* b, int count, std::size_t m, double* out) {
+void plainDots(const double* a, const double* const* b, int count, std::size_t m, double* out) {
     for (int c = 0; c < count; ++c) {
         const double* bc = b[c];
         double s0 = 0, s1 = 0, s2 = 0, s3 = 0;
@@ -79,6 +79,11 @@ const streaming_qr::Kernel& kernel() {
 }  // namespace
 
 bool StreamingQr::vectorised() { return &kernel() != &streaming_qr::plainKernel(); }
+
+void dotProducts(const double* a, const double* const* b, int count, std::size_t m, double* out) {
+    for (int c = 0; c < count; c += streaming_qr::kGroup)
+        kernel().dots(a, b + c, std::min(streaming_qr::kGroup, count - c), m, out + c);
+}
 
 StreamingQr::StreamingQr(int columns) : n_(columns), t_(Eigen::MatrixXd::Zero(columns, columns + 1)) {}
 

@@ -48,4 +48,7 @@ private:
     Eigen::MatrixXd t_;  // n x (n + 1): [R  Q'r]
 };
 
+// out[c] = a'b[c] over m entries for c < count, with the same row kernels (4-wide with AVX2).
+void dotProducts(const double* a, const double* const* b, int count, std::size_t m, double* out);
+
 }  // namespace sw

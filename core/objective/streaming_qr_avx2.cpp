@@ -39,7 +39,7 @@ double avxSumSquares(const double* a, std::size_t m) {
 // C columns b[0..C-1] against a in one pass: a is loaded once per 4 rows. Written out per
 // column (if constexpr) so the sums stay in registers.
 template <int C>
-void avxDotsOf(const double* a, double* const* b, std::size_t m, double* out) {
+void avxDotsOf(const double* a, const double* const* b, std::size_t m, double* out) {
     const double* b0 = b[0];
     const double* b1 = C > 1 ? b[1] : b0;
     const double* b2 = C > 2 ? b[2] : b0;
@@ -66,7 +66,7 @@ void avxDotsOf(const double* a, double* const* b, std::size_t m, double* out) {
     if constexpr (C > 3) out[3] = t3;
 }
 
-void avxDots(const double* a, double* const* b, int count, std::size_t m, double* out) {
+void avxDots(const double* a, const double* const* b, int count, std::size_t m, double* out) {
     switch (count) {
         case 1: avxDotsOf<1>(a, b, m, out); break;
         case 2: avxDotsOf<2>(a, b, m, out); break;

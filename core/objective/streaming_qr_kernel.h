@@ -11,7 +11,7 @@ namespace sw::streaming_qr {
 // for c < count. count is 1 to kGroup: a group of columns shares one pass over a (or x).
 constexpr int kGroup = 4;
 using SumSquares = double (*)(const double* a, std::size_t m);
-using Dots = void (*)(const double* a, double* const* b, int count, std::size_t m, double* out);
+using Dots = void (*)(const double* a, const double* const* b, int count, std::size_t m, double* out);
 using Axpys = void (*)(const double* x, double* const* y, const double* alpha, int count, std::size_t m);
 // Axpys, then in the same pass over the updated columns: sums[0] = |y[0]|^2 and
 // sums[c] = y[0]'y[c] for 0 < c < count (what the next column's reflection needs).
