@@ -198,7 +198,7 @@ public:
         std::unique_lock<std::mutex> busy(busy_, std::try_to_lock);
         if (!busy.owns_lock()) return false;
         task_ = &task;
-        parts_ = parts;
+        parts_.store(parts);
         pending_.store(parts - 1);
         {
             std::lock_guard<std::mutex> lock(mutex_);
@@ -248,7 +248,7 @@ private:
             }
             if (stop_.load()) return;
             seen = generation_.load(std::memory_order_acquire);
-            if (index >= parts_) continue;
+            if (index >= parts_.load()) continue;  // not needed this time
             (*task_)(index);
             if (pending_.fetch_sub(1, std::memory_order_acq_rel) == 1) {
                 std::lock_guard<std::mutex> lock(mutex_);
@@ -261,7 +261,7 @@ private:
     std::mutex mutex_;
     std::condition_variable wake_, done_;
     const std::function<void(std::size_t)>* task_ = nullptr;
-    std::size_t parts_ = 0;
+    std::atomic<std::size_t> parts_{0};  // read by workers that sit a pass out while the next is set up
     std::atomic<std::size_t> pending_{0};
     std::atomic<unsigned long> generation_{0};
     std::atomic<bool> stop_{false};
