@@ -76,7 +76,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
-    enableLegendReflow(3);
+    enableLegendReflow(3, [this] { return colourScale_->visible() ? colourScale_->outerRect().width() : 0; });
     plot_->plotLayout()->setRowStretchFactor(1, 0.001);
 
     startCurve_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
@@ -319,7 +319,6 @@ void LandscapeView::rebuildField() {
         const bool lightFill = fieldGradientLightness(position) > 0.55;
         const QColor ink = lightFill ? QColor(20, 20, 30, 130) : QColor(255, 255, 255, 120);
         QPen pen(ink, 1.0);
-        pen.setCosmetic(true);
         for (const analyze::Polyline& line : set.lines) {
             if (line.x.size() < 2 || line.x.size() != line.y.size()) continue;
             QVector<double> xs(line.x.begin(), line.x.end()), ys(line.y.begin(), line.y.end());
@@ -351,7 +350,6 @@ void LandscapeView::rebuildPaths() {
         auto* path = new QCPCurve(plot_->xAxis, plot_->yAxis);
         path->setName(track.label);
         QPen pen(track.colour, 1.8);
-        pen.setCosmetic(true);
         path->setPen(pen);
         path->setScatterStyle(iterateStyle(track.marker, track.colour, 6.5));
         path->setSelectable(QCP::stNone);
@@ -399,7 +397,6 @@ void LandscapeView::updateStartMarker() {
     QColor fill = palette().color(QPalette::Base);
     fill.setAlpha(170);
     QPen pen(ink, 2.0);
-    pen.setCosmetic(true);
     startCurve_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssPlusCircle, pen, QBrush(fill), 15));
     if (!snapshot_ || start_.size() <= std::max(snapshot_->plotX, snapshot_->plotY)) {
         startCurve_->data()->clear();
@@ -419,7 +416,6 @@ void LandscapeView::updateHighlight() {
         return;
     }
     QPen pen(palette().color(QPalette::Highlight), 2.6);
-    pen.setCosmetic(true);
     highlightCurve_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, 20));
     highlightCurve_->setData(QVector<double>{record->x[px]}, QVector<double>{record->x[py]});
     highlightCurve_->setVisible(true);

@@ -149,9 +149,7 @@ void LocalModelView::rebuild() {
     QColor trueInk = ink;
     trueInk.setAlpha(120);
     QPen truePen(trueInk, 1.0);
-    truePen.setCosmetic(true);
     QPen modelPen(track.colour, 1.6, Qt::DashLine);
-    modelPen.setCosmetic(true);
     auto drawSets = [&](const std::vector<analyze::ContourSet>& sets, const QPen& pen, const QString& legendName) {
         int count = 0;
         for (const analyze::ContourSet& set : sets) {
@@ -188,7 +186,6 @@ void LocalModelView::rebuild() {
             const bool down = lambda < -model.zeroTolerance * std::max(1.0, eigen.eigenvalues().cwiseAbs().maxCoeff());
             const QColor colour = down ? negativeCurvatureColour() : up ? positiveCurvatureColour() : ink;
             QPen pen(colour, 1.8, down ? Qt::DashDotLine : up ? Qt::SolidLine : Qt::DotLine);
-            pen.setCosmetic(true);
             const double reach = 0.75 * half;
             auto* axis = new QCPItemLine(plot_);
             axis->start->setCoords(x[px] - reach * v[0], x[py] - reach * v[1]);
@@ -217,7 +214,6 @@ void LocalModelView::rebuild() {
         trust_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
         trust_->setData(xs, ys);
         QPen pen(ink, 1.4, Qt::DotLine);
-        pen.setCosmetic(true);
         trust_->setPen(pen);
         trust_->setName(tr("trust region, Δ = %1").arg(formatNumber(record->trustRadius)));
         trust_->setSelectable(QCP::stNone);
@@ -229,7 +225,6 @@ void LocalModelView::rebuild() {
         arrow->start->setCoords(x[px], x[py]);
         arrow->end->setCoords(x[px] + record->step[px], x[py] + record->step[py]);
         QPen pen(track.colour, 2.2);
-        pen.setCosmetic(true);
         arrow->setPen(pen);
         arrow->setHead(QCPLineEnding(QCPLineEnding::esSpikeArrow, 10, 12));
         arrow->setSelectable(false);
@@ -250,7 +245,6 @@ void LocalModelView::rebuild() {
         newton_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
         newton_->setLineStyle(QCPCurve::lsNone);
         QPen pen(ink, 2.0);
-        pen.setCosmetic(true);
         newton_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCrossCircle, pen, QBrush(pal.color(QPalette::Base)), 13));
         newton_->setData(QVector<double>{model.newtonPoint[px]}, QVector<double>{model.newtonPoint[py]});
         QString role;

@@ -28,13 +28,11 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size) {
     QColor fill = colour.lighter(150);
     fill.setAlpha(200);
     QPen pen(colour, 1.3);
-    pen.setCosmetic(true);
     return QCPScatterStyle(scatterShape(marker), pen, QBrush(fill), size);
 }
 
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size) {
     QPen pen(colour.darker(130), 2.0);
-    pen.setCosmetic(true);
     QColor pale = colour.lighter(170);
     switch (kind) {
     case solve::PointKind::Minimum: return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, QBrush(colour), size);
@@ -50,7 +48,6 @@ QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, doubl
 void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size) {
     graph->setLineStyle(QCPGraph::lsNone);
     QPen pen(highlight, 2.4);
-    pen.setCosmetic(true);
     graph->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size));
     graph->removeFromLegend();
     graph->setSelectable(QCP::stNone);
@@ -408,13 +405,24 @@ void PlotView::changeEvent(QEvent* event) {
 
 void PlotView::queueReplot() { plot_->replot(QCustomPlot::rpQueuedReplot); }
 
-void PlotView::enableLegendReflow(int maxColumns) {
-    connect(plot_, &QCustomPlot::beforeReplot, this, [this, maxColumns] {
+void PlotView::enableLegendReflow(int maxColumns, std::function<int()> besideLegend) {
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this, maxColumns, besideLegend] {
         if (!plot_->legend->visible()) return;
-        // The legend row is as wide as the main axis rect's column (from the last layout;
-        // before the first one, the whole plot); 8 px for the row's own margins.
-        const int column = plot_->axisRect()->outerRect().width();
-        fitLegendToWidth(plot_, (column > 0 ? column : plot_->width()) - 8, maxColumns);
+        // The viewport is already the new size when a resize replots (the last layout's
+        // rects are not); 8 px for the legend row's own margins.
+        const int beside = besideLegend ? besideLegend() : 0;
+        fitLegendToWidth(plot_, plot_->viewport().width() - beside - 8, maxColumns);
+    });
+}
+
+void PlotView::enableTickThinning(int pixelsPerTick) {
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this, pixelsPerTick] {
+        for (QCPAxisRect* rect : plot_->axisRects()) {
+            QCPAxis* axis = rect->axis(QCPAxis::atLeft);
+            const int height = plot_->viewport().height() > 0 ? rect->outerRect().height() : 0;
+            if (!axis || !axis->ticker() || height <= 0) continue;
+            axis->ticker()->setTickCount(std::clamp(height / pixelsPerTick, 2, 6));
+        }
     });
 }
 

@@ -3,6 +3,9 @@
 // colours taken from the widget's QPalette (so light and dark themes both read well),
 // marker shapes for widgets::Marker, the field's colour gradient, tick labelling for
 // transformed axes (log colour, symmetric log), and export of a plot to PNG, SVG or PDF.
+// Pens in the views are not cosmetic: their widths are in logical pixels, so a line keeps its
+// weight next to text and markers at a device pixel ratio of 2 (a cosmetic 1.8 px pen drew
+// hair-thin there).
 
 #include "widgets/snapshot.h"
 
@@ -129,7 +132,11 @@ protected:
     void queueReplot();
     // For views whose legend sits in its own row under the plot: before each replot the
     // legend takes as many columns as the width allows, and elides names when one is too many.
-    void enableLegendReflow(int maxColumns = 3);
+    // besideLegend: pixels of the plot's width not under the legend (e.g. a colour scale).
+    void enableLegendReflow(int maxColumns = 3, std::function<int()> besideLegend = {});
+    // Before each replot, every left axis asks for about one tick per `pixelsPerTick` of its
+    // rect's height (2..6), so a short panel does not pile its tick labels on each other.
+    void enableTickThinning(int pixelsPerTick = 34);
 
     // Click-to-select: views list their clickable iterates here (plot coordinates on the
     // given axes); a click within a few pixels of one emits selectionRequested.

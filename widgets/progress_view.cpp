@@ -36,6 +36,7 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
     enableLegendReflow(3);
+    enableTickThinning();
 
     // What f_best is, in a line above the plots: as the axis label it was clipped whenever
     // the panel was short.
@@ -157,7 +158,6 @@ void ProgressView::rebuild() {
             auto* gradient = plot_->addGraph(dx, dy);
             for (QCPGraph* graph : {gap, gradient}) {
                 QPen pen(track.colour, 1.6);
-                pen.setCosmetic(true);
                 graph->setPen(pen);
                 graph->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
                 graph->setSelectable(QCP::stNone);
