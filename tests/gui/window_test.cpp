@@ -12,7 +12,15 @@
 #include "widgets/progress_view.h"
 #include "widgets/steps_table.h"
 
+#include <QAbstractButton>
+#include <QAbstractItemView>
+#include <QAbstractSpinBox>
+#include <QComboBox>
+#include <QLineEdit>
+#include <QHeaderView>
 #include <QPlainTextEdit>
+#include <QTabBar>
+#include <QToolButton>
 #include <QSignalSpy>
 #include <QStandardPaths>
 #include <QSvgRenderer>
@@ -340,6 +348,44 @@ private slots:
         QVERIFY(editor->problemText().isEmpty());
         QVERIFY(window.objective() != goodObjective);
         QCOMPARE(window.landscape()->pathCount(), enabled);
+    }
+
+    void everyControlExplainsItselfInATooltip() {
+        MainWindow window;
+        window.resize(1400, 900);
+        window.show();
+        QVERIFY(window.waitForIdle());
+        auto* dialog = window.showPreferences();
+        QStringList missing;
+        auto check = [&](QWidget* root) {
+            const auto controls = root->findChildren<QWidget*>();
+            for (QWidget* w : controls) {
+                const bool control = qobject_cast<QAbstractButton*>(w) || qobject_cast<QComboBox*>(w) ||
+                                     qobject_cast<QAbstractSpinBox*>(w) || qobject_cast<QLineEdit*>(w) ||
+                                     qobject_cast<QPlainTextEdit*>(w) || qobject_cast<QAbstractItemView*>(w);
+                if (!control || !w->isVisibleTo(root)) continue;
+                if (qobject_cast<QLineEdit*>(w) && qobject_cast<QAbstractSpinBox*>(w->parentWidget())) continue;
+                if (qobject_cast<QLineEdit*>(w) && qobject_cast<QComboBox*>(w->parentWidget())) continue;
+                QString tip = w->toolTip();
+                if (auto* button = qobject_cast<QToolButton*>(w); button && button->defaultAction())
+                    tip = button->defaultAction()->toolTip();
+                // Buttons Qt adds itself (dock title bars, tab scrollers, table corners) explain themselves.
+                const QString cls = QString::fromLatin1(w->metaObject()->className());
+                if (cls.startsWith("QDockWidgetTitleButton") || cls == "QTabBar" || w->objectName().startsWith("qt_"))
+                    continue;
+                if (qobject_cast<QToolButton*>(w) && qobject_cast<QTabBar*>(w->parentWidget())) continue;
+                if (qobject_cast<QHeaderView*>(w)) continue;  // part of its table, which has the tooltip
+                if (tip.trimmed().isEmpty())
+                    missing << QStringLiteral("%1 '%2' (%3)").arg(cls, w->objectName(),
+                                                                 w->property("text").toString());
+            }
+        };
+        check(&window);
+        check(dialog);
+        QVERIFY2(missing.isEmpty(), qPrintable(missing.join("; ")));
+        // The status bar carries the last run's summary.
+        QVERIFY(window.lastSummary().startsWith("Last run:"));
+        dialog->reject();
     }
 
     void closingWithUnsavedChangesAsksAndDoesWhatTheAnswerSays() {
