@@ -53,6 +53,7 @@ public:
             values_[static_cast<std::size_t>(i + 1)] = evaluate(eval, v);
         }
         order();
+        measure();
         state.x = vertices_[0];
         state.value = values_[0];
     }
@@ -91,21 +92,22 @@ public:
             else shrinkToBest(eval), move = "shrink";
         }
         order();
+        measure();
         record.stepKind = StepKind::Simplex;
         record.stepLength = 1;
         record.note.reserve(64);
         record.note = move;
         record.note += "; simplex size ";
-        record.note += shortNumber(simplexSize());
+        record.note += shortNumber(size_);
         record.note += ", value spread ";
-        record.note += shortNumber(valueSpread());
+        record.note += shortNumber(spread_);
         state.x = vertices_[0];
         state.value = values_[0];
         return {};
     }
 
     bool ownConvergence(std::string* why) const override {
-        const double size = simplexSize(), spread = valueSpread();
+        const double size = size_, spread = spread_;
         if (size <= options_.simplexTolerance && spread <= options_.valueTolerance) {
             if (why)
                 *why = "converged: simplex size " + shortNumber(size) + " <= " + shortNumber(options_.simplexTolerance) +
@@ -148,6 +150,13 @@ private:
             }
     }
 
+    // Size and value spread of the simplex, once per iteration (the note and the convergence
+    // test both read them).
+    void measure() {
+        size_ = simplexSize();
+        spread_ = valueSpread();
+    }
+
     double simplexSize() const {
         double size = 0;
         for (std::size_t i = 1; i < vertices_.size(); ++i)
@@ -166,6 +175,7 @@ private:
     std::vector<Vector> vertices_;
     std::vector<double> values_;
     Vector centroid_, reflected_, trial_;
+    double size_ = 0, spread_ = 0;  // of the current simplex (measure())
 };
 
 }  // namespace
