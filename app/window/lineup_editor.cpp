@@ -145,7 +145,7 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
     auto* look = new QHBoxLayout;
     look->addWidget(colour_);
     look->addWidget(marker_, 1);
-    form->addRow(tr("Look"), look);
+    form->addRow(tr("Colour, marker"), look);
     form->addRow(options_);
     form->addRow(message_);
 

@@ -129,11 +129,11 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     buttons->addWidget(add);
     buttons->addWidget(remove);
     auto* axes = new QHBoxLayout;
-    auto* plotLabel = new QLabel(tr("Plot"), this);
+    auto* plotLabel = new QLabel(tr("Horizontal"), this);
     plotLabel->setToolTip(plotX_->toolTip());
     axes->addWidget(plotLabel);
     axes->addWidget(plotX_, 1);
-    auto* against = new QLabel(tr("against"), this);
+    auto* against = new QLabel(tr("vertical"), this);
     against->setToolTip(plotY_->toolTip());
     axes->addWidget(against);
     axes->addWidget(plotY_, 1);
@@ -237,6 +237,15 @@ void ObjectiveEditor::buildFitPage(QWidget* page) {
                        static_cast<QObject*>(weights_), static_cast<QObject*>(weightsKind_)})
         connect(qobject_cast<QComboBox*>(w), &QComboBox::currentIndexChanged, this, [this] { scheduleEdited(); });
     connect(lossScale_, &QDoubleSpinBox::valueChanged, this, [this] { scheduleEdited(); });
+    // Controls that do nothing in the current choice are greyed out rather than left to puzzle.
+    auto greyOutUnused = [this] {
+        const QString loss = loss_->currentData().toString().isEmpty() ? loss_->currentText() : loss_->currentData().toString();
+        lossScale_->setEnabled(loss.contains("huber", Qt::CaseInsensitive) || loss.contains("cauchy", Qt::CaseInsensitive));
+        weightsKind_->setEnabled(weights_->currentIndex() > 0);
+    };
+    connect(loss_, &QComboBox::currentIndexChanged, this, greyOutUnused);
+    connect(weights_, &QComboBox::currentIndexChanged, this, greyOutUnused);
+    greyOutUnused();
     connect(model_, &QPlainTextEdit::textChanged, this, [this] { scheduleEdited(); });
 
     auto* file = new QHBoxLayout;
