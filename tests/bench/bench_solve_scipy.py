@@ -11,6 +11,7 @@ Times are CPU time per solve on both sides (process time here, Google Benchmark'
 for ours), so other load on the machine inflates neither side.
 """
 import json
+import os
 import sys
 import time
 import warnings
@@ -19,6 +20,9 @@ import numpy as np
 import scipy
 import scipy.optimize
 import sympy
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "reference", "solve"))
+from sympy_problem import compile_problem  # noqa: E402  (shared with the SciPy cross-check)
 
 TARGET_RATIO = 100  # issue 3: at least 100x faster per solve, no more iterations for the same family
 
@@ -46,22 +50,6 @@ MORE_ITERATIONS = {
 
 NEEDS_HESSIAN = {"trust-exact", "trust-ncg", "dogleg", "Newton-CG", "trust-krylov"}
 NEEDS_GRADIENT = NEEDS_HESSIAN | {"BFGS", "L-BFGS-B", "CG"}
-
-
-def compile_problem(problem):
-    symbols = sympy.symbols(problem["variables"], real=True)
-    names = {str(s): s for s in symbols}
-    names.update({"sign": sympy.sign, "atan": sympy.atan, "exp": sympy.exp, "sqrt": sympy.sqrt,
-                  "log": sympy.log, "pi": sympy.pi})
-    expr = sympy.parse_expr(problem["formula"].replace("^", "**"), local_dict=names)
-    grad = [sympy.diff(expr, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols]
-    hess = [[sympy.diff(gi, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols] for gi in grad]
-    f = sympy.lambdify(symbols, expr, "numpy")
-    g = sympy.lambdify(symbols, grad, "numpy")
-    h = sympy.lambdify(symbols, hess, "numpy")
-    return (lambda x: float(f(*x)),
-            lambda x: np.array(g(*x), dtype=float),
-            lambda x: np.array(h(*x), dtype=float))
 
 
 def scipy_solve(method, funcs, x0, gtol, simplex=(1e-8, 1e-12)):

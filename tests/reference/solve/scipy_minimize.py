@@ -16,22 +16,7 @@ import scipy
 import scipy.optimize
 import sympy
 
-
-def compile_problem(problem):
-    symbols = sympy.symbols(problem["variables"], real=True)
-    names = {str(s): s for s in symbols}
-    names.update({"sign": sympy.sign, "atan": sympy.atan, "exp": sympy.exp, "sqrt": sympy.sqrt,
-                  "log": sympy.log, "pi": sympy.pi})
-    expr = sympy.parse_expr(problem["formula"].replace("^", "**"), local_dict=names)
-    # d sign(x)/dx is 0 wherever the formula is smooth (x != 0).
-    grad = [sympy.diff(expr, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols]
-    hess = [[sympy.diff(gi, s).replace(sympy.DiracDelta, lambda *a: 0) for s in symbols] for gi in grad]
-    f = sympy.lambdify(symbols, expr, "numpy")
-    g = sympy.lambdify(symbols, grad, "numpy")
-    h = sympy.lambdify(symbols, hess, "numpy")
-    return (lambda x: float(f(*x)),
-            lambda x: np.array(g(*x), dtype=float),
-            lambda x: np.array(h(*x), dtype=float))
+from sympy_problem import compile_problem  # same directory
 
 
 def summary(result):
