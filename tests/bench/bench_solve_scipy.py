@@ -19,7 +19,6 @@ import warnings
 import numpy as np
 import scipy
 import scipy.optimize
-import sympy
 
 sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "reference", "solve"))
 from sympy_problem import compile_problem  # noqa: E402  (shared with the SciPy cross-check)
