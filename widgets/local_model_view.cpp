@@ -148,7 +148,8 @@ void LocalModelView::rebuild() {
 
     QColor trueInk = ink;
     trueInk.setAlpha(120);
-    QPen truePen(trueInk, 1.0);
+    QPen truePen(trueInk, devicePixelRatioF());  // cosmetic: the fast path for many points
+    truePen.setCosmetic(true);
     QPen modelPen(track.colour, 1.6, Qt::DashLine);
     auto drawSets = [&](const std::vector<analyze::ContourSet>& sets, const QPen& pen, const QString& legendName) {
         int count = 0;

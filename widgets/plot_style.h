@@ -5,7 +5,8 @@
 // transformed axes (log colour, symmetric log), and export of a plot to PNG, SVG or PDF.
 // Pens in the views are not cosmetic: their widths are in logical pixels, so a line keeps its
 // weight next to text and markers at a device pixel ratio of 2 (a cosmetic 1.8 px pen drew
-// hair-thin there).
+// hair-thin there). The exception is contour lines, which carry most of the points: they are
+// cosmetic (the raster engine's fast path) with their width multiplied by the ratio.
 
 #include "widgets/snapshot.h"
 

@@ -102,7 +102,7 @@ int main(int argc, char** argv) {
     // (2) Landscape at 600 x 600 cells with contours: sample + levels + contour lines in the
     // job runner, then the landscape redraws.
     std::vector<double> fieldMs;
-    for (int k = 0; k < 15; ++k) {
+    for (int k = 0; k < 40; ++k) {
         sw::window::FieldRequest request;
         request.objective = window.objective();
         request.held = window.start();
