@@ -147,6 +147,7 @@ void CurvatureView::rebuild() {
             for (std::size_t k = 0; k < indices.size(); ++k) {
                 auto* graph = plot_->addGraph(ex, ey);
                 QPen pen(track.colour, 1.5, k == 0 ? Qt::SolidLine : Qt::DashLine);
+                scaleForScreen(pen);
                 graph->setPen(pen);
                 graph->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
                 graph->setSelectable(QCP::stNone);
@@ -160,12 +161,14 @@ void CurvatureView::rebuild() {
             auto* negative = plot_->addGraph(ex, ey);
             negative->setLineStyle(QCPGraph::lsNone);
             QPen outline(negativeBandColour().darker(140), 1.6);
+            scaleForScreen(outline);
             negative->setScatterStyle(QCPScatterStyle(scatterShape(track.marker), outline, QBrush(track.colour), 9));
             negative->removeFromLegend();
             negative->setSelectable(QCP::stNone);
 
             auto* condition = plot_->addGraph(cx, cy);
             QPen cpen(track.colour, 1.5);
+            scaleForScreen(cpen);
             condition->setPen(cpen);
             condition->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
             condition->removeFromLegend();

@@ -354,6 +354,7 @@ void LandscapeView::rebuildPaths() {
         auto* path = new QCPCurve(plot_->xAxis, plot_->yAxis);
         path->setName(track.label);
         QPen pen(track.colour, 1.8);
+        scaleForScreen(pen);
         path->setPen(pen);
         path->setScatterStyle(iterateStyle(track.marker, track.colour, 6.5));
         path->setSelectable(QCP::stNone);
@@ -401,6 +402,7 @@ void LandscapeView::updateStartMarker() {
     QColor fill = palette().color(QPalette::Base);
     fill.setAlpha(170);
     QPen pen(ink, 2.0);
+    scaleForScreen(pen);
     startCurve_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssPlusCircle, pen, QBrush(fill), 15));
     if (!snapshot_ || start_.size() <= std::max(snapshot_->plotX, snapshot_->plotY)) {
         startCurve_->data()->clear();
@@ -420,6 +422,7 @@ void LandscapeView::updateHighlight() {
         return;
     }
     QPen pen(palette().color(QPalette::Highlight), 2.6);
+    scaleForScreen(pen);
     highlightCurve_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, 20));
     highlightCurve_->setData(QVector<double>{record->x[px]}, QVector<double>{record->x[py]});
     highlightCurve_->setVisible(true);

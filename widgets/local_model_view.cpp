@@ -151,6 +151,7 @@ void LocalModelView::rebuild() {
     QPen truePen(trueInk, devicePixelRatioF());  // cosmetic: the fast path for many points
     truePen.setCosmetic(true);
     QPen modelPen(track.colour, 1.6, Qt::DashLine);
+    scaleForScreen(modelPen);
     auto drawSets = [&](const std::vector<analyze::ContourSet>& sets, const QPen& pen, const QString& legendName) {
         int count = 0;
         for (const analyze::ContourSet& set : sets) {
@@ -187,6 +188,7 @@ void LocalModelView::rebuild() {
             const bool down = lambda < -model.zeroTolerance * std::max(1.0, eigen.eigenvalues().cwiseAbs().maxCoeff());
             const QColor colour = down ? negativeCurvatureColour() : up ? positiveCurvatureColour() : ink;
             QPen pen(colour, 1.8, down ? Qt::DashDotLine : up ? Qt::SolidLine : Qt::DotLine);
+            scaleForScreen(pen);
             const double reach = 0.75 * half;
             auto* axis = new QCPItemLine(plot_);
             axis->start->setCoords(x[px] - reach * v[0], x[py] - reach * v[1]);
@@ -215,6 +217,7 @@ void LocalModelView::rebuild() {
         trust_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
         trust_->setData(xs, ys);
         QPen pen(ink, 1.4, Qt::DotLine);
+        scaleForScreen(pen);
         trust_->setPen(pen);
         trust_->setName(tr("trust region, Δ = %1").arg(formatNumber(record->trustRadius)));
         trust_->setSelectable(QCP::stNone);
@@ -226,6 +229,7 @@ void LocalModelView::rebuild() {
         arrow->start->setCoords(x[px], x[py]);
         arrow->end->setCoords(x[px] + record->step[px], x[py] + record->step[py]);
         QPen pen(track.colour, 2.2);
+        scaleForScreen(pen);
         arrow->setPen(pen);
         arrow->setHead(QCPLineEnding(QCPLineEnding::esSpikeArrow, 10, 12));
         arrow->setSelectable(false);
@@ -246,6 +250,7 @@ void LocalModelView::rebuild() {
         newton_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
         newton_->setLineStyle(QCPCurve::lsNone);
         QPen pen(ink, 2.0);
+        scaleForScreen(pen);
         newton_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCrossCircle, pen, QBrush(pal.color(QPalette::Base)), 13));
         newton_->setData(QVector<double>{model.newtonPoint[px]}, QVector<double>{model.newtonPoint[py]});
         QString role;

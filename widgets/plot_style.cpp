@@ -2,6 +2,7 @@
 
 #include <QEvent>
 #include <QFileInfo>
+#include <QGuiApplication>
 #include <QHelpEvent>
 #include <QSvgGenerator>
 #include <QToolTip>
@@ -10,6 +11,12 @@
 #include <cmath>
 
 namespace sw::widgets {
+
+void scaleForScreen(QPen& pen) {
+    const double ratio = qGuiApp ? qGuiApp->devicePixelRatio() : 1.0;
+    pen.setWidthF(pen.widthF() * ratio);
+    pen.setCosmetic(true);
+}
 
 QCPScatterStyle::ScatterShape scatterShape(Marker marker) {
     switch (marker) {
@@ -28,11 +35,13 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size) {
     QColor fill = colour.lighter(150);
     fill.setAlpha(200);
     QPen pen(colour, 1.3);
+    scaleForScreen(pen);
     return QCPScatterStyle(scatterShape(marker), pen, QBrush(fill), size);
 }
 
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size) {
     QPen pen(colour.darker(130), 2.0);
+    scaleForScreen(pen);
     QColor pale = colour.lighter(170);
     switch (kind) {
     case solve::PointKind::Minimum: return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, QBrush(colour), size);
@@ -48,6 +57,7 @@ QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, doubl
 void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size) {
     graph->setLineStyle(QCPGraph::lsNone);
     QPen pen(highlight, 2.4);
+    scaleForScreen(pen);
     graph->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size));
     graph->removeFromLegend();
     graph->setSelectable(QCP::stNone);

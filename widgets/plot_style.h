@@ -3,10 +3,10 @@
 // colours taken from the widget's QPalette (so light and dark themes both read well),
 // marker shapes for widgets::Marker, the field's colour gradient, tick labelling for
 // transformed axes (log colour, symmetric log), and export of a plot to PNG, SVG or PDF.
-// Pens in the views are not cosmetic: their widths are in logical pixels, so a line keeps its
-// weight next to text and markers at a device pixel ratio of 2 (a cosmetic 1.8 px pen drew
-// hair-thin there). The exception is contour lines, which carry most of the points: they are
-// cosmetic (the raster engine's fast path) with their width multiplied by the ratio.
+// Pens in the views go through scaleForScreen: cosmetic (the raster engine's fast path; a
+// stroked pen cost several ms per redraw on contours and markers) with the width multiplied by
+// the device pixel ratio, so lines keep their weight next to text and markers at ratio 2 (a
+// plain cosmetic 1.8 px pen drew hair-thin there).
 
 #include "widgets/snapshot.h"
 
@@ -18,6 +18,9 @@
 class QVBoxLayout;
 
 namespace sw::widgets {
+
+// Makes `pen` cosmetic with its width multiplied by the screen's device pixel ratio.
+void scaleForScreen(QPen& pen);
 
 // QCustomPlot shape for one of our lineup markers.
 QCPScatterStyle::ScatterShape scatterShape(Marker marker);

@@ -158,6 +158,7 @@ void ProgressView::rebuild() {
             auto* gradient = plot_->addGraph(dx, dy);
             for (QCPGraph* graph : {gap, gradient}) {
                 QPen pen(track.colour, 1.6);
+                scaleForScreen(pen);
                 graph->setPen(pen);
                 graph->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
                 graph->setSelectable(QCP::stNone);

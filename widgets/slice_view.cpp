@@ -151,24 +151,28 @@ void SliceView::rebuild() {
     trueGraph_ = plot_->addGraph();
     trueGraph_->setData(keys, QVector<double>(truth.begin(), truth.end()), true);
     QPen truePen(ink, 2.0);
+    scaleForScreen(truePen);
     trueGraph_->setPen(truePen);
     trueGraph_->setName(tr("f (true)"));
 
     modelGraph_ = plot_->addGraph();
     modelGraph_->setData(keys, QVector<double>(quadratic.begin(), quadratic.end()), true);
     QPen modelPen(modelColour(), 1.6, Qt::DashLine);
+    scaleForScreen(modelPen);
     modelGraph_->setPen(modelPen);
     modelGraph_->setName(tr("quadratic model"));
 
     armijoGraph_ = plot_->addGraph();
     armijoGraph_->setData(keys, QVector<double>(armijo.begin(), armijo.end()), true);
     QPen armijoPen(armijoColour(), 1.3, Qt::DashDotLine);
+    scaleForScreen(armijoPen);
     armijoGraph_->setPen(armijoPen);
     armijoGraph_->setName(tr("sufficient decrease, c₁ = %1").arg(formatNumber(c1_)));
 
     trialGraph_ = plot_->addGraph();
     trialGraph_->setLineStyle(QCPGraph::lsNone);
     QPen trialPen(track.colour, 1.5);
+    scaleForScreen(trialPen);
     trialGraph_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, trialPen, Qt::NoBrush, 9));
     trialGraph_->setName(tr("line-search trials"));
     rejectedGraph_ = plot_->addGraph();
