@@ -19,6 +19,7 @@
 #include <QSignalSpy>
 #include <QSvgRenderer>
 #include <QTemporaryDir>
+#include <QToolTip>
 #include <QtTest>
 #include <cmath>
 #include <memory>
@@ -474,6 +475,17 @@ void ViewsTest::progressLegendFitsANarrowDockAndKeepsFullNamesInTooltips() {
         if (auto* item = dynamic_cast<ElidedLegendItem*>(legend->item(i))) anyElided = anyElided || item->isElided();
     qInfo("narrow plot: %d px wide", view.plot()->width());
     QVERIFY(anyElided);
+    // Resting the pointer on a shortened entry shows its full name.
+    for (int i = 0; i < legend->itemCount(); ++i) {
+        auto* item = dynamic_cast<ElidedLegendItem*>(legend->item(i));
+        if (!item || !item->isElided()) continue;
+        const QPoint at = item->rect().center();
+        QHelpEvent help(QEvent::ToolTip, at, view.plot()->mapToGlobal(at));
+        QApplication::sendEvent(view.plot(), &help);
+        QTRY_COMPARE_WITH_TIMEOUT(QToolTip::text(), item->fullName(), 2000);
+        QToolTip::hideText();
+        break;
+    }
 }
 
 void ViewsTest::sliceShowsTrueModelArmijoTrialsAndStep() {
