@@ -384,8 +384,10 @@ static std::string quotedIfNeeded(const std::string& s) {
 
 std::string writeTable(const Table& table) {
     std::string out;
-    for (std::size_t c = 0; c < table.columnNames.size(); ++c)
-        out += (c ? "," : "") + quotedIfNeeded(table.columnNames[c]);
+    for (std::size_t c = 0; c < table.columnNames.size(); ++c) {
+        if (c) out += ',';
+        out += quotedIfNeeded(table.columnNames[c]);  // appended apart: GCC 12 -O3 warns -Wrestrict on "," + string
+    }
     out += '\n';
     char buffer[64];
     for (std::size_t r = 0; r < table.rowCount(); ++r) {
