@@ -29,9 +29,9 @@ TARGET_RATIO = 100  # issue 3: at least 100x faster per solve, no more iteration
 # the per-iteration times in the table; see docs/BENCHMARKS.md). For extra iterations the table names how
 # the two implementations differ; that this difference causes them is not proven.
 BELOW_TARGET = {
-    "lbfgs": "SciPy's L-BFGS-B is compiled Fortran (~30 us per iteration, its cheapest method); ours ~0.45 us per "
+    "lbfgs": "SciPy's L-BFGS-B is compiled Fortran (20-30 us per iteration, its cheapest method); ours 0.3-0.45 us per "
              "iteration, mostly the per-iteration record (x, gradient, step, trials, angle, note)",
-    "nelder-mead": "SciPy's Nelder-Mead costs ~25 us per iteration; ours ~0.45 us, mostly the record, "
+    "nelder-mead": "SciPy's Nelder-Mead costs 20-25 us per iteration; ours 0.4-0.45 us, mostly the record, "
                    "which also carries the (uncounted) gradient at the best vertex",
     "trust-region-cg": "SciPy's trust-ncg iterations are its cheapest trust-region ones (~45-65 us); ours ~0.6-0.8 us, "
                        "mostly the exact Hessian, the record and its note",
