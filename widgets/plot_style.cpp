@@ -32,8 +32,14 @@ QCPScatterStyle::ScatterShape scatterShape(Marker marker) {
 }
 
 QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size) {
-    QColor fill = colour.lighter(150);
-    fill.setAlpha(200);
+    // A pale tint of the track's colour inside a full-colour outline: the markers stay
+    // visible where a dark colour meets the dark (low) end of the landscape's colour scale,
+    // which is exactly where paths end, and the outline still tells the tracks apart.
+    constexpr double tint = 0.55;  // share of white
+    QColor fill = QColor::fromRgbF(static_cast<float>(colour.redF() + tint * (1.0 - colour.redF())),
+                                   static_cast<float>(colour.greenF() + tint * (1.0 - colour.greenF())),
+                                   static_cast<float>(colour.blueF() + tint * (1.0 - colour.blueF())));
+    fill.setAlpha(230);
     QPen pen(colour, 1.3);
     scaleForScreen(pen);
     return QCPScatterStyle(scatterShape(marker), pen, QBrush(fill), size);
