@@ -29,6 +29,9 @@ LocalModelView::LocalModelView(QWidget* parent) : PlotView(parent) {
     layout_->addWidget(verdict_);
     plot_->legend->setVisible(true);
     plot_->axisRect()->insetLayout()->setInsetAlignment(0, Qt::AlignTop | Qt::AlignRight);
+    plot_->setToolTip(tr("The quadratic model (dashed) over the true contours at the selected iterate; "
+                         "click the legend to move it to another corner"));
+    connect(plot_, &QCustomPlot::legendClick, this, [this] { moveLegendToNextCorner(); });
     // Equal scales on both axes, so eigenvector axes look perpendicular and the trust
     // region looks round: adjust the ranges once the axis rect's size is known.
     connect(plot_, &QCustomPlot::afterLayout, this, [this] {
@@ -47,6 +50,19 @@ LocalModelView::LocalModelView(QWidget* parent) : PlotView(parent) {
 }
 
 QString LocalModelView::verdict() const { return verdict_->text(); }
+
+Qt::Alignment LocalModelView::legendCorner() const { return plot_->axisRect()->insetLayout()->insetAlignment(0); }
+
+void LocalModelView::moveLegendToNextCorner() {
+    static const Qt::Alignment corners[] = {Qt::AlignTop | Qt::AlignRight, Qt::AlignBottom | Qt::AlignRight,
+                                            Qt::AlignBottom | Qt::AlignLeft, Qt::AlignTop | Qt::AlignLeft};
+    const Qt::Alignment now = legendCorner();
+    int next = 0;
+    for (int i = 0; i < 4; ++i)
+        if (corners[i] == now) next = (i + 1) % 4;
+    plot_->axisRect()->insetLayout()->setInsetAlignment(0, corners[next]);
+    plot_->replot(QCustomPlot::rpQueuedReplot);
+}
 
 void LocalModelView::setHalfWidth(double halfWidth) {
     halfWidth_ = std::isfinite(halfWidth) && halfWidth > 0 ? halfWidth : 0;

@@ -28,6 +28,10 @@ public:
     int eigenAxisCount() const { return eigenAxes_; }
     // Time of the last true-field sampling, in milliseconds (the brief asks < 10 ms).
     double lastSampleMilliseconds() const { return sampleMs_; }
+    // The legend sits in a corner of the plot; clicking it moves it to the next corner
+    // (clockwise from top right), so it never has to hide what the user is looking at.
+    void moveLegendToNextCorner();
+    Qt::Alignment legendCorner() const;
 
 protected:
     void rebuild() override;

@@ -140,6 +140,7 @@ private slots:
     void landscapeMarksEndPointsByKind();
     void localModelShowsModelTrueContoursNewtonPointAxesAndTrustRegion();
     void localModelCallsASaddleASaddle();
+    void localModelLegendMovesToTheNextCornerWhenClicked();
     void curvatureDrawsEigenvaluesOnSymmetricLogScale();
     void symmetricLogRoundTripsAndLabelsRealValues();
     void progressDrawsGapAndGradientForEveryTrack();
@@ -358,6 +359,26 @@ void ViewsTest::localModelCallsASaddleASaddle() {
     QVERIFY2(view.verdict().contains(QStringLiteral("saddle"), Qt::CaseInsensitive), qPrintable(view.verdict()));
     QVERIFY(view.showsNewtonPoint());
     keepImage(view, "local-model-saddle");
+}
+
+void ViewsTest::localModelLegendMovesToTheNextCornerWhenClicked() {
+    auto snapshot = valleySnapshot();
+    LocalModelView view;
+    view.setSnapshot(snapshot);
+    view.setSelection(Selection{2, 1});
+    show(view);
+    QCustomPlot* plot = view.plot();
+    plot->replot();
+    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignRight);
+    // A real click on the legend, through QCustomPlot's own hit test.
+    const QPoint onLegend = plot->legend->outerRect().center();
+    QTest::mouseClick(plot, Qt::LeftButton, Qt::NoModifier, onLegend);
+    QCOMPARE(view.legendCorner(), Qt::AlignBottom | Qt::AlignRight);
+    view.moveLegendToNextCorner();
+    view.moveLegendToNextCorner();
+    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignLeft);
+    view.moveLegendToNextCorner();
+    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignRight);
 }
 
 void ViewsTest::curvatureDrawsEigenvaluesOnSymmetricLogScale() {
