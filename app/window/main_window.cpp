@@ -491,6 +491,12 @@ void MainWindow::newStudy() {
     study_ = defaultStudy(preferences_);
     studyPath_.clear();
     baseDirectory_ = QDir::currentPath();
+    presentStudy();
+}
+
+// Shows study_ in the editors and views and starts from a clean slate (no selection, no
+// remembered view box, unmodified); newStudy and openStudy set study_ and its place first.
+void MainWindow::presentStudy() {
     loading_ = true;
     objectiveEditor_->setStudy(study_, baseDirectory_);
     lineupEditor_->setEntries(study_.methods);
@@ -519,16 +525,7 @@ bool MainWindow::openStudy(const QString& path, QString* error) {
     study_ = loaded;
     studyPath_ = QFileInfo(path).absoluteFilePath();
     baseDirectory_ = QFileInfo(path).absolutePath();
-    loading_ = true;
-    objectiveEditor_->setStudy(study_, baseDirectory_);
-    lineupEditor_->setEntries(study_.methods);
-    landscape_->setLogColour(study_.view.logColour);
-    loading_ = false;
-    hasViewBox_ = false;
-    selection_ = {};
-    objective_.reset();
-    rebuildObjective();
-    setModified(false);
+    presentStudy();
     addRecentFile(studyPath_);
     return true;
 }

@@ -111,6 +111,7 @@ protected:
     void closeEvent(QCloseEvent* event) override;
 
 private:
+    void presentStudy();
     void createViews();
     void createDocks();
     void createActions();
