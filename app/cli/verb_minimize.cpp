@@ -81,7 +81,7 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
     for (std::size_t i = 0; i < methodIds.size(); ++i) {
         solve::SolverOrError made = solve::makeSolver(methodIds[i], objective, x0, options[i], rules);
         if (!made.solver) throw UsageError(made.error);
-        runs.push_back(solve::solve(*made.solver));
+        runs.push_back(solve::solve(std::move(made.solver)));
     }
 
     const bool withTrace = !parsed.has("summary");

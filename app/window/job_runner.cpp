@@ -95,7 +95,7 @@ void JobRunner::runAll(const RunRequest& request) {
                 continue;
             }
             const double maxIterations = std::max(1, request.rules.maxIterations);
-            solve::Run run = solve::solve(*made.solver, [&](const solve::Run& soFar) {
+            solve::Run run = solve::solve(std::move(made.solver), [&](const solve::Run& soFar) {
                 if (cancelled->load()) return false;
                 const double fraction = (static_cast<double>(i) + soFar.iterations() / maxIterations) / entryCount;
                 if (fraction - lastReport >= 0.02) {

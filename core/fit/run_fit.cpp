@@ -37,7 +37,7 @@ FitResult runFit(std::shared_ptr<const Table> table, const FitRequest& request, 
         rules.relativeGradientTolerance = 1e-12;
     solve::SolverOrError made = solve::makeSolver(method, *objective, start, request.options, rules);
     if (!made.solver) throw FitError(made.error);
-    result.run = solve::solve(*made.solver, observer);
+    result.run = solve::solve(std::move(made.solver), observer);
     result.statistics = computeStatistics(*objective, result.run.x, request.confidenceLevel);
     if (!result.converged())
         result.warnings.push_back("The method did not converge (" + std::string(solve::toString(result.run.termination)) +
