@@ -408,6 +408,12 @@ private slots:
                 return offered.testFlag(button) ? button : QMessageBox::NoButton;
             };
         };
+        auto open = [&](MainWindow& window) {
+            window.show();
+            QString error;
+            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
+            QVERIFY(window.waitForIdle());
+        };
         auto edit = [](MainWindow& window) {
             // Move the start: an edit of the study, as a drag on the landscape makes.
             sw::Vector x = window.start();
@@ -419,19 +425,13 @@ private slots:
 
         {
             MainWindow window;
-            window.show();
-            QString error;
-            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
-            QVERIFY(window.waitForIdle());
+            open(window);
             QVERIFY(window.close());  // nothing changed: no question
             QCOMPARE(asked, 0);
         }
         {
             MainWindow window;
-            window.show();
-            QString error;
-            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
-            QVERIFY(window.waitForIdle());
+            open(window);
             edit(window);
             const sw::Vector edited = window.start();
 
@@ -454,10 +454,7 @@ private slots:
         }
         {
             MainWindow window;
-            window.show();
-            QString error;
-            QVERIFY2(window.openStudy(path, &error), qPrintable(error));
-            QVERIFY(window.waitForIdle());
+            open(window);
             edit(window);
             const sw::Vector edited = window.start();
 
