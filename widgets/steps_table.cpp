@@ -104,7 +104,7 @@ QVariant StepsModel::data(const QModelIndex& index, int role) const {
                    ? QVariant(int(Qt::AlignLeft | Qt::AlignVCenter))
                    : QVariant(int(Qt::AlignRight | Qt::AlignVCenter));
     if (role == Qt::ToolTipRole) {
-        if (index.column() == Note && !r.note.empty()) return QString::fromStdString(r.note);
+        if (index.column() == Note && !r.note.empty()) return QString::fromStdString(r.note.text());
         if (index.column() == StepLength && !r.trials.empty())
             return tr("%n line-search trial(s)", nullptr, static_cast<int>(r.trials.size()));
         if (index.column() == Iteration && !r.accepted) return tr("Step rejected: the iterate stays where it was");
@@ -127,9 +127,9 @@ QVariant StepsModel::data(const QModelIndex& index, int role) const {
     case EigenMin: return shortNumber(eigenMin(r));
     case EigenMax: return shortNumber(eigenMax(r));
     case Condition: return shortNumber(r.conditionNumber);
-    case Angle: return shortNumber(r.angleToSteepestDescent);
+    case Angle: return shortNumber(r.angleToSteepestDescent());
     case Evaluations: return QString::number(r.evaluations.total());
-    case Note: return QString::fromStdString(r.note);
+    case Note: return QString::fromStdString(r.note.text());
     default: return {};
     }
 }
@@ -187,9 +187,9 @@ QString StepsModel::toCsv(const Snapshot& snapshot) {
                   << (r.accepted ? "true" : "false") << csvNumber(r.stepLength) << csvNumber(r.stepNorm)
                   << csvNumber(r.trustRadius) << csvNumber(r.ratio) << csvNumber(r.damping)
                   << csvText(QString::fromStdString(r.dampingName)) << csvNumber(eigenMin(r)) << csvNumber(eigenMax(r))
-                  << csvNumber(r.conditionNumber) << csvNumber(r.angleToSteepestDescent)
+                  << csvNumber(r.conditionNumber) << csvNumber(r.angleToSteepestDescent())
                   << QString::number(r.evaluations.value) << QString::number(r.evaluations.gradient)
-                  << QString::number(r.evaluations.hessian) << csvText(QString::fromStdString(r.note));
+                  << QString::number(r.evaluations.hessian) << csvText(QString::fromStdString(r.note.text()));
             for (int i = 0; i < n; ++i) cells << (i < r.x.size() ? csvNumber(r.x(i)) : QString());
             out += cells.join(',') + '\n';
         }

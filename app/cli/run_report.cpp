@@ -73,7 +73,7 @@ json recordToJson(const solve::IterationRecord& r) {
                           {"value", number(t.value)},
                           {"slope", number(t.slope)},
                           {"accepted", t.accepted},
-                          {"failed", t.failed}});
+                          {"failed", std::string(t.failed)}});
     return {{"iteration", r.iteration},
             {"x", vectorJson(r.x)},
             {"value", number(r.value)},
@@ -93,11 +93,11 @@ json recordToJson(const solve::IterationRecord& r) {
             {"accepted", r.accepted},
             {"hessian_eigenvalues", vectorJson(r.hessianEigenvalues)},
             {"condition_number", number(r.conditionNumber)},
-            {"angle_to_steepest_descent", number(r.angleToSteepestDescent)},
+            {"angle_to_steepest_descent", number(r.angleToSteepestDescent())},
             {"jacobian_rank", r.jacobianRank},
             {"jacobian_condition", number(r.jacobianCondition)},
             {"evaluations", countsJson(r.evaluations)},
-            {"note", r.note}};
+            {"note", r.note.text()}};
 }
 
 json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
@@ -145,7 +145,7 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
         row.push_back(std::isnan(r.stepLength) ? "-" : num(r.stepLength, 3));
         row.push_back(std::isnan(r.stepNorm) ? "-" : num(r.stepNorm, 3));
         row.push_back(countsText(r.evaluations));
-        std::string note = r.note;
+        std::string note = r.note.text();
         if (!r.accepted) note = "rejected" + std::string(note.empty() ? "" : "; ") + note;
         row.push_back(note);
         table.add(row);

@@ -27,7 +27,8 @@ std::string describeTrials(const std::vector<LineSearchTrial>& trials, std::size
         if (!text.empty()) text += "; ";
         text += "alpha=" + shortNumber(t.alpha) + " f=" + shortNumber(t.value);
         if (!std::isnan(t.slope)) text += " slope=" + shortNumber(t.slope);
-        text += t.accepted ? " (accepted)" : " (" + t.failed + ")";
+        if (t.accepted) text += " (accepted)";
+        else (text += " (").append(t.failed) += ')';
     }
     return text;
 }
@@ -326,7 +327,7 @@ void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g
         for (LineSearchTrial& t : result.trials)
             if (t.alpha == fallbackAlpha && t.value == fallbackValue) {
                 t.accepted = true;
-                t.failed.clear();
+                t.failed = {};
                 break;
             }
         return;

@@ -104,7 +104,6 @@ const std::vector<MethodRegistration>& registrations();       // registry.cpp
 const MethodRegistration* findRegistration(const std::string& id);
 
 // Small shared helpers (solver_util.cpp).
-double angleToSteepestDescentDegrees(const Vector& step, const Vector& gradient);
 // Symmetric eigenvalues ascending; condition = max|l| / min|l| (inf when min is 0).
 void spectrum(const Matrix& h, Vector& eigenvalues, double& condition);
 // Option spec builders for the method registrations.
@@ -114,8 +113,7 @@ OptionSpec integerOption(std::string name, std::string description, int defaultV
 OptionSpec choiceOption(std::string name, std::string description, std::vector<std::string> choices,
                         int defaultIndex);
 OptionSpec flagOption(std::string name, std::string description, bool defaultValue);
-// A number for notes and messages: 6 significant digits, C locale ("nan", "inf" spelled out).
-std::string shortNumber(double value);
+// shortNumber (record.h) formats numbers for notes and messages.
 // "(x=1, y=2)" with the objective's variable names (at most 8 shown).
 std::string pointText(const Vector& x, const std::vector<std::string>& names);
 

@@ -30,6 +30,13 @@ struct NelderMeadOptions {
     double valueTolerance = 1e-12;   // ...and every value is this close to the best
 };
 
+// What each move adds to the record's note (the numbers are formatted only when it is read).
+constexpr const char* kExpand = "expand; simplex size {}, value spread {}";
+constexpr const char* kReflect = "reflect; simplex size {}, value spread {}";
+constexpr const char* kContractOutside = "contract outside; simplex size {}, value spread {}";
+constexpr const char* kContractInside = "contract inside; simplex size {}, value spread {}";
+constexpr const char* kShrink = "shrink; simplex size {}, value spread {}";
+
 class NelderMead final : public MethodState {
 public:
     explicit NelderMead(NelderMeadOptions o) : options_(o) {}
@@ -43,66 +50,72 @@ public:
         expansion_ = options_.adaptive ? 1 + 2 / dn : 2;
         contraction_ = options_.adaptive ? 0.75 - 1 / (2 * dn) : 0.5;
         shrink_ = options_.adaptive && n > 1 ? 1 - 1 / dn : 0.5;
-        vertices_.assign(static_cast<std::size_t>(n + 1), state.x);
+        simplex_ = state.x.replicate(1, n + 1);
         values_.assign(static_cast<std::size_t>(n + 1), state.value);
+        order_.resize(static_cast<std::size_t>(n + 1));
+        std::iota(order_.begin(), order_.end(), 0);
         for (Eigen::Index i = 0; i < n; ++i) {
-            Vector& v = vertices_[static_cast<std::size_t>(i + 1)];
+            auto v = simplex_.col(i + 1);
             if (options_.startSimplex == StartSimplex::Absolute) v[i] += options_.initialSize * std::max(1.0, std::abs(v[i]));
             else if (v[i] != 0) v[i] = (1 + options_.initialSize) * v[i];
             else v[i] = options_.zeroSize;
-            values_[static_cast<std::size_t>(i + 1)] = evaluate(eval, v);
+            trial_ = v;
+            values_[static_cast<std::size_t>(i + 1)] = evaluate(eval, trial_);
         }
+        centroid_.resize(n);
+        reflected_.resize(n);
+        trial_.resize(n);
         order();
         measure();
-        state.x = vertices_[0];
-        state.value = values_[0];
+        state.x = simplex_.col(order_[0]);
+        state.value = values_[static_cast<std::size_t>(order_[0])];
     }
 
+    // The simplex lives in the columns of one matrix, ranked through order_, and every loop
+    // is plain: with the few variables typical here, per-vertex vector objects and Eigen's
+    // per-call set-up cost more than the arithmetic of a move.
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
-        const std::size_t last = vertices_.size() - 1;
-        const auto n = static_cast<double>(last);
-        // Trial points live in members so an iteration allocates nothing; an accepted trial
-        // is swapped into the simplex (the worst vertex's storage becomes the next trial's).
-        Vector& centroid = centroid_;
-        centroid.setZero(state.x.size());
-        for (std::size_t i = 0; i < last; ++i) centroid += vertices_[i];
-        centroid /= n;
-        const Vector& worst = vertices_[last];
-        const double best = values_[0], secondWorst = values_[last - 1], worstValue = values_[last];
+        const Eigen::Index n = simplex_.rows();
+        const std::size_t last = order_.size() - 1;
+        double* c = centroid_.data();
+        const double dn = static_cast<double>(last);
+        const double* base = simplex_.data();
+        for (Eigen::Index k = 0; k < n; ++k) {  // each coordinate summed in rank order, in a register
+            double sum = 0;
+            for (std::size_t i = 0; i < last; ++i) sum += base[static_cast<Eigen::Index>(order_[i]) * n + k];
+            c[k] = sum / dn;
+        }
+        const double* worst = vertex(last);
+        const double best = value(0), secondWorst = value(last - 1), worstValue = value(last);
 
-        reflected_.noalias() = centroid + reflection_ * (centroid - worst);
+        along(reflected_, reflection_, worst, true);  // c + r (c - worst)
         const double fr = evaluate(eval, reflected_);
         const char* move;
         if (fr < best) {
-            trial_.noalias() = centroid + expansion_ * (reflected_ - centroid);
+            along(trial_, expansion_, reflected_.data(), false);  // c + e (reflected - c)
             const double fe = evaluate(eval, trial_);
-            if (fe < fr) replaceWorst(trial_, fe), move = "expand";
-            else replaceWorst(reflected_, fr), move = "reflect";
+            if (fe < fr) replaceWorst(trial_, fe), move = kExpand;
+            else replaceWorst(reflected_, fr), move = kReflect;
         } else if (fr < secondWorst) {
-            replaceWorst(reflected_, fr), move = "reflect";
+            replaceWorst(reflected_, fr), move = kReflect;
         } else if (fr < worstValue) {
-            trial_.noalias() = centroid + contraction_ * (reflected_ - centroid);
+            along(trial_, contraction_, reflected_.data(), false);
             const double fc = evaluate(eval, trial_);
-            if (fc <= fr) replaceWorst(trial_, fc), move = "contract outside";
-            else shrinkToBest(eval), move = "shrink";
+            if (fc <= fr) replaceWorst(trial_, fc), move = kContractOutside;
+            else shrinkToBest(eval), move = kShrink;
         } else {
-            trial_.noalias() = centroid + contraction_ * (worst - centroid);
+            along(trial_, contraction_, worst, false);  // c + k (worst - c)
             const double fcc = evaluate(eval, trial_);
-            if (fcc < worstValue) replaceWorst(trial_, fcc), move = "contract inside";
-            else shrinkToBest(eval), move = "shrink";
+            if (fcc < worstValue) replaceWorst(trial_, fcc), move = kContractInside;
+            else shrinkToBest(eval), move = kShrink;
         }
         order();
         measure();
         record.stepKind = StepKind::Simplex;
         record.stepLength = 1;
-        record.note.reserve(64);
-        record.note = move;
-        record.note += "; simplex size ";
-        record.note += shortNumber(size_);
-        record.note += ", value spread ";
-        record.note += shortNumber(spread_);
-        state.x = vertices_[0];
-        state.value = values_[0];
+        record.note.add(move, size_, spread_);
+        state.x = simplex_.col(order_[0]);
+        state.value = value(0);
         return {};
     }
 
@@ -118,6 +131,16 @@ public:
     }
 
 private:
+    const double* vertex(std::size_t rank) const { return simplex_.col(order_[rank]).data(); }
+    double value(std::size_t rank) const { return values_[static_cast<std::size_t>(order_[rank])]; }
+
+    // out = c + t (p - c) when fromCentroid is false, out = c + t (c - p) when it is true.
+    void along(Vector& out, double t, const double* p, bool fromCentroid) const {
+        const double* c = centroid_.data();
+        double* o = out.data();
+        for (Eigen::Index k = 0; k < out.size(); ++k) o[k] = fromCentroid ? c[k] + t * (c[k] - p[k]) : c[k] + t * (p[k] - c[k]);
+    }
+
     // A value that is not finite counts as +inf, so the simplex moves away from it.
     static double evaluate(Evaluator& eval, const Vector& x) {
         const double f = eval.value(x);
@@ -126,54 +149,57 @@ private:
         return std::numeric_limits<double>::infinity();
     }
 
-    // Takes x's storage (x gets the old worst vertex's, to be overwritten by the next trial).
-    void replaceWorst(Vector& x, double f) {
-        vertices_.back().swap(x);
-        values_.back() = f;
+    void replaceWorst(const Vector& x, double f) {
+        const int column = order_.back();
+        simplex_.col(column) = x;
+        values_[static_cast<std::size_t>(column)] = f;
     }
 
     void shrinkToBest(Evaluator& eval) {
-        for (std::size_t i = 1; i < vertices_.size(); ++i) {
-            vertices_[i] = vertices_[0] + shrink_ * (vertices_[i] - vertices_[0]);
-            values_[i] = evaluate(eval, vertices_[i]);
+        const Eigen::Index n = simplex_.rows();
+        const double* b = vertex(0);
+        for (std::size_t i = 1; i < order_.size(); ++i) {
+            double* v = simplex_.col(order_[i]).data();
+            for (Eigen::Index k = 0; k < n; ++k) v[k] = b[k] + shrink_ * (v[k] - b[k]);
+            trial_ = simplex_.col(order_[i]);
+            values_[static_cast<std::size_t>(order_[i])] = evaluate(eval, trial_);
         }
     }
 
-    // Sorts by value; ties keep their order (Lagarias et al.'s tie-breaking: a new vertex goes after equals).
-    // Insertion sort (stable), swapping vertices rather than copying them: the simplex is
-    // sorted but for its new vertex, so this is one pass.
+    // Ranks by value; ties keep their order (Lagarias et al.'s tie-breaking: a new vertex goes
+    // after equals). A stable insertion sort of the ranks: the simplex is sorted but for its
+    // new vertex, so this is one pass. Each entry is moved into place, not swapped along.
     void order() {
-        for (std::size_t i = 1; i < values_.size(); ++i)
-            for (std::size_t j = i; j > 0 && values_[j] < values_[j - 1]; --j) {
-                std::swap(values_[j], values_[j - 1]);
-                vertices_[j].swap(vertices_[j - 1]);
-            }
+        for (std::size_t i = 1; i < order_.size(); ++i) {
+            const int column = order_[i];
+            const double f = values_[static_cast<std::size_t>(column)];
+            std::size_t j = i;
+            for (; j > 0 && f < values_[static_cast<std::size_t>(order_[j - 1])]; --j) order_[j] = order_[j - 1];
+            order_[j] = column;
+        }
     }
 
-    // Size and value spread of the simplex, once per iteration (the note and the convergence
-    // test both read them).
+    // Size (largest max-norm distance to the best vertex) and value spread of the simplex, once
+    // per iteration (the note and the convergence test both read them).
     void measure() {
-        size_ = simplexSize();
-        spread_ = valueSpread();
-    }
-
-    double simplexSize() const {
-        double size = 0;
-        for (std::size_t i = 1; i < vertices_.size(); ++i)
-            size = std::max(size, (vertices_[i] - vertices_[0]).cwiseAbs().maxCoeff());
-        return size;
-    }
-
-    double valueSpread() const {
-        double spread = 0;
-        for (std::size_t i = 1; i < values_.size(); ++i) spread = std::max(spread, std::abs(values_[i] - values_[0]));
-        return spread;
+        const Eigen::Index n = simplex_.rows();
+        const double* b = vertex(0);
+        const double fb = value(0);
+        double size = 0, spread = 0;
+        for (std::size_t i = 1; i < order_.size(); ++i) {
+            const double* v = vertex(i);
+            for (Eigen::Index k = 0; k < n; ++k) size = std::max(size, std::abs(v[k] - b[k]));
+            spread = std::max(spread, std::abs(value(i) - fb));
+        }
+        size_ = size;
+        spread_ = spread;
     }
 
     NelderMeadOptions options_;
     double reflection_ = 1, expansion_ = 2, contraction_ = 0.5, shrink_ = 0.5;
-    std::vector<Vector> vertices_;
-    std::vector<double> values_;
+    Matrix simplex_;             // vertex j in column j
+    std::vector<double> values_; // by column
+    std::vector<int> order_;     // columns ranked by value, best first
     Vector centroid_, reflected_, trial_;
     double size_ = 0, spread_ = 0;  // of the current simplex (measure())
 };

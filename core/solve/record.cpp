@@ -68,12 +68,18 @@ const char* toString(PointKind k) {
 }
 
 namespace {
-std::string shortNumber(double v) {
-    if (std::isnan(v)) return "nan";
-    if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-    char buffer[32];
-    auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, 6);
-    return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
+// Appends v with `digits` significant digits (to_chars: locale-free, shortest that fits).
+void appendNumber(std::string& out, double v, int digits) {
+    if (std::isnan(v)) {
+        out += "nan";
+    } else if (std::isinf(v)) {
+        out += v > 0 ? "inf" : "-inf";
+    } else {
+        char buffer[32];
+        auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, digits);
+        if (ec == std::errc()) out.append(buffer, ptr);
+        else out += '?';
+    }
 }
 
 std::string listOf(const Vector& values) {
@@ -84,6 +90,103 @@ std::string listOf(const Vector& values) {
     return text;
 }
 }  // namespace
+
+std::string shortNumber(double value, int digits) {
+    std::string text;
+    appendNumber(text, value, digits);
+    return text;
+}
+
+double IterationRecord::angleToSteepestDescent() const {
+    if (step.size() != gradient.size() || step.size() == 0) return kNaN;
+    const double sn = step.norm(), gn = gradient.norm();
+    if (!(sn > 0) || !(gn > 0) || !std::isfinite(sn) || !std::isfinite(gn)) return kNaN;
+    // 2 atan2(|u - v|, |u + v|) for unit u = s/|s|, v = -g/|g| keeps its accuracy near 0 and
+    // 180 degrees, where acos does not.
+    double difference = 0, sum = 0;
+    for (Eigen::Index i = 0; i < step.size(); ++i) {
+        const double u = step[i] / sn, v = -gradient[i] / gn;
+        difference += (u - v) * (u - v);
+        sum += (u + v) * (u + v);
+    }
+    return 2.0 * std::atan2(std::sqrt(difference), std::sqrt(sum)) * 180.0 / 3.14159265358979323846;
+}
+
+// ---- Note -----------------------------------------------------------------------------
+
+Note& Note::operator=(const char* text) {
+    text_ = text;
+    parts_ = 0;
+    return *this;
+}
+
+Note& Note::operator=(std::string text) {
+    text_ = std::move(text);
+    parts_ = 0;
+    return *this;
+}
+
+Note& Note::operator+=(std::string_view more) {
+    render();
+    text_ += more;
+    return *this;
+}
+
+void Note::add(const char* pattern, double a, double b, double c) {
+    if (!pattern || !*pattern) return;
+    if (parts_ == static_cast<int>(deferred_.size())) render();
+    deferred_[static_cast<std::size_t>(parts_++)] = Part{pattern, {a, b, c}};
+}
+
+void Note::add(const Note& other) {
+    if (other.empty()) return;
+    if (other.text_.empty() && parts_ + other.parts_ <= static_cast<int>(deferred_.size())) {
+        for (int i = 0; i < other.parts_; ++i) deferred_[static_cast<std::size_t>(parts_++)] = other.deferred_[static_cast<std::size_t>(i)];
+        return;
+    }
+    render();
+    if (!text_.empty()) text_ += "; ";
+    text_ += other.text();
+}
+
+void Note::clear() {
+    text_.clear();
+    parts_ = 0;
+}
+
+std::string Note::text() const {
+    if (parts_ == 0) return text_;
+    std::string out = text_;
+    for (int i = 0; i < parts_; ++i) {
+        if (!out.empty()) out += "; ";
+        append(out, deferred_[static_cast<std::size_t>(i)]);
+    }
+    return out;
+}
+
+void Note::render() {
+    if (parts_ == 0) return;
+    text_ = text();
+    parts_ = 0;
+}
+
+// "{}" takes the next number with 6 significant digits, "{3}" with 3.
+void Note::append(std::string& out, const Part& part) {
+    std::size_t next = 0;
+    for (const char* p = part.pattern; *p; ++p) {
+        if (*p == '{' && next < part.numbers.size()) {
+            const char* close = p + 1;
+            int digits = 0;
+            while (*close >= '0' && *close <= '9') digits = digits * 10 + (*close++ - '0');
+            if (*close == '}') {
+                appendNumber(out, part.numbers[next++], digits > 0 ? digits : 6);
+                p = close;
+                continue;
+            }
+        }
+        out += *p;
+    }
+}
 
 EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance) {
     EndPoint end;

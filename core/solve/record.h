@@ -5,9 +5,11 @@
 
 #include "core/objective/objective.h"
 
+#include <array>
 #include <cmath>
 #include <limits>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace sw::solve {
@@ -36,13 +38,53 @@ enum class StepKind {
 };
 const char* toString(StepKind kind);  // kebab-case, e.g. "negative-curvature"
 
+// v with `digits` significant digits ("1.5e-07", "nan", "inf"); locale-free.
+std::string shortNumber(double value, int digits = 6);
+
 // One trial of a line search.
 struct LineSearchTrial {
     double alpha = kNaN;
     double value = kNaN;
     double slope = kNaN;  // directional derivative g(x + alpha d)'d; NaN when not evaluated
     bool accepted = false;
-    std::string failed;   // "" when accepted, else "sufficient decrease", "curvature", "non-finite", ...
+    // "" when accepted, else "sufficient decrease", "curvature", "non-finite", ...: always a
+    // string literal, so a trial is trivially copyable and a failed trial allocates nothing.
+    std::string_view failed;
+};
+
+// A record's short readable note. Plain text, followed by up to three deferred parts: a pattern
+// (a string literal, kept by pointer) whose numbers are only formatted when text() is called.
+// Formatting numbers costs more than a cheap iteration's arithmetic, and most notes are never
+// read, so hot loops add parts; anything else may assign or append text.
+//   note.add("radius shrinks to {}", radius);   // "{}": 6 significant digits, "{3}": 3
+class Note {
+public:
+    Note() = default;
+    Note(const char* text) : text_(text) {}
+    Note(std::string text) : text_(std::move(text)) {}
+    Note& operator=(const char* text);
+    Note& operator=(std::string text);
+    // Appends text as it is (deferred parts are formatted first, so the order stays).
+    Note& operator+=(std::string_view more);
+    // Appends "; " (unless the note is empty) and the pattern with its numbers, deferred.
+    void add(const char* pattern, double a = kNaN, double b = kNaN, double c = kNaN);
+    // Appends "; " (unless either is empty) and another note, keeping its deferred parts deferred.
+    void add(const Note& other);
+    bool empty() const { return text_.empty() && parts_ == 0; }
+    void clear();
+    std::string text() const;
+    bool contains(std::string_view what) const { return text().find(what) != std::string::npos; }
+
+private:
+    struct Part {
+        const char* pattern = nullptr;
+        std::array<double, 3> numbers{};
+    };
+    void render();  // formats the deferred parts into text_
+    static void append(std::string& out, const Part& part);
+    std::string text_;
+    std::array<Part, 3> deferred_{};
+    int parts_ = 0;
 };
 
 struct EvaluationCounts {
@@ -77,12 +119,14 @@ struct IterationRecord {
 
     Vector hessianEigenvalues;       // ascending; empty when not computed (n > 50)
     double conditionNumber = kNaN;   // |lambda|max / |lambda|min
-    double angleToSteepestDescent = kNaN;  // degrees between step and -gradient
+    // Degrees between the step and -gradient (NaN without a step), from the stored step and
+    // gradient when asked: 2 atan2(|u - v|, |u + v|) for the unit vectors, accurate near 0 and 180.
+    double angleToSteepestDescent() const;
     int jacobianRank = -1;           // least-squares methods
     double jacobianCondition = kNaN;
 
     EvaluationCounts evaluations;    // cumulative, including this iteration's work
-    std::string note;                // short, readable ("BFGS update skipped: y's <= 0")
+    Note note;                       // short, readable ("BFGS update skipped: y's <= 0"); note.text()
 };
 
 enum class Termination {

@@ -51,6 +51,8 @@ public:
             return;
         }
         method_->start(eval_, state_);
+        // A derivative-free method may start from another point (Nelder-Mead: its best vertex).
+        if (!info_.needsGradient && state_.x != start_) diagnosticGradient();
         run_.trace.push_back(pointRecord());
         initialGradientNorm_ = run_.trace.back().gradientNorm;
         stoppedAtCurrentPoint(kNaN, false);
@@ -72,7 +74,6 @@ public:
             }
             if (record.step.size() != previousX.size()) record.step = state_.x - previousX;
             record.stepNorm = record.step.norm();
-            if (record.stepNorm > 0) record.angleToSteepestDescent = angleToSteepestDescentDegrees(record.step, record.gradient);
             if (std::isnan(record.actualDecrease) && record.accepted && std::isfinite(state_.value))
                 record.actualDecrease = previousValue - state_.value;
             record.evaluations = eval_.counts();
@@ -81,7 +82,9 @@ public:
         const double stepNorm = run_.trace.back().stepNorm;
         ++state_.iteration;
         if (!state_.hasHessian && info_.needsHessian) state_.hessian.resize(0, 0);
-        if (!info_.needsGradient) diagnosticGradient();
+        // The shown gradient of a derivative-free method only changes with the point (a simplex
+        // step often keeps its best vertex).
+        if (!info_.needsGradient && state_.x != previousX) diagnosticGradient();
         run_.trace.push_back(pointRecord());
 
         if (outcome.termination != Termination::Running) {

@@ -11,21 +11,6 @@
 
 namespace sw::solve {
 
-double angleToSteepestDescentDegrees(const Vector& step, const Vector& gradient) {
-    if (step.size() != gradient.size() || step.size() == 0) return kNaN;
-    const double sn = step.norm(), gn = gradient.norm();
-    if (!(sn > 0) || !(gn > 0) || !std::isfinite(sn) || !std::isfinite(gn)) return kNaN;
-    // 2 atan2(|u - v|, |u + v|) for unit u = s/|s|, v = -g/|g| keeps its accuracy near 0 and
-    // 180 degrees, where acos does not. A plain loop: this runs every iteration, so no temporaries.
-    double difference = 0, sum = 0;
-    for (Eigen::Index i = 0; i < step.size(); ++i) {
-        const double u = step[i] / sn, v = -gradient[i] / gn;
-        difference += (u - v) * (u - v);
-        sum += (u + v) * (u + v);
-    }
-    return 2.0 * std::atan2(std::sqrt(difference), std::sqrt(sum)) * 180.0 / 3.14159265358979323846;
-}
-
 void spectrum(const Matrix& h, Vector& eigenvalues, double& condition) {
     condition = kNaN;
     eigenvalues.resize(0);
@@ -76,14 +61,6 @@ OptionSpec flagOption(std::string name, std::string description, bool defaultVal
     s.type = OptionSpec::Type::Boolean;
     s.defaultValue = defaultValue ? 1 : 0;
     return s;
-}
-
-std::string shortNumber(double v) {
-    if (std::isnan(v)) return "nan";
-    if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-    char buffer[32];
-    auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, 6);
-    return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
 }
 
 std::string pointText(const Vector& x, const std::vector<std::string>& names) {

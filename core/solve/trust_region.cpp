@@ -123,15 +123,17 @@ Trial evaluateTrial(Evaluator& eval, const State& state, const Vector& step, dou
     return t;
 }
 
-std::string ratioNote(const Trial& t) {
+const char* ratioNote(const Trial& t) {
     if (!t.finite) return "trial point not finite";
     if (t.withinRounding) return "decreases within rounding, ratio taken as 1";
     return "";
 }
 
-void appendNote(std::string& note, const std::string& more) {
+// Appends "; " and `more` (nothing when it is empty).
+void appendNote(Note& note, const std::string& more) {
     if (more.empty()) return;
-    note += note.empty() ? more : "; " + more;
+    if (!note.empty()) note += "; ";
+    note += more;
 }
 
 // ---- trust-region methods with the exact Hessian --------------------------------------
@@ -165,7 +167,7 @@ public:
         const double stepNorm = record.step.norm();
         Trial trial = evaluateTrial(eval, state, record.step, sub.predictedDecrease, false, record);
         record.ratio = trial.ratio;
-        appendNote(record.note, ratioNote(trial));
+        record.note.add(ratioNote(trial));
 
         // Nocedal & Wright (2006), Alg. 4.1.
         const double before = radius_;
@@ -174,8 +176,8 @@ public:
         } else if (trial.ratio > settings_.expandAbove && stepNorm >= 0.99 * radius_) {
             radius_ = std::min(settings_.expandFactor * radius_, settings_.maxRadius);
         }
-        if (radius_ < before) appendNote(record.note, "radius shrinks to " + shortNumber(radius_));
-        else if (radius_ > before) appendNote(record.note, "radius grows to " + shortNumber(radius_));
+        if (radius_ < before) record.note.add("radius shrinks to {}", radius_);
+        else if (radius_ > before) record.note.add("radius grows to {}", radius_);
 
         if (trial.ratio > settings_.eta) {
             state.x = std::move(trial.x);
@@ -183,8 +185,7 @@ public:
             state.hasHessian = true;
         } else {
             record.accepted = false;
-            appendNote(record.note, "step rejected (ratio " + shortNumber(trial.ratio) + " <= eta " +
-                                        shortNumber(settings_.eta) + ")");
+            record.note.add("step rejected (ratio {} <= eta {})", trial.ratio, settings_.eta);
         }
         if (radius_ < settings_.minRadius * (1.0 + state.x.norm()))
             return {Termination::TrustRegionCollapsed,
@@ -237,7 +238,7 @@ public:
         record.note = sub.note;
         const Trial trial = evaluateTrial(eval, state, sub.step, sub.predictedDecrease, false, record);
         record.ratio = trial.ratio;
-        appendNote(record.note, ratioNote(trial));
+        record.note.add(ratioNote(trial));
 
         // Cartis, Gould & Toint (2011), Part I, eq. (2.5).
         if (trial.ratio >= settings_.verySuccessful) {
@@ -245,7 +246,7 @@ public:
         } else if (!(trial.ratio >= settings_.eta)) {
             sigma_ *= settings_.increase;
         }
-        if (sigma_ != record.damping) appendNote(record.note, "sigma becomes " + shortNumber(sigma_));
+        if (sigma_ != record.damping) record.note.add("sigma becomes {}", sigma_);
 
         if (trial.ratio >= settings_.eta) {
             state.x = trial.x;
@@ -253,8 +254,7 @@ public:
             state.hasHessian = true;
         } else {
             record.accepted = false;
-            appendNote(record.note, "step rejected (ratio " + shortNumber(trial.ratio) + " < eta " +
-                                        shortNumber(settings_.eta) + ")");
+            record.note.add("step rejected (ratio {} < eta {})", trial.ratio, settings_.eta);
         }
         if (sigma_ > settings_.maxSigma)
             return {Termination::TrustRegionCollapsed,
@@ -298,7 +298,7 @@ public:
         const double stepNorm = sub.step.norm();
         const Trial trial = evaluateTrial(eval, state, sub.step, sub.predictedDecrease, true, record);
         record.ratio = trial.ratio;
-        appendNote(record.note, ratioNote(trial));
+        record.note.add(ratioNote(trial));
 
         // The model is updated from every trial, accepted or not (N&W Alg. 6.2).
         if (trial.finite) {
@@ -330,8 +330,8 @@ public:
             radius_ = settings_.radius.shrinkFactor *
                       (settings_.radius.shrinkFromStep ? std::min(radius_, std::max(stepNorm, kEps)) : radius_);
         }
-        if (radius_ < before) appendNote(record.note, "radius shrinks to " + shortNumber(radius_));
-        else if (radius_ > before) appendNote(record.note, "radius grows to " + shortNumber(radius_));
+        if (radius_ < before) record.note.add("radius shrinks to {}", radius_);
+        else if (radius_ > before) record.note.add("radius grows to {}", radius_);
 
         if (trial.ratio > settings_.radius.eta) {
             state.x = trial.x;
@@ -339,7 +339,7 @@ public:
             state.gradient = trial.gradient;
         } else {
             record.accepted = false;
-            appendNote(record.note, "step rejected (ratio " + shortNumber(trial.ratio) + ")");
+            record.note.add("step rejected (ratio {})", trial.ratio);
         }
         if (radius_ < settings_.radius.minRadius * (1.0 + state.x.norm()))
             return {Termination::TrustRegionCollapsed,

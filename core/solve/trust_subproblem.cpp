@@ -15,15 +15,6 @@ namespace {
 
 constexpr double kEps = std::numeric_limits<double>::epsilon();
 
-// Three significant digits for notes; to_chars is locale-free and cheap inside a solve loop.
-std::string formatNumber(double v) {
-    if (std::isnan(v)) return "nan";
-    if (std::isinf(v)) return v > 0 ? "inf" : "-inf";
-    char buffer[32];
-    auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, 3);
-    return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
-}
-
 // The roots tau of |z + tau d| = radius given zz = |z|^2, zd = z'd, dd = |d|^2 (z inside or
 // on the ball), smaller first. Written to avoid cancellation: the product of the roots is
 // (|z|^2 - radius^2) / |d|^2.
@@ -179,20 +170,22 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
     const Vector newton = -llt.solve(g);
     const Vector gradientDirection = -g;
     const double curvature = g.dot(b * g) + tau * gnorm * gnorm;  // g'(B + tau I)g > 0
-    const std::string shifted =
-        tau > 0 ? " (B not positive definite: path built on B + " + formatNumber(tau) + " I)" : "";
+    // Notes are deferred patterns (formatted when read); a shifted path says so in each.
+    const bool shifted = tau > 0;
 
     if (newton.allFinite() && newton.norm() <= radius) {
         result.step = newton;
         result.kind = StepKind::Interior;
-        result.note = (tau > 0 ? "shifted Newton point inside the region" : "Newton point inside the region") + shifted;
+        if (shifted) result.note.add("shifted Newton point inside the region (B not positive definite: path built on B + {3} I)", tau);
+        else result.note.add("Newton point inside the region");
     } else {
         const Vector cauchy = -(gnorm * gnorm / curvature) * g;
         if (!newton.allFinite() || cauchy.norm() >= radius) {
             result.step = (radius / gnorm) * gradientDirection;
             result.kind = StepKind::Cauchy;
             result.onBoundary = true;
-            result.note = "Cauchy point on the boundary" + shifted;
+            if (shifted) result.note.add("Cauchy point on the boundary (B not positive definite: path built on B + {3} I)", tau);
+            else result.note.add("Cauchy point on the boundary");
         } else {
             double tauMinus = 0, tauPlus = 0;
             boundaryRoots(cauchy, newton - cauchy, radius, tauMinus, tauPlus);
@@ -200,7 +193,10 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
             result.step = cauchy + t * (newton - cauchy);
             result.kind = StepKind::Dogleg;
             result.onBoundary = true;
-            result.note = "dogleg path meets the boundary at " + formatNumber(t) + " of the way from Cauchy to Newton point" + shifted;
+            if (shifted)
+                result.note.add("dogleg path meets the boundary at {3} of the way from Cauchy to Newton point "
+                                "(B not positive definite: path built on B + {3} I)", t, tau);
+            else result.note.add("dogleg path meets the boundary at {3} of the way from Cauchy to Newton point", t);
         }
     }
     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
@@ -244,8 +240,8 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
             result.step = z + tau * d;
             result.kind = StepKind::NegativeCurvature;
             result.onBoundary = true;
-            result.note = "CG met curvature d'Bd = " + formatNumber(curvature) + " <= 0 at inner iteration " +
-                          std::to_string(j + 1) + "; followed to the boundary";
+            result.note.add("CG met curvature d'Bd = {3} <= 0 at inner iteration {}; followed to the boundary", curvature,
+                            j + 1);
             finished = true;
             break;
         }
@@ -256,7 +252,7 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
             result.step = z + tauPlus * d;
             result.kind = StepKind::Boundary;
             result.onBoundary = true;
-            result.note = "CG left the region at inner iteration " + std::to_string(j + 1);
+            result.note.add("CG left the region at inner iteration {}", j + 1);
             finished = true;
             break;
         }
@@ -266,7 +262,7 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
         if (std::sqrt(rrNext) <= tolerance) {
             result.step = z;
             result.kind = StepKind::Interior;
-            result.note = "CG converged inside the region in " + std::to_string(j + 1) + " inner iterations";
+            result.note.add("CG converged inside the region in {} inner iterations", j + 1);
             finished = true;
             break;
         }
@@ -278,7 +274,7 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
     if (!finished) {
         result.step = z;
         result.kind = StepKind::Interior;
-        result.note = "CG stopped at its limit of " + std::to_string(maxIterations) + " inner iterations";
+        result.note.add("CG stopped at its limit of {} inner iterations", maxIterations);
     }
     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
     return result;
@@ -316,8 +312,7 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
                     result.onBoundary = true;
                     result.multiplier = lambda;
                     result.innerIterations = it;
-                    result.note = "boundary step, lambda = " + formatNumber(lambda) + " after " + std::to_string(it) +
-                                  " Cholesky-Newton iterations";
+                    result.note.add("boundary step, lambda = {3} after {} Cholesky-Newton iterations", lambda, it);
                     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
                     return result;
                 }
@@ -368,8 +363,8 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
                 result.hardCase = true;
                 result.onBoundary = true;
                 result.multiplier = lo;
-                result.note = "hard case: g is orthogonal to the eigenvector of lambda_min = " + formatNumber(lambda1) +
-                              "; moved along it to the boundary";
+                result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it to the boundary",
+                                lambda1);
             }
             result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
             return result;
@@ -388,8 +383,7 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
     result.onBoundary = true;
     result.multiplier = lambda;
     result.innerIterations = iterations;
-    result.note = "boundary step, lambda = " + formatNumber(lambda) + " after " + std::to_string(iterations) +
-                  " secular-equation iterations";
+    result.note.add("boundary step, lambda = {3} after {} secular-equation iterations", lambda, iterations);
     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
     return result;
 }
@@ -420,8 +414,7 @@ SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
             result.step = partial + tau * eb.q.col(0);
             result.hardCase = true;
             result.multiplier = lo;
-            result.note = "hard case: g is orthogonal to the eigenvector of lambda_min = " + formatNumber(lambda1) +
-                          "; moved along it";
+            result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it", lambda1);
             result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
             return result;
         }
@@ -434,8 +427,8 @@ SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
     result.step = eb.step(delta);
     result.multiplier = lambda;
     result.innerIterations = iterations;
-    result.note = "cubic model minimiser, lambda = sigma |p| = " + formatNumber(lambda) + " after " +
-                  std::to_string(iterations) + " secular-equation iterations";
+    result.note.add("cubic model minimiser, lambda = sigma |p| = {3} after {} secular-equation iterations", lambda,
+                    iterations);
     result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
     return result;
 }

@@ -22,7 +22,7 @@ struct SubproblemResult {
     int innerIterations = 0;             // CG iterations or secular-equation Newton steps
     bool onBoundary = false;             // |p| = radius (within rounding)
     bool hardCase = false;               // exact/cubic: the Moré–Sorensen hard case occurred
-    std::string note;                    // short and readable
+    Note note;                           // short and readable (deferred numbers: Note in record.h)
 };
 
 // m(0) - m(p) for the quadratic model; positive means the model decreases.

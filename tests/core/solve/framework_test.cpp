@@ -28,6 +28,38 @@ TEST(Solver, GradientDescentReachesTheQuadraticsMinimiser) {
     EXPECT_EQ(run.endPoint.kind, PointKind::Minimum);
 }
 
+TEST(RecordNote, DeferredNumbersAreFormattedWhenRead) {
+    Note note;
+    EXPECT_TRUE(note.empty());
+    note.add("radius shrinks to {}", 0.125);
+    EXPECT_FALSE(note.empty());
+    EXPECT_EQ(note.text(), "radius shrinks to 0.125");
+    note.add("lambda = {3} after {} iterations", 1.0 / 3.0, 12);
+    EXPECT_EQ(note.text(), "radius shrinks to 0.125; lambda = 0.333 after 12 iterations");
+    EXPECT_TRUE(note.contains("0.333 after"));
+    note += " (plain text)";  // appended after the deferred parts, in order
+    EXPECT_EQ(note.text(), "radius shrinks to 0.125; lambda = 0.333 after 12 iterations (plain text)");
+    note = "replaced";
+    EXPECT_EQ(note.text(), "replaced");
+    note.clear();
+    EXPECT_TRUE(note.empty());
+}
+
+TEST(RecordNote, MorePartsThanItDefersAreKeptInOrder) {
+    Note note("start");
+    for (int i = 1; i <= 5; ++i) note.add("part {}", i);
+    EXPECT_EQ(note.text(), "start; part 1; part 2; part 3; part 4; part 5");
+    Note other;
+    other.add("x = {}", 2.5);
+    Note joined;
+    joined.add(other);
+    joined.add(note);
+    EXPECT_EQ(joined.text(), "x = 2.5; start; part 1; part 2; part 3; part 4; part 5");
+    Note special;
+    special.add("{} {} {}", std::numeric_limits<double>::quiet_NaN(), std::numeric_limits<double>::infinity(), -1e-300);
+    EXPECT_EQ(special.text(), "nan inf -1e-300");
+}
+
 TEST(Solver, RecordsDescribeEveryIterateAndItsStep) {
     const FunctionObjective f = convexQuadratic();
     solve::Run run = solve("gradient-descent", f, point(2, -1));
@@ -39,7 +71,7 @@ TEST(Solver, RecordsDescribeEveryIterateAndItsStep) {
         EXPECT_NEAR((r.x + r.step - run.trace[k + 1].x).norm(), 0, 1e-12);
         EXPECT_NEAR(r.stepNorm, r.step.norm(), 1e-15);
         EXPECT_NEAR(r.gradientNorm, r.gradient.norm(), 1e-15);
-        EXPECT_NEAR(r.angleToSteepestDescent, 0, 1e-6);  // the step is along -g
+        EXPECT_NEAR(r.angleToSteepestDescent(), 0, 1e-6);  // the step is along -g
         EXPECT_FALSE(r.trials.empty());
         EXPECT_TRUE(r.trials.back().accepted);
         ASSERT_EQ(r.hessianEigenvalues.size(), 2);

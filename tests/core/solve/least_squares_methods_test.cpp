@@ -186,7 +186,7 @@ TEST(GaussNewton, TakesTheMinimumNormDirectionWhenTheJacobianIsRankDeficient) {
     solve::Run run = solve::solve("gauss-newton", f, point(0.0, 0.0), {}, fitRules());
     ASSERT_FALSE(run.trace.empty());
     EXPECT_EQ(run.trace.front().jacobianRank, 1);
-    EXPECT_NE(run.trace.front().note.find("rank-deficient"), std::string::npos) << run.trace.front().note;
+    EXPECT_NE(run.trace.front().note.text().find("rank-deficient"), std::string::npos) << run.trace.front().note.text();
     EXPECT_NEAR(run.x[0], 1.0, 1e-12);  // the minimum-norm solution of a + b = 2
     EXPECT_NEAR(run.x[1], 1.0, 1e-12);
 }

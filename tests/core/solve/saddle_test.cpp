@@ -21,7 +21,7 @@ TEST(Newton, ConvergesToTheSaddleOfXSquaredMinusYSquared) {
     EXPECT_EQ(run.endPoint.kind, PointKind::Saddle);
     EXPECT_EQ(run.endPoint.index, 1);
     EXPECT_NE(run.endPoint.description.find("saddle of index 1"), std::string::npos);
-    EXPECT_NE(run.trace[0].note.find("indefinite"), std::string::npos) << run.trace[0].note;
+    EXPECT_NE(run.trace[0].note.text().find("indefinite"), std::string::npos) << run.trace[0].note.text();
 }
 
 TEST(SaddleFreeNewton, LeavesTheSaddleOfXSquaredMinusYSquared) {
@@ -32,7 +32,7 @@ TEST(SaddleFreeNewton, LeavesTheSaddleOfXSquaredMinusYSquared) {
     EXPECT_NEAR(run.x[0], 0, 1e-12);          // the positive-curvature direction is solved exactly
     EXPECT_GT(std::abs(run.x[1]), 1e3);       // the negative one is followed away from the saddle
     EXPECT_LT(run.value, -1e6);
-    EXPECT_NE(run.trace[0].note.find("flipped negative eigenvalues -2"), std::string::npos) << run.trace[0].note;
+    EXPECT_NE(run.trace[0].note.text().find("flipped negative eigenvalues -2"), std::string::npos) << run.trace[0].note.text();
 }
 
 TEST(Newton, ConvergesToASaddleOfHimmelblauFromNearby) {

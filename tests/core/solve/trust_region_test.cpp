@@ -88,7 +88,7 @@ TEST(TrustRegion, ARejectedStepShrinksTheRadius) {
         ++rejected;
         EXPECT_LT(r.ratio, 0.1);
         EXPECT_LT(run.trace[k + 1].trustRadius, r.trustRadius);
-        EXPECT_NE(r.note.find("rejected"), std::string::npos) << r.note;
+        EXPECT_NE(r.note.text().find("rejected"), std::string::npos) << r.note.text();
     }
     EXPECT_GT(rejected, 0);
     EXPECT_TRUE(isConvergence(run.termination)) << run.message;
@@ -115,7 +115,7 @@ TEST(TrustRegion, ExactSolverLeavesAnExactSaddleThroughTheHardCase) {
     made.solver->step();
     const IterationRecord& first = made.solver->run().trace.front();
     EXPECT_EQ(first.stepKind, StepKind::NegativeCurvature);
-    EXPECT_NE(first.note.find("hard case"), std::string::npos) << first.note;
+    EXPECT_NE(first.note.text().find("hard case"), std::string::npos) << first.note.text();
     EXPECT_NEAR(std::abs(first.step[1]), 1.0, 1e-9);  // to the boundary of the unit region along y
     (void)f;
 }
@@ -145,7 +145,7 @@ TEST(Sr1, SkipsTheUpdateWhenTheDenominatorVanishes) {
                               [](const Vector&, Matrix& h) { h.setIdentity(); }, "round bowl");
     const RunResult run = solveOrFail("sr1", f, problems::point(0.3, -0.2));
     ASSERT_GE(run.trace.size(), 2u);
-    EXPECT_NE(run.trace.front().note.find("SR1 update skipped"), std::string::npos) << run.trace.front().note;
+    EXPECT_NE(run.trace.front().note.text().find("SR1 update skipped"), std::string::npos) << run.trace.front().note.text();
     EXPECT_TRUE(isConvergence(run.termination)) << run.message;
 }
 

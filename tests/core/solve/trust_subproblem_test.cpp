@@ -121,7 +121,7 @@ TEST(Dogleg, ShiftsAnIndefiniteHessianAndStillDecreasesTheModel) {
     EXPECT_GT(r.multiplier, 2.0);  // tau must exceed -lambda_min
     EXPECT_LE(r.step.norm(), 1.0 + 1e-12);
     EXPECT_GT(r.predictedDecrease, 0);
-    EXPECT_NE(r.note.find("not positive definite"), std::string::npos);
+    EXPECT_NE(r.note.text().find("not positive definite"), std::string::npos);
 }
 
 TEST(Steihaug, StopsOnNegativeCurvatureAndGoesToTheBoundary) {

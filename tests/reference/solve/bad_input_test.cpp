@@ -98,7 +98,7 @@ TEST(BadInput, ATrialPointWhereTheFormulaIsNotFiniteIsRejectedAndTheRunGoesOn) {
         EXPECT_TRUE(sw::solve::isConvergence(run.termination)) << run.message;
         EXPECT_NEAR(run.x[0], 1.0, 1e-8);
         bool sawRejectedNonFinite = false;
-        for (const auto& r : run.trace) sawRejectedNonFinite |= !r.accepted && r.note.find("not finite") != std::string::npos;
+        for (const auto& r : run.trace) sawRejectedNonFinite |= !r.accepted && r.note.text().find("not finite") != std::string::npos;
         EXPECT_TRUE(sawRejectedNonFinite);
     }
 }
