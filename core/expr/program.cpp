@@ -9,6 +9,9 @@
 // GCC 12 at -O2 vectorises only loops that need no run-time alias checks; the block
 // loops below need them (an instruction may write over its operand), so ask for more.
 #pragma GCC optimize("tree-vectorize", "vect-cost-model=dynamic")
+// Fused single-point opcodes must round like the separate instructions they replace: never
+// contract a*b + c into one fused multiply-add (tested: Fusion.KeepsTwoRoundingsInMultiplyAdd).
+#pragma GCC optimize("fp-contract=off")
 #include "core/expr/program_impl.h"
 #include "core/expr/vector_math.h"
 
@@ -17,6 +20,7 @@
 #include <cmath>
 #include <cstring>
 #include <limits>
+#include <sstream>
 #include <unordered_map>
 
 namespace sw::expr {
@@ -83,7 +87,17 @@ void runScalar(const ScalarInstruction* in, double* __restrict r) {
     // Same order as ScalarOp.
     static const void* const handler[] = {&&add, &&sub, &&mul, &&div, &&neg, &&square, &&cube, &&fourth,
                                           &&reciprocal, &&powInteger, &&sin, &&cos, &&exp, &&log, &&sqrt,
-                                          &&atan, &&pow, &&select, &&unary, &&binary, &&end};
+                                          &&atan, &&pow, &&select, &&unary, &&binary,
+#define SW_EXPR_FUSED_LABEL(P, p, Q, q) &&fused_##P##Q, &&fused_##P##Q##r,
+                                          SW_EXPR_PAIRS(SW_EXPR_FUSED_LABEL)
+#undef SW_EXPR_FUSED_LABEL
+#define SW_EXPR_SQUARE_LABEL(X, P, p) &&fused_##P##Square,
+                                          SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_LABEL, X)
+#undef SW_EXPR_SQUARE_LABEL
+#define SW_EXPR_SQUARE_ADD_LABEL(X, P, p) &&fused_##P##SquareAdd, &&fused_##P##SquareAddr,
+                                          SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_ADD_LABEL, X)
+#undef SW_EXPR_SQUARE_ADD_LABEL
+                                          &&end};
     static_assert(sizeof handler / sizeof handler[0] == static_cast<std::size_t>(ScalarOp::End) + 1);
 #define SW_DISPATCH() goto* handler[static_cast<std::size_t>(in->op)]
 #define SW_NEXT() \
@@ -154,13 +168,227 @@ unary:
 binary:
     r[in->dst] = apply2(in->generic, r[in->a], r[in->b]);
     SW_NEXT();
+    // Fused forms: the inner operation first, rounded to a double, then the outer one.
+#define SW_EXPR_FUSED_HANDLER(P, p, Q, q)                  \
+    fused_##P##Q : {                                       \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = t q r[in->c];                         \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Q##r : {                                    \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = r[in->c] q t;                         \
+        SW_NEXT();                                         \
+    }
+    SW_EXPR_PAIRS(SW_EXPR_FUSED_HANDLER)
+#undef SW_EXPR_FUSED_HANDLER
+#define SW_EXPR_SQUARE_HANDLER(X, P, p)                    \
+    fused_##P##Square : {                                  \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = t * t;                                \
+        SW_NEXT();                                         \
+    }
+    SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_HANDLER, X)
+#undef SW_EXPR_SQUARE_HANDLER
+#define SW_EXPR_SQUARE_ADD_HANDLER(X, P, p)                \
+    fused_##P##SquareAdd : {                               \
+        const double t = r[in->a] p r[in->b];              \
+        const double t2 = t * t;                           \
+        r[in->dst] = t2 + r[in->c];                        \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##SquareAddr : {                              \
+        const double t = r[in->a] p r[in->b];              \
+        const double t2 = t * t;                           \
+        r[in->dst] = r[in->c] + t2;                        \
+        SW_NEXT();                                         \
+    }
+    SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_ADD_HANDLER, X)
+#undef SW_EXPR_SQUARE_ADD_HANDLER
 end:
     return;
 #undef SW_NEXT
 #undef SW_DISPATCH
 }
 #pragma GCC diagnostic pop
+
+// ---- peephole fusion of the flattened program ----------------------------------------------------
+
+// Registers an instruction reads, in operand order (PowInteger's b is its exponent, not a register).
+int operandsOf(const ScalarInstruction& in, std::int32_t out[3]) {
+    switch (in.op) {
+    case ScalarOp::End: return 0;
+    case ScalarOp::Neg: case ScalarOp::Square: case ScalarOp::Cube: case ScalarOp::Fourth:
+    case ScalarOp::Reciprocal: case ScalarOp::PowInteger: case ScalarOp::Sin: case ScalarOp::Cos:
+    case ScalarOp::Exp: case ScalarOp::Log: case ScalarOp::Sqrt: case ScalarOp::Atan: case ScalarOp::Unary:
+        out[0] = in.a;
+        return 1;
+    case ScalarOp::Add: case ScalarOp::Sub: case ScalarOp::Mul: case ScalarOp::Div:
+    case ScalarOp::Pow: case ScalarOp::Binary:
+    case ScalarOp::AddSquare: case ScalarOp::SubSquare: case ScalarOp::MulSquare: case ScalarOp::DivSquare:
+        out[0] = in.a;
+        out[1] = in.b;
+        return 2;
+    default:  // Select and the three-operand fused forms
+        out[0] = in.a;
+        out[1] = in.b;
+        out[2] = in.c;
+        return 3;
+    }
+}
+
+// Position 0..3 of Add, Sub, Mul, Div, or -1.
+int arithmeticIndex(ScalarOp op) {
+    switch (op) {
+    case ScalarOp::Add: return 0;
+    case ScalarOp::Sub: return 1;
+    case ScalarOp::Mul: return 2;
+    case ScalarOp::Div: return 3;
+    default: return -1;
+    }
+}
+
+ScalarOp offset(ScalarOp base, int k) { return static_cast<ScalarOp>(static_cast<int>(base) + k); }
+static_assert(static_cast<int>(ScalarOp::DivDivr) == static_cast<int>(ScalarOp::AddAdd) + 31);
+static_assert(static_cast<int>(ScalarOp::DivSquare) == static_cast<int>(ScalarOp::AddSquare) + 3);
+static_assert(static_cast<int>(ScalarOp::DivSquareAddr) == static_cast<int>(ScalarOp::AddSquareAdd) + 7);
+
+// The fused opcode for `producer` whose result is operand `slot` of `consumer`, or End when
+// there is none. A producer Square (a*a) counts as Mul with both operands a.
+ScalarOp fusedOp(ScalarOp producer, ScalarOp consumer, int slot) {
+    const int p = arithmeticIndex(producer == ScalarOp::Square ? ScalarOp::Mul : producer);
+    if (p >= 0) {
+        const int q = arithmeticIndex(consumer);
+        if (q >= 0) return offset(ScalarOp::AddAdd, (p * 4 + q) * 2 + slot);
+        if (consumer == ScalarOp::Square) return offset(ScalarOp::AddSquare, p);
+        return ScalarOp::End;
+    }
+    const int sq = static_cast<int>(producer) - static_cast<int>(ScalarOp::AddSquare);
+    if (sq >= 0 && sq < 4 && consumer == ScalarOp::Add) return offset(ScalarOp::AddSquareAdd, sq * 2 + slot);
+    return ScalarOp::End;
+}
+
+// One pass: every instruction whose result has exactly one reading (one operand of one later
+// instruction, not an output) moves into that reader when a fused opcode exists for the pair
+// and the registers it reads are not overwritten in between (registers are reused). Returns
+// whether anything changed.
+bool fuseOnce(std::vector<ScalarInstruction>& program, const std::vector<int>& outputs) {
+    const std::size_t n = program.size() - 1;  // the last one is End
+    std::int32_t registers = 0;
+    std::int32_t ops[3];
+    for (std::size_t i = 0; i < n; ++i) {
+        registers = std::max(registers, program[i].dst + 1);
+        for (int k = 0, m = operandsOf(program[i], ops); k < m; ++k) registers = std::max(registers, ops[k] + 1);
+    }
+    for (int o : outputs) registers = std::max(registers, o + 1);
+
+    // readings[i]: how many operands read instruction i's result (a value read after the
+    // program ends counts twice, so it is never fused away).
+    std::vector<std::int32_t> writer(static_cast<std::size_t>(registers), -1);
+    std::vector<int> readings(n, 0);
+    for (std::size_t i = 0; i < n; ++i) {
+        for (int k = 0, m = operandsOf(program[i], ops); k < m; ++k)
+            if (writer[ops[k]] >= 0) ++readings[writer[ops[k]]];
+        writer[program[i].dst] = static_cast<std::int32_t>(i);
+    }
+    for (int o : outputs)
+        if (writer[o] >= 0) readings[writer[o]] += 2;
+
+    std::fill(writer.begin(), writer.end(), -1);
+    std::vector<char> gone(n, 0);
+    bool changed = false;
+    for (std::size_t j = 0; j < n; ++j) {
+        ScalarInstruction& consumer = program[j];
+        const int m = operandsOf(consumer, ops);
+        const int slots = consumer.op == ScalarOp::Square ? 1 : (m == 2 ? 2 : 0);
+        for (int slot = 0; slot < slots; ++slot) {
+            const std::int32_t i = writer[ops[slot]];
+            if (i < 0 || gone[i] || readings[i] != 1) continue;
+            const ScalarInstruction& producer = program[i];
+            const ScalarOp fused = fusedOp(producer.op, consumer.op, slot);
+            if (fused == ScalarOp::End) continue;
+            // The producer's operands must still hold what it read (the writer so far is the
+            // producer itself when it wrote over its own operand: nothing else wrote since).
+            std::int32_t pops[3];
+            bool intact = true;
+            for (int k = 0, pm = operandsOf(producer, pops); k < pm; ++k) intact = intact && writer[pops[k]] <= i;
+            if (!intact) continue;
+            ScalarInstruction f;
+            f.op = fused;
+            f.dst = consumer.dst;
+            f.a = producer.a;
+            f.b = producer.op == ScalarOp::Square ? producer.a : producer.b;
+            f.c = consumer.op == ScalarOp::Square ? 0 : ops[1 - slot];
+            consumer = f;
+            gone[i] = 1;
+            changed = true;
+            break;
+        }
+        writer[consumer.dst] = static_cast<std::int32_t>(j);
+    }
+    if (changed) {
+        std::size_t k = 0;
+        for (std::size_t i = 0; i <= n; ++i)
+            if (i == n || !gone[i]) program[k++] = program[i];
+        program.resize(k);
+    }
+    return changed;
+}
+
 }  // namespace
+
+std::vector<ScalarInstruction> fuseScalar(std::vector<ScalarInstruction> program, const std::vector<int>& outputs) {
+    if (program.empty() || program.back().op != ScalarOp::End) program.push_back(ScalarInstruction{});
+    // Pairs first, then (a P b)^2 into a sum; a third pass finds nothing new in practice.
+    for (int pass = 0; pass < 3 && fuseOnce(program, outputs); ++pass) {
+    }
+    return program;
+}
+
+std::string listing(const std::vector<ScalarInstruction>& program) {
+    static const char* const symbol[] = {"+", "-", "*", "/"};
+    std::ostringstream out;
+    auto reg = [](std::int32_t r) { return "r" + std::to_string(r); };
+    for (const ScalarInstruction& in : program) {
+        const int op = static_cast<int>(in.op);
+        const int pair = op - static_cast<int>(ScalarOp::AddAdd);
+        const int square = op - static_cast<int>(ScalarOp::AddSquare);
+        const int squareAdd = op - static_cast<int>(ScalarOp::AddSquareAdd);
+        if (in.op == ScalarOp::End) {
+            out << "end\n";
+            break;
+        }
+        out << reg(in.dst) << " = ";
+        if (pair >= 0 && pair < 32) {
+            const std::string inner = "(" + reg(in.a) + " " + symbol[pair / 8] + " " + reg(in.b) + ")";
+            const char* outer = symbol[(pair / 2) % 4];
+            if (pair % 2 == 0) out << inner << " " << outer << " " << reg(in.c);
+            else out << reg(in.c) << " " << outer << " " << inner;
+        } else if (square >= 0 && square < 4) {
+            out << "(" << reg(in.a) << " " << symbol[square] << " " << reg(in.b) << ")^2";
+        } else if (squareAdd >= 0 && squareAdd < 8) {
+            const std::string inner = "(" + reg(in.a) + " " + symbol[squareAdd / 2] + " " + reg(in.b) + ")^2";
+            if (squareAdd % 2 == 0) out << inner << " + " << reg(in.c);
+            else out << reg(in.c) << " + " << inner;
+        } else {
+            const int q = arithmeticIndex(in.op);
+            if (q >= 0) out << reg(in.a) << " " << symbol[q] << " " << reg(in.b);
+            else if (in.op == ScalarOp::Select) out << reg(in.a) << " ? " << reg(in.b) << " : " << reg(in.c);
+            else if (in.op == ScalarOp::PowInteger) out << reg(in.a) << "^" << in.b;
+            else if (in.op == ScalarOp::Pow || in.op == ScalarOp::Binary) out << opName(in.op == ScalarOp::Pow ? Op::Pow : in.generic) << "(" << reg(in.a) << ", " << reg(in.b) << ")";
+            else {
+                static const char* const unary[] = {"-", "square", "cube", "fourth", "reciprocal"};
+                const int u = op - static_cast<int>(ScalarOp::Neg);
+                const Op generic[] = {Op::Sin, Op::Cos, Op::Exp, Op::Log, Op::Sqrt, Op::Atan};
+                if (u >= 0 && u < 5) out << unary[u] << "(" << reg(in.a) << ")";
+                else if (in.op == ScalarOp::Unary) out << opName(in.generic) << "(" << reg(in.a) << ")";
+                else out << opName(generic[op - static_cast<int>(ScalarOp::Sin)]) << "(" << reg(in.a) << ")";
+            }
+        }
+        out << "\n";
+    }
+    return out.str();
+}
 
 Program Program::compile(const std::vector<Expression>& outputs) {
     auto impl = std::make_shared<Impl>();
@@ -231,7 +459,6 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         impl->code.push_back(in);
     }
     impl->registers = next;
-    impl->scalar = flatten(impl->code);
     std::vector<int> directSeen;
     for (const Node* r : roots) {
         const int rr = reg.at(r);
@@ -241,6 +468,7 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         impl->outputDirect.push_back(computed && first);
         if (computed && first) directSeen.push_back(rr);
     }
+    impl->scalar = fuseScalar(flatten(impl->code), impl->outputRegister);
     // Invalid expressions in `outputs` give NaN outputs at their positions.
     if (roots.size() != outputs.size()) {
         std::vector<int> regs;
