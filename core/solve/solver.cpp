@@ -45,7 +45,7 @@ public:
         run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 128)) + 1);
         evaluatePoint();
         if (eval_.sawNonFinite()) {
-            run_.trace.push_back(pointRecord());
+            appendPointRecord();
             finish(Termination::NonFinite, "not finite at the start point: " + eval_.nonFinite() + " at " +
                                                pointText(eval_.nonFinitePoint(), objective_.variableNames()));
             return;
@@ -53,7 +53,7 @@ public:
         method_->start(eval_, state_);
         // A derivative-free method may start from another point (Nelder-Mead: its best vertex).
         if (!info_.needsGradient && state_.x != start_) diagnosticGradient();
-        run_.trace.push_back(pointRecord());
+        appendPointRecord();
         initialGradientNorm_ = run_.trace.back().gradientNorm;
         stoppedAtCurrentPoint(kNaN, false);
     }
@@ -85,7 +85,7 @@ public:
         // The shown gradient of a derivative-free method only changes with the point (a simplex
         // step often keeps its best vertex).
         if (!info_.needsGradient && state_.x != previousX) diagnosticGradient();
-        run_.trace.push_back(pointRecord());
+        appendPointRecord();
 
         if (outcome.termination != Termination::Running) {
             finish(outcome.termination, outcome.message);
@@ -128,8 +128,9 @@ private:
         else state_.gradient = Vector::Constant(state_.x.size(), kNaN);
     }
 
-    IterationRecord pointRecord() const {
-        IterationRecord r;
+    // Appends the record of the current point, built in place (a record is a few hundred bytes).
+    void appendPointRecord() {
+        IterationRecord& r = run_.trace.emplace_back();
         r.iteration = state_.iteration;
         r.x = state_.x;
         r.value = state_.value;
@@ -146,7 +147,6 @@ private:
                 spectrum(h, r.hessianEigenvalues, r.conditionNumber);
             }
         }
-        return r;
     }
 
     bool stoppedAtCurrentPoint(double stepNorm, bool accepted, const Vector& previousX = {},
@@ -181,6 +181,9 @@ private:
 
     bool stepTooSmall(double stepNorm, const Vector& previousX, std::string& why) const {
         if (!info_.needsGradient || !(stepNorm >= 0)) return false;
+        // |x|_2 <= |x|_1: most steps are far longer than the tolerance, and this settles them
+        // without the square root.
+        if (stepNorm > rules_.stepTolerance * (1.0 + previousX.lpNorm<1>())) return false;
         const double scale = 1.0 + previousX.norm();
         if (stepNorm <= rules_.stepTolerance * scale) {
             why = "converged on step: step norm " + shortNumber(stepNorm) + " <= step tolerance " +
