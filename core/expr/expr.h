@@ -113,6 +113,9 @@ public:
     int inputCount() const;
     int outputCount() const;
     std::size_t instructionCount() const;
+    // Instructions of the single-point form evaluate() runs: fewer, since an operation whose
+    // result has one reader is fused into it where a fused opcode exists (same bits).
+    std::size_t singlePointInstructionCount() const;
     Workspace makeWorkspace() const;
 
     // inputs[inputCount()] -> outputs[outputCount()].

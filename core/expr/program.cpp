@@ -345,6 +345,8 @@ std::vector<ScalarInstruction> fuseScalar(std::vector<ScalarInstruction> program
     return program;
 }
 
+void runScalarProgram(const ScalarInstruction* program, double* r) { runScalar(program, r); }
+
 std::string listing(const std::vector<ScalarInstruction>& program) {
     static const char* const symbol[] = {"+", "-", "*", "/"};
     std::ostringstream out;
@@ -495,6 +497,7 @@ Program Program::compile(const std::vector<Expression>& outputs) {
 int Program::inputCount() const { return impl_ ? impl_->inputs : 0; }
 int Program::outputCount() const { return impl_ ? static_cast<int>(impl_->outputRegister.size()) : 0; }
 std::size_t Program::instructionCount() const { return impl_ ? impl_->code.size() : 0; }
+std::size_t Program::singlePointInstructionCount() const { return impl_ ? impl_->scalar.size() - 1 : 0; }
 
 // Single-point registers with the program's constants loaded. Cheap, so one workspace can
 // serve several programs in turn (each switch reloads the constants).

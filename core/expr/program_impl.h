@@ -77,6 +77,9 @@ struct ScalarInstruction {
 // Merges single-reader results into their reader where a fused opcode exists (see above).
 // `outputs` are the registers read after the program ends. Exposed for tests.
 std::vector<ScalarInstruction> fuseScalar(std::vector<ScalarInstruction> program, const std::vector<int>& outputs);
+// Runs a flattened (possibly fused) program ending in End over the registers r, as
+// Program::evaluate does. Exposed for tests.
+void runScalarProgram(const ScalarInstruction* program, double* r);
 // One line per instruction ("r5 = (r3 * r4) + r2"), for tests and debugging.
 std::string listing(const std::vector<ScalarInstruction>& program);
 
