@@ -209,10 +209,17 @@ bool updateInverseBfgs(Matrix& inverse, const Vector& s, const Vector& y, bool s
     }
     if (scaleFirst) inverse = (ys / y.squaredNorm()) * Matrix::Identity(s.size(), s.size());
     const double rho = 1.0 / ys;
-    const Vector hy = inverse * y;
-    // Eq. 6.17 multiplied out, O(n^2): H + (rho^2 y'Hy + rho) ss' - rho (Hy s' + s y'H).
-    inverse.noalias() += (rho * rho * y.dot(hy) + rho) * (s * s.transpose());
-    inverse.noalias() -= rho * (hy * s.transpose() + s * hy.transpose());
+    thread_local Vector hy;  // keeps its storage from call to call
+    hy.noalias() = inverse * y;
+    // Eq. 6.17 multiplied out, O(n^2): H + (rho^2 y'Hy + rho) ss' - rho (Hy s' + s y'H), as one
+    // pass over H (the outer products as Eigen expressions each built a temporary matrix).
+    const double c = rho * rho * y.dot(hy) + rho;
+    const Eigen::Index n = s.size();
+    for (Eigen::Index j = 0; j < n; ++j) {
+        const double sj = s[j], hj = hy[j];
+        double* column = inverse.col(j).data();
+        for (Eigen::Index i = 0; i < n; ++i) column[i] += c * s[i] * sj - rho * (hy[i] * sj + s[i] * hj);
+    }
     return true;
 }
 
