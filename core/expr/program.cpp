@@ -83,7 +83,12 @@ std::vector<ScalarInstruction> flatten(const std::vector<Instruction>& code) {
 // a destination may be one of its operands.
 #pragma GCC diagnostic push
 #pragma GCC diagnostic ignored "-Wpedantic"
-void runScalar(const ScalarInstruction* in, double* __restrict r) {
+// Direct threading: each instruction carries its handler's address, so a dispatch is one load
+// and one jump. Called with `table`, it only reports the handler addresses (in ScalarOp order)
+// for threadProgram(); never inlined or cloned, so those addresses belong to the one copy that
+// runs them.
+__attribute__((noinline, noclone)) void runThreaded(const ThreadedInstruction* in, double* __restrict r,
+                                                    const void* const** table) {
     // Same order as ScalarOp.
     static const void* const handler[] = {&&add, &&sub, &&mul, &&div, &&neg, &&square, &&cube, &&fourth,
                                           &&reciprocal, &&powInteger, &&sin, &&cos, &&exp, &&log, &&sqrt,
@@ -99,7 +104,11 @@ void runScalar(const ScalarInstruction* in, double* __restrict r) {
 #undef SW_EXPR_SQUARE_ADD_LABEL
                                           &&end};
     static_assert(sizeof handler / sizeof handler[0] == static_cast<std::size_t>(ScalarOp::End) + 1);
-#define SW_DISPATCH() goto* handler[static_cast<std::size_t>(in->op)]
+    if (table) {
+        *table = handler;
+        return;
+    }
+#define SW_DISPATCH() goto* in->handler
 #define SW_NEXT() \
     ++in;         \
     SW_DISPATCH()
@@ -136,7 +145,7 @@ reciprocal:
     r[in->dst] = 1.0 / r[in->a];
     SW_NEXT();
 powInteger:
-    r[in->dst] = sw::expr::powInteger(r[in->a], in->b);
+    r[in->dst] = sw::expr::powInteger(r[in->a], in->b);  // b is the exponent
     SW_NEXT();
 sin:
     r[in->dst] = std::sin(r[in->a]);
@@ -163,10 +172,10 @@ select:
     r[in->dst] = r[in->a] != 0 ? r[in->b] : r[in->c];
     SW_NEXT();
 unary:
-    r[in->dst] = apply1(in->generic, r[in->a]);
+    r[in->dst] = apply1(static_cast<Op>(in->b), r[in->a]);
     SW_NEXT();
 binary:
-    r[in->dst] = apply2(in->generic, r[in->a], r[in->b]);
+    r[in->dst] = apply2(static_cast<Op>(in->c), r[in->a], r[in->b]);
     SW_NEXT();
     // Fused forms: the inner operation first, rounded to a double, then the outer one.
 #define SW_EXPR_FUSED_HANDLER(P, p, Q, q)                  \
@@ -211,6 +220,23 @@ end:
 #undef SW_DISPATCH
 }
 #pragma GCC diagnostic pop
+
+std::vector<ThreadedInstruction> threadProgram(const std::vector<ScalarInstruction>& program) {
+    const void* const* handler = nullptr;
+    runThreaded(nullptr, nullptr, &handler);
+    std::vector<ThreadedInstruction> threaded;
+    threaded.reserve(program.size());
+    for (const ScalarInstruction& in : program) {
+        ThreadedInstruction t;
+        t.handler = handler[static_cast<std::size_t>(in.op)];
+        t.dst = in.dst;
+        t.a = in.a;
+        t.b = in.op == ScalarOp::Unary ? static_cast<std::int32_t>(in.generic) : in.b;
+        t.c = in.op == ScalarOp::Binary ? static_cast<std::int32_t>(in.generic) : in.c;
+        threaded.push_back(t);
+    }
+    return threaded;
+}
 
 // ---- peephole fusion of the flattened program ----------------------------------------------------
 
@@ -345,7 +371,10 @@ std::vector<ScalarInstruction> fuseScalar(std::vector<ScalarInstruction> program
     return program;
 }
 
-void runScalarProgram(const ScalarInstruction* program, double* r) { runScalar(program, r); }
+void runScalarProgram(const std::vector<ScalarInstruction>& program, double* r) {
+    const std::vector<ThreadedInstruction> threaded = threadProgram(program);
+    runThreaded(threaded.data(), r, nullptr);
+}
 
 std::string listing(const std::vector<ScalarInstruction>& program) {
     static const char* const symbol[] = {"+", "-", "*", "/"};
@@ -471,6 +500,7 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         if (computed && first) directSeen.push_back(rr);
     }
     impl->scalar = fuseScalar(flatten(impl->code), impl->outputRegister);
+    impl->threaded = threadProgram(impl->scalar);
     // Invalid expressions in `outputs` give NaN outputs at their positions.
     if (roots.size() != outputs.size()) {
         std::vector<int> regs;
@@ -528,14 +558,19 @@ Program::Workspace Program::makeWorkspace() const {
     return ws;
 }
 
-void Program::evaluate(const double* inputs, double* outputs, Workspace& ws) const {
+// The solver's path: a few inputs, a few outputs. The copies are plain loops (GCC would turn
+// std::copy_n into a call to memmove, which costs more than copying two to four doubles).
+__attribute__((optimize("no-tree-loop-distribute-patterns"))) void Program::evaluate(const double* inputs, double* outputs,
+                                                                                       Workspace& ws) const {
     if (!impl_) return;
     const Impl& p = *impl_;
-    prepare(p, ws);
-    double* r = ws.registerValues.data();
-    std::copy_n(inputs, p.inputs, r);
-    runScalar(p.scalar.data(), r);
-    for (std::size_t o = 0; o < p.outputRegister.size(); ++o) outputs[o] = r[p.outputRegister[o]];
+    if (ws.preparedFor != p.id) prepare(p, ws);
+    double* const r = ws.registerValues.data();
+    for (int k = 0; k < p.inputs; ++k) r[k] = inputs[k];
+    runThreaded(p.threaded.data(), r, nullptr);
+    const int* const out = p.outputRegister.data();
+    const std::size_t outputCount = p.outputRegister.size();
+    for (std::size_t o = 0; o < outputCount; ++o) outputs[o] = r[out[o]];
 }
 
 // The switch form of the same loop, kept as the reference the threaded form is tested against.

@@ -74,12 +74,19 @@ struct ScalarInstruction {
     std::int32_t c = 0;         // Select's "else"; the consumer's other operand of a fused pair
 };
 
+// What Program::evaluate runs: ScalarInstruction with the handler's address in place of the
+// opcode (Unary keeps its operator in b, Binary in c).
+struct ThreadedInstruction {
+    const void* handler = nullptr;
+    std::int32_t dst = 0, a = 0, b = 0, c = 0;
+};
+
 // Merges single-reader results into their reader where a fused opcode exists (see above).
 // `outputs` are the registers read after the program ends. Exposed for tests.
 std::vector<ScalarInstruction> fuseScalar(std::vector<ScalarInstruction> program, const std::vector<int>& outputs);
 // Runs a flattened (possibly fused) program ending in End over the registers r, as
 // Program::evaluate does. Exposed for tests.
-void runScalarProgram(const ScalarInstruction* program, double* r);
+void runScalarProgram(const std::vector<ScalarInstruction>& program, double* r);
 // One line per instruction ("r5 = (r3 * r4) + r2"), for tests and debugging.
 std::string listing(const std::vector<ScalarInstruction>& program);
 
@@ -90,6 +97,7 @@ struct Program::Impl {
     std::vector<std::pair<int, double>> constants;  // register, value
     std::vector<Instruction> code;
     std::vector<ScalarInstruction> scalar;  // `code` for single-point evaluation, fused
+    std::vector<ThreadedInstruction> threaded;  // `scalar` as run
     std::vector<int> outputRegister;
     // Output o is written straight into the caller's array by its instruction (first use of
     // a computed node); the others are copied after the block.

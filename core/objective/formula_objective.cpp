@@ -42,9 +42,8 @@ FormulaObjective::Scratch& FormulaObjective::threadScratch() {
 }
 
 // A point of the wrong size reads NaN for the missing coordinates rather than out of bounds.
-const double* FormulaObjective::inputs(const Vector& x, Scratch& s) const {
+const double* FormulaObjective::inputsWithConstants(const Vector& x, Scratch& s) const {
     const int n = dimension();
-    if (constants_.empty() && x.size() == n) return x.data();
     s.inputs.assign(n + constants_.size(), std::numeric_limits<double>::quiet_NaN());
     for (int i = 0; i < n && i < x.size(); ++i) s.inputs[i] = x[i];
     for (std::size_t c = 0; c < constants_.size(); ++c) s.inputs[n + c] = constants_[c].second;
@@ -52,10 +51,9 @@ const double* FormulaObjective::inputs(const Vector& x, Scratch& s) const {
 }
 
 double FormulaObjective::value(const Vector& x) const {
-    Scratch* s = &threadScratch();
-    s->outputs.resize(1);
-    valueProgram_.evaluate(inputs(x, *s), s->outputs.data(), s->valueWs);
-    const double f = s->outputs[0];
+    Scratch& s = threadScratch();
+    double f;
+    valueProgram_.evaluate(inputs(x, s), &f, s.valueWs);
     return f;
 }
 

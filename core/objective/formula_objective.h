@@ -56,7 +56,11 @@ private:
     static Scratch& threadScratch();
     // The program's inputs for x: x itself when it has the right size and there are no
     // constants (no copy), else x and the constants copied into the scratch space.
-    const double* inputs(const Vector& x, Scratch& s) const;
+    const double* inputs(const Vector& x, Scratch& s) const {
+        return constants_.empty() && x.size() == static_cast<Eigen::Index>(variables_.size()) ? x.data()
+                                                                                             : inputsWithConstants(x, s);
+    }
+    const double* inputsWithConstants(const Vector& x, Scratch& s) const;
 };
 
 }  // namespace sw

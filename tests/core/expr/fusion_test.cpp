@@ -67,8 +67,8 @@ void expectSameBitsEverywhere(const std::vector<ScalarInstruction>& separate, co
         double r1[5] = {value(k), value(k + 1), value(k + 2), 0, 0};
         double r2[5];
         std::memcpy(r2, r1, sizeof r1);
-        runScalarProgram(separate.data(), r1);
-        runScalarProgram(fused.data(), r2);
+        runScalarProgram(separate, r1);
+        runScalarProgram(fused, r2);
         ASSERT_TRUE(sameBits(r1[result], r2[result]))
             << what << " at a=" << r1[0] << " b=" << r1[1] << " c=" << r1[2] << ": " << r1[result] << " separately, "
             << r2[result] << " fused";
