@@ -188,7 +188,9 @@ private:
         double size = 0, spread = 0;
         for (std::size_t i = 1; i < order_.size(); ++i) {
             const double* v = vertex(i);
-            for (Eigen::Index k = 0; k < n; ++k) size = std::max(size, std::abs(v[k] - b[k]));
+            double far = 0;  // this vertex's own maximum: the vertices' maxima do not wait on one another
+            for (Eigen::Index k = 0; k < n; ++k) far = std::max(far, std::abs(v[k] - b[k]));
+            size = std::max(size, far);
             spread = std::max(spread, std::abs(value(i) - fb));
         }
         size_ = size;
