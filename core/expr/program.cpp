@@ -86,8 +86,10 @@ std::vector<ScalarInstruction> flatten(const std::vector<Instruction>& code) {
 // Direct threading: each instruction carries its handler's address, so a dispatch is one load
 // and one jump. Called with `table`, it only reports the handler addresses (in ScalarOp order)
 // for threadProgram(); never inlined or cloned, so those addresses belong to the one copy that
-// runs them.
-__attribute__((noinline, noclone)) void runThreaded(const ThreadedInstruction* in, double* __restrict r,
+// runs them. No cross-jumping: GCC would otherwise merge the common tails of the handlers
+// (the outer operation, the store and the jump), leaving several opcodes to share one
+// indirect jump, which the processor then predicts worse.
+__attribute__((noinline, noclone, optimize("no-crossjumping"))) void runThreaded(const ThreadedInstruction* in, double* __restrict r,
                                                     const void* const** table) {
     // Same order as ScalarOp.
     static const void* const handler[] = {&&add, &&sub, &&mul, &&div, &&neg, &&square, &&cube, &&fourth,
