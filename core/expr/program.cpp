@@ -104,6 +104,10 @@ __attribute__((noinline, noclone, optimize("no-crossjumping"))) void runThreaded
 #define SW_EXPR_SQUARE_ADD_LABEL(X, P, p) &&fused_##P##SquareAdd, &&fused_##P##SquareAddr,
                                           SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_ADD_LABEL, X)
 #undef SW_EXPR_SQUARE_ADD_LABEL
+#define SW_EXPR_FUNCTION_LABEL(X, P, p) &&fused_##P##Neg, &&fused_##P##Sin, &&fused_##P##Cos, &&fused_##P##Exp, &&fused_##P##Log, &&fused_##P##Sqrt,
+                                          SW_EXPR_ARITHMETIC(SW_EXPR_FUNCTION_LABEL, X)
+#undef SW_EXPR_FUNCTION_LABEL
+                                          &&negExp, &&dotStep, &&squareStep,
                                           &&end};
     static_assert(sizeof handler / sizeof handler[0] == static_cast<std::size_t>(ScalarOp::End) + 1);
     if (table) {
@@ -216,6 +220,58 @@ binary:
     }
     SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_ADD_HANDLER, X)
 #undef SW_EXPR_SQUARE_ADD_HANDLER
+#define SW_EXPR_FUNCTION_HANDLER(X, P, p)                  \
+    fused_##P##Neg : {                                     \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = -t;                                   \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Sin : {                                     \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = std::sin(t);                          \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Cos : {                                     \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = std::cos(t);                          \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Exp : {                                     \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = std::exp(t);                          \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Log : {                                     \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = std::log(t);                          \
+        SW_NEXT();                                         \
+    }                                                      \
+    fused_##P##Sqrt : {                                    \
+        const double t = r[in->a] p r[in->b];              \
+        r[in->dst] = std::sqrt(t);                         \
+        SW_NEXT();                                         \
+    }
+    SW_EXPR_ARITHMETIC(SW_EXPR_FUNCTION_HANDLER, X)
+#undef SW_EXPR_FUNCTION_HANDLER
+negExp : {
+    const double t = -r[in->a];
+    r[in->dst] = std::exp(t);
+    SW_NEXT();
+}
+dotStep : {
+    const double t = r[in->a] * r[in->b];
+    const double sum = r[in->c] + t;
+    const double u = r[in->e] * r[in->f];
+    r[in->dst] = sum + u;
+    SW_NEXT();
+}
+squareStep : {
+    const double t = r[in->a] - r[in->b];
+    const double sum = r[in->c] + t * t;
+    const double u = r[in->e] - r[in->f];
+    r[in->dst] = sum + u * u;
+    SW_NEXT();
+}
 end:
     return;
 #undef SW_NEXT
@@ -235,6 +291,8 @@ std::vector<ThreadedInstruction> threadProgram(const std::vector<ScalarInstructi
         t.a = in.a;
         t.b = in.op == ScalarOp::Unary ? static_cast<std::int32_t>(in.generic) : in.b;
         t.c = in.op == ScalarOp::Binary ? static_cast<std::int32_t>(in.generic) : in.c;
+        t.e = in.e;
+        t.f = in.f;
         threaded.push_back(t);
     }
     return threaded;
@@ -243,26 +301,31 @@ std::vector<ThreadedInstruction> threadProgram(const std::vector<ScalarInstructi
 // ---- peephole fusion of the flattened program ----------------------------------------------------
 
 // Registers an instruction reads, in operand order (PowInteger's b is its exponent, not a register).
-int operandsOf(const ScalarInstruction& in, std::int32_t out[3]) {
+int operandsOf(const ScalarInstruction& in, std::int32_t out[5]) {
+    const int op = static_cast<int>(in.op);
+    int count = 3;  // Select and the three-operand fused forms
     switch (in.op) {
     case ScalarOp::End: return 0;
     case ScalarOp::Neg: case ScalarOp::Square: case ScalarOp::Cube: case ScalarOp::Fourth:
     case ScalarOp::Reciprocal: case ScalarOp::PowInteger: case ScalarOp::Sin: case ScalarOp::Cos:
     case ScalarOp::Exp: case ScalarOp::Log: case ScalarOp::Sqrt: case ScalarOp::Atan: case ScalarOp::Unary:
-        out[0] = in.a;
-        return 1;
+    case ScalarOp::NegExp:
+        count = 1;
+        break;
     case ScalarOp::Add: case ScalarOp::Sub: case ScalarOp::Mul: case ScalarOp::Div:
     case ScalarOp::Pow: case ScalarOp::Binary:
-    case ScalarOp::AddSquare: case ScalarOp::SubSquare: case ScalarOp::MulSquare: case ScalarOp::DivSquare:
-        out[0] = in.a;
-        out[1] = in.b;
-        return 2;
-    default:  // Select and the three-operand fused forms
-        out[0] = in.a;
-        out[1] = in.b;
-        out[2] = in.c;
-        return 3;
+        count = 2;
+        break;
+    case ScalarOp::DotStep: case ScalarOp::SquareStep: count = 5; break;
+    default:
+        if ((op >= static_cast<int>(ScalarOp::AddSquare) && op <= static_cast<int>(ScalarOp::DivSquare)) ||
+            (op >= static_cast<int>(ScalarOp::AddNeg) && op <= static_cast<int>(ScalarOp::DivSqrt)))
+            count = 2;
+        break;
     }
+    const std::int32_t all[5] = {in.a, in.b, in.c, in.e, in.f};
+    std::copy_n(all, count, out);
+    return count;
 }
 
 // Position 0..3 of Add, Sub, Mul, Div, or -1.
@@ -276,10 +339,27 @@ int arithmeticIndex(ScalarOp op) {
     }
 }
 
+// Position 0..5 of Neg, Sin, Cos, Exp, Log, Sqrt (the functions with a fused form), or -1.
+int functionIndex(ScalarOp op) {
+    switch (op) {
+    case ScalarOp::Neg: return 0;
+    case ScalarOp::Sin: return 1;
+    case ScalarOp::Cos: return 2;
+    case ScalarOp::Exp: return 3;
+    case ScalarOp::Log: return 4;
+    case ScalarOp::Sqrt: return 5;
+    default: return -1;
+    }
+}
+
 ScalarOp offset(ScalarOp base, int k) { return static_cast<ScalarOp>(static_cast<int>(base) + k); }
 static_assert(static_cast<int>(ScalarOp::DivDivr) == static_cast<int>(ScalarOp::AddAdd) + 31);
 static_assert(static_cast<int>(ScalarOp::DivSquare) == static_cast<int>(ScalarOp::AddSquare) + 3);
 static_assert(static_cast<int>(ScalarOp::DivSquareAddr) == static_cast<int>(ScalarOp::AddSquareAdd) + 7);
+static_assert(static_cast<int>(ScalarOp::DivSqrt) == static_cast<int>(ScalarOp::AddNeg) + 23);
+
+bool isMultiplyAdd(ScalarOp op) { return op == ScalarOp::MulAdd || op == ScalarOp::MulAddr; }
+bool isSquareOfDifferenceAdd(ScalarOp op) { return op == ScalarOp::SubSquareAdd || op == ScalarOp::SubSquareAddr; }
 
 // The fused opcode for `producer` whose result is operand `slot` of `consumer`, or End when
 // there is none. A producer Square (a*a) counts as Mul with both operands a.
@@ -287,12 +367,18 @@ ScalarOp fusedOp(ScalarOp producer, ScalarOp consumer, int slot) {
     const int p = arithmeticIndex(producer == ScalarOp::Square ? ScalarOp::Mul : producer);
     if (p >= 0) {
         const int q = arithmeticIndex(consumer);
-        if (q >= 0) return offset(ScalarOp::AddAdd, (p * 4 + q) * 2 + slot);
+        if (q >= 0 && slot < 2) return offset(ScalarOp::AddAdd, (p * 4 + q) * 2 + slot);
         if (consumer == ScalarOp::Square) return offset(ScalarOp::AddSquare, p);
+        const int u = functionIndex(consumer);
+        if (u >= 0) return offset(ScalarOp::AddNeg, p * 6 + u);
         return ScalarOp::End;
     }
     const int sq = static_cast<int>(producer) - static_cast<int>(ScalarOp::AddSquare);
-    if (sq >= 0 && sq < 4 && consumer == ScalarOp::Add) return offset(ScalarOp::AddSquareAdd, sq * 2 + slot);
+    if (sq >= 0 && sq < 4 && consumer == ScalarOp::Add && slot < 2) return offset(ScalarOp::AddSquareAdd, sq * 2 + slot);
+    if (producer == ScalarOp::Neg && consumer == ScalarOp::Exp) return ScalarOp::NegExp;
+    // Running sums: the previous step is the consumer's third operand c.
+    if (slot == 2 && isMultiplyAdd(producer) && isMultiplyAdd(consumer)) return ScalarOp::DotStep;
+    if (slot == 2 && isSquareOfDifferenceAdd(producer) && isSquareOfDifferenceAdd(consumer)) return ScalarOp::SquareStep;
     return ScalarOp::End;
 }
 
@@ -303,7 +389,7 @@ ScalarOp fusedOp(ScalarOp producer, ScalarOp consumer, int slot) {
 bool fuseOnce(std::vector<ScalarInstruction>& program, const std::vector<int>& outputs) {
     const std::size_t n = program.size() - 1;  // the last one is End
     std::int32_t registers = 0;
-    std::int32_t ops[3];
+    std::int32_t ops[5];
     for (std::size_t i = 0; i < n; ++i) {
         registers = std::max(registers, program[i].dst + 1);
         for (int k = 0, m = operandsOf(program[i], ops); k < m; ++k) registers = std::max(registers, ops[k] + 1);
@@ -327,9 +413,8 @@ bool fuseOnce(std::vector<ScalarInstruction>& program, const std::vector<int>& o
     bool changed = false;
     for (std::size_t j = 0; j < n; ++j) {
         ScalarInstruction& consumer = program[j];
-        const int m = operandsOf(consumer, ops);
-        const int slots = consumer.op == ScalarOp::Square ? 1 : (m == 2 ? 2 : 0);
-        for (int slot = 0; slot < slots; ++slot) {
+        const int m = std::min(operandsOf(consumer, ops), 3);
+        for (int slot = 0; slot < m; ++slot) {
             const std::int32_t i = writer[ops[slot]];
             if (i < 0 || gone[i] || readings[i] != 1) continue;
             const ScalarInstruction& producer = program[i];
@@ -337,7 +422,7 @@ bool fuseOnce(std::vector<ScalarInstruction>& program, const std::vector<int>& o
             if (fused == ScalarOp::End) continue;
             // The producer's operands must still hold what it read (the writer so far is the
             // producer itself when it wrote over its own operand: nothing else wrote since).
-            std::int32_t pops[3];
+            std::int32_t pops[5];
             bool intact = true;
             for (int k = 0, pm = operandsOf(producer, pops); k < pm; ++k) intact = intact && writer[pops[k]] <= i;
             if (!intact) continue;
@@ -346,7 +431,13 @@ bool fuseOnce(std::vector<ScalarInstruction>& program, const std::vector<int>& o
             f.dst = consumer.dst;
             f.a = producer.a;
             f.b = producer.op == ScalarOp::Square ? producer.a : producer.b;
-            f.c = consumer.op == ScalarOp::Square ? 0 : ops[1 - slot];
+            if (fused == ScalarOp::DotStep || fused == ScalarOp::SquareStep) {
+                f.c = producer.c;
+                f.e = consumer.a;
+                f.f = consumer.b;
+            } else if (m == 2) {
+                f.c = ops[1 - slot];  // the consumer's other operand
+            }
             consumer = f;
             gone[i] = 1;
             changed = true;
@@ -387,6 +478,7 @@ std::string listing(const std::vector<ScalarInstruction>& program) {
         const int pair = op - static_cast<int>(ScalarOp::AddAdd);
         const int square = op - static_cast<int>(ScalarOp::AddSquare);
         const int squareAdd = op - static_cast<int>(ScalarOp::AddSquareAdd);
+        const int function = op - static_cast<int>(ScalarOp::AddNeg);
         if (in.op == ScalarOp::End) {
             out << "end\n";
             break;
@@ -399,6 +491,15 @@ std::string listing(const std::vector<ScalarInstruction>& program) {
             else out << reg(in.c) << " " << outer << " " << inner;
         } else if (square >= 0 && square < 4) {
             out << "(" << reg(in.a) << " " << symbol[square] << " " << reg(in.b) << ")^2";
+        } else if (function >= 0 && function < 24) {
+            static const char* const name[] = {"-", "sin", "cos", "exp", "ln", "sqrt"};
+            out << name[function % 6] << "(" << reg(in.a) << " " << symbol[function / 6] << " " << reg(in.b) << ")";
+        } else if (in.op == ScalarOp::NegExp) {
+            out << "exp(-" << reg(in.a) << ")";
+        } else if (in.op == ScalarOp::DotStep) {
+            out << "(" << reg(in.c) << " + " << reg(in.a) << " * " << reg(in.b) << ") + " << reg(in.e) << " * " << reg(in.f);
+        } else if (in.op == ScalarOp::SquareStep) {
+            out << "(" << reg(in.c) << " + (" << reg(in.a) << " - " << reg(in.b) << ")^2) + (" << reg(in.e) << " - " << reg(in.f) << ")^2";
         } else if (squareAdd >= 0 && squareAdd < 8) {
             const std::string inner = "(" + reg(in.a) + " " + symbol[squareAdd / 2] + " " + reg(in.b) + ")^2";
             if (squareAdd % 2 == 0) out << inner << " + " << reg(in.c);

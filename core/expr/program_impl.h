@@ -61,8 +61,17 @@ enum class ScalarOp : std::uint8_t {
     // (a P b)^2 + c and c + (a P b)^2: one term of a sum of squares.
 #define SW_EXPR_SQUARE_ADD_ENUM(X, P, p) P##SquareAdd, P##SquareAddr,
     SW_EXPR_ARITHMETIC(SW_EXPR_SQUARE_ADD_ENUM, X)
+    // -(a P b), sin(a P b), cos(a P b), exp(a P b), ln(a P b), sqrt(a P b).
+#define SW_EXPR_FUNCTION_ENUM(X, P, p) P##Neg, P##Sin, P##Cos, P##Exp, P##Log, P##Sqrt,
+    SW_EXPR_ARITHMETIC(SW_EXPR_FUNCTION_ENUM, X)
 #undef SW_EXPR_SQUARE_ENUM
 #undef SW_EXPR_SQUARE_ADD_ENUM
+#undef SW_EXPR_FUNCTION_ENUM
+    NegExp,      // exp(-a)
+    // Two steps of a sum, five operands (+ is commutative bit for bit, so either operand
+    // order of each addition maps here):
+    DotStep,     // (c + a*b) + e*f
+    SquareStep,  // (c + (a - b)^2) + (e - f)^2
     End,
 };
 
@@ -72,13 +81,14 @@ struct ScalarInstruction {
     std::int32_t dst = 0, a = 0;
     std::int32_t b = 0;         // second operand; the exponent of PowInteger; Select's "then"
     std::int32_t c = 0;         // Select's "else"; the consumer's other operand of a fused pair
+    std::int32_t e = 0, f = 0;  // DotStep and SquareStep only
 };
 
 // What Program::evaluate runs: ScalarInstruction with the handler's address in place of the
 // opcode (Unary keeps its operator in b, Binary in c).
 struct ThreadedInstruction {
     const void* handler = nullptr;
-    std::int32_t dst = 0, a = 0, b = 0, c = 0;
+    std::int32_t dst = 0, a = 0, b = 0, c = 0, e = 0, f = 0;
 };
 
 // Merges single-reader results into their reader where a fused opcode exists (see above).

@@ -253,7 +253,8 @@ void BM_ProgramFull(benchmark::State& state) {
         benchmark::DoNotOptimize(out.data());
         in[0] += 1e-12;
     }
-    state.SetLabel(problem(number).name + ", " + std::to_string(program.instructionCount()) + " instructions");
+    state.SetLabel(problem(number).name + ", " + std::to_string(program.instructionCount()) + " instructions, " +
+                   std::to_string(program.singlePointInstructionCount()) + " after fusion");
 }
 BENCHMARK(BM_ProgramFull)->Arg(1)->Arg(5)->Arg(6)->Arg(7)->Arg(8)->Arg(14);
 

@@ -6,6 +6,7 @@
 #include "core/expr/expr.h"
 #include "core/expr/program_impl.h"
 #include "formula_generator.h"
+#include "tests/reference/solve/published_problems.h"
 
 #include <gtest/gtest.h>
 
@@ -120,6 +121,49 @@ TEST(Fusion, SquaresOfArithmeticAndSumOfSquaresTermsGiveTheSameBits) {
     expectSameBitsEverywhere(accumulate, fused, 4, "c + a*a");
 }
 
+TEST(Fusion, ArithmeticInsideNegationAndFunctionsGivesTheSameBits) {
+    const ScalarOp functions[] = {ScalarOp::Neg, ScalarOp::Sin, ScalarOp::Cos, ScalarOp::Exp, ScalarOp::Log, ScalarOp::Sqrt};
+    const char* const names[] = {"-", "sin", "cos", "exp", "ln", "sqrt"};
+    for (int p = 0; p < 4; ++p)
+        for (int u = 0; u < 6; ++u) {
+            const auto separate = withEnd({instruction(kArithmetic[p], 3, 0, 1), instruction(functions[u], 4, 3)});
+            const auto fused = fuseScalar(separate, {4});
+            const std::string what = std::string(names[u]) + "(a " + kSymbol[p] + " b)";
+            ASSERT_EQ(fused.size(), 2u) << what << " was not fused:\n" << listing(fused);
+            expectSameBitsEverywhere(separate, fused, 4, what);
+        }
+    const auto negExp = withEnd({instruction(ScalarOp::Neg, 3, 0), instruction(ScalarOp::Exp, 3, 3)});
+    const auto fused = fuseScalar(negExp, {3});
+    ASSERT_EQ(fused.size(), 2u) << listing(fused);
+    expectSameBitsEverywhere(negExp, fused, 3, "exp(-a)");
+}
+
+// Two steps of a running sum of products or of squared differences become one instruction,
+// whichever operand order each addition has (+ commutes bit for bit).
+TEST(Fusion, TwoStepsOfARunningSumGiveTheSameBits) {
+    for (int order = 0; order < 4; ++order) {
+        const bool firstSumLeft = order & 1, secondSumLeft = order & 2;
+        // r3 = c + a*b; r4 = r3 + b*c.
+        const auto dot = withEnd({instruction(ScalarOp::Mul, 3, 0, 1),
+                                  firstSumLeft ? instruction(ScalarOp::Add, 3, 3, 2) : instruction(ScalarOp::Add, 3, 2, 3),
+                                  instruction(ScalarOp::Mul, 4, 1, 2),
+                                  secondSumLeft ? instruction(ScalarOp::Add, 4, 4, 3) : instruction(ScalarOp::Add, 4, 3, 4)});
+        const auto fusedDot = fuseScalar(dot, {4});
+        ASSERT_EQ(fusedDot.size(), 2u) << "four instructions become one:\n" << listing(fusedDot);
+        EXPECT_EQ(fusedDot[0].op, ScalarOp::DotStep);
+        expectSameBitsEverywhere(dot, fusedDot, 4, "(c + a*b) + b*c, order " + std::to_string(order));
+        // r3 = c + (a - b)^2; r4 = r3 + (c - a)^2.
+        const auto squares = withEnd({instruction(ScalarOp::Sub, 3, 0, 1), instruction(ScalarOp::Square, 3, 3),
+                                      firstSumLeft ? instruction(ScalarOp::Add, 3, 3, 2) : instruction(ScalarOp::Add, 3, 2, 3),
+                                      instruction(ScalarOp::Sub, 4, 2, 0), instruction(ScalarOp::Square, 4, 4),
+                                      secondSumLeft ? instruction(ScalarOp::Add, 4, 4, 3) : instruction(ScalarOp::Add, 4, 3, 4)});
+        const auto fusedSquares = fuseScalar(squares, {4});
+        ASSERT_EQ(fusedSquares.size(), 2u) << "six instructions become one:\n" << listing(fusedSquares);
+        EXPECT_EQ(fusedSquares[0].op, ScalarOp::SquareStep);
+        expectSameBitsEverywhere(squares, fusedSquares, 4, "(c + (a - b)^2) + (c - a)^2, order " + std::to_string(order));
+    }
+}
+
 // A fused multiply-add would give -2^-60 here: (1 + 2^-30)(1 - 2^-30) = 1 - 2^-60 exactly,
 // which rounds to 1 before the addition of -1.
 TEST(Fusion, KeepsTwoRoundingsInMultiplyAdd) {
@@ -208,4 +252,39 @@ TEST(Fusion, GeneratedFormulasGiveTheBitsOfTheSwitchLoop) {
     // The pass must have had work to do, or this test checks nothing.
     EXPECT_LT(fused, unfused * 9 / 10) << fused << " of " << unfused << " instructions remain";
     std::printf("generated programs: %zu instructions, %zu after fusion\n", unfused, fused);
+}
+
+// The programs the solvers run on the published test problems (sums of squared residuals with
+// their gradients and Hessians; formulas from Moré, Garbow & Hillstrom (1981) as written in
+// tests/reference/solve/published_problems.h): the running-sum forms occur there, and the
+// fused programs give the switch loop's bits near the start points and at special values.
+TEST(Fusion, LeastSquaresProgramsGiveTheBitsOfTheSwitchLoop) {
+    std::mt19937 random(5);
+    std::uniform_real_distribution<double> factor(0.5, 1.5);
+    const std::vector<double> special = specialValues();
+    std::size_t dotSteps = 0, squareSteps = 0;
+    for (const auto& problem : sw::reference::publishedProblems()) {
+        SCOPED_TRACE(problem.name);
+        const DerivativeSet set(problem.formula, problem.variables, 2);
+        std::vector<Expression> valueAndGradient{set.function()};
+        valueAndGradient.insert(valueAndGradient.end(), set.gradient().begin(), set.gradient().end());
+        for (const Program& program : {Program::compile({set.function()}), Program::compile(valueAndGradient), set.program()}) {
+            for (const ScalarInstruction& in : program.impl()->scalar) {
+                dotSteps += in.op == ScalarOp::DotStep;
+                squareSteps += in.op == ScalarOp::SquareStep;
+            }
+            auto fast = program.makeWorkspace(), reference = program.makeWorkspace();
+            std::vector<double> a(static_cast<std::size_t>(program.outputCount())), b(a.size());
+            for (int t = 0; t < 60; ++t) {
+                std::vector<double> x(problem.start);
+                for (std::size_t i = 0; i < x.size(); ++i)
+                    x[i] = t % 4 == 3 ? special[random() % special.size()] : (x[i] == 0 ? factor(random) - 1 : x[i] * factor(random));
+                program.evaluate(x.data(), a.data(), fast);
+                evaluateBySwitch(*program.impl(), x.data(), b.data(), reference);
+                for (std::size_t o = 0; o < a.size(); ++o) ASSERT_TRUE(sameBits(a[o], b[o])) << "output " << o << ": " << a[o] << " vs " << b[o];
+            }
+        }
+    }
+    EXPECT_GT(dotSteps, 0u);
+    EXPECT_GT(squareSteps, 0u);
 }
