@@ -602,8 +602,6 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         impl->outputDirect.push_back(computed && first);
         if (computed && first) directSeen.push_back(rr);
     }
-    impl->scalar = fuseScalar(flatten(impl->code), impl->outputRegister);
-    impl->threaded = threadProgram(impl->scalar);
     // Invalid expressions in `outputs` give NaN outputs at their positions.
     if (roots.size() != outputs.size()) {
         std::vector<int> regs;
@@ -624,7 +622,80 @@ Program Program::compile(const std::vector<Expression>& outputs) {
         impl->outputRegister = regs;
         impl->outputDirect = direct;
     }
+    buildSinglePointProgram(*impl);
     return Program(std::move(impl));
+}
+
+// The single-point form: `code` flattened, renamed so that every result has its own register
+// (then moving an operation down to its reader can never read a register written in
+// between), fused, and given registers again by the same linear scan as `code`. Inputs and
+// constants keep their registers; temporaries reuse the registers `code` wrote, and more if
+// fusion made some values live longer.
+void buildSinglePointProgram(Program::Impl& p) {
+    std::vector<ScalarInstruction> flat = flatten(p.code);
+    const std::size_t n = flat.size() - 1;
+    const std::int32_t fixed = p.registers;  // virtual registers start here
+    std::vector<char> written(static_cast<std::size_t>(fixed), 0);
+    std::vector<std::int32_t> current(static_cast<std::size_t>(fixed));
+    for (std::int32_t r = 0; r < fixed; ++r) current[r] = r;
+    for (std::size_t k = 0; k < n; ++k) {
+        ScalarInstruction& in = flat[k];
+        std::int32_t* const field[5] = {&in.a, &in.b, &in.c, &in.e, &in.f};
+        std::int32_t ops[5];
+        for (int i = 0, m = operandsOf(in, ops); i < m; ++i) *field[i] = current[ops[i]];
+        written[in.dst] = 1;
+        current[in.dst] = fixed + static_cast<std::int32_t>(k);
+        in.dst = fixed + static_cast<std::int32_t>(k);
+    }
+    std::vector<int> outputs;
+    for (int r : p.outputRegister) outputs.push_back(current[r]);
+    std::vector<ScalarInstruction> fused = fuseScalar(std::move(flat), outputs);
+
+    // Linear scan: a register is free after the last instruction that reads it.
+    const std::size_t m = fused.size() - 1;
+    constexpr std::size_t kForever = std::numeric_limits<std::size_t>::max();
+    std::vector<std::size_t> lastUse(n, kForever - 1);  // per virtual register; unread: free at once
+    std::int32_t ops[5];
+    for (std::size_t j = 0; j < m; ++j)
+        for (int i = 0, c = operandsOf(fused[j], ops); i < c; ++i)
+            if (ops[i] >= fixed) lastUse[ops[i] - fixed] = j;
+    for (int o : outputs)
+        if (o >= fixed) lastUse[o - fixed] = kForever;
+    std::vector<std::int32_t> freeRegisters;
+    for (std::int32_t r = fixed - 1; r >= 0; --r)
+        if (written[r]) freeRegisters.push_back(r);  // lowest on top
+    std::int32_t total = fixed;
+    std::vector<std::int32_t> physical(n, -1);
+    for (std::size_t j = 0; j < m; ++j) {
+        ScalarInstruction& in = fused[j];
+        std::int32_t* const field[5] = {&in.a, &in.b, &in.c, &in.e, &in.f};
+        const int c = operandsOf(in, ops);
+        std::int32_t released[5];
+        int count = 0;
+        for (int i = 0; i < c; ++i) {
+            if (ops[i] < fixed) continue;
+            const std::int32_t v = ops[i] - fixed;
+            *field[i] = physical[v];
+            if (lastUse[v] == j && std::find(released, released + count, v) == released + count) {
+                released[count++] = v;
+                freeRegisters.push_back(physical[v]);
+            }
+        }
+        const std::int32_t v = in.dst - fixed;
+        if (!freeRegisters.empty()) {
+            physical[v] = freeRegisters.back();
+            freeRegisters.pop_back();
+        } else {
+            physical[v] = total++;
+        }
+        in.dst = physical[v];
+        if (lastUse[v] == kForever - 1) freeRegisters.push_back(physical[v]);  // never read
+    }
+    p.scalarOutputRegister.clear();
+    for (int o : outputs) p.scalarOutputRegister.push_back(o >= fixed ? physical[o - fixed] : o);
+    p.scalarRegisters = total;
+    p.scalar = std::move(fused);
+    p.threaded = threadProgram(p.scalar);
 }
 
 int Program::inputCount() const { return impl_ ? impl_->inputs : 0; }
@@ -636,7 +707,7 @@ std::size_t Program::singlePointInstructionCount() const { return impl_ ? impl_-
 // serve several programs in turn (each switch reloads the constants).
 static void prepare(const Program::Impl& p, Program::Workspace& ws) {
     if (ws.preparedFor == p.id) return;
-    ws.registerValues.assign(p.registers, 0.0);
+    ws.registerValues.assign(static_cast<std::size_t>(std::max(p.registers, p.scalarRegisters)), 0.0);
     for (const auto& [r, v] : p.constants) ws.registerValues[r] = v;
     ws.preparedFor = p.id;
 }
@@ -671,8 +742,8 @@ __attribute__((optimize("no-tree-loop-distribute-patterns"))) void Program::eval
     double* const r = ws.registerValues.data();
     for (int k = 0; k < p.inputs; ++k) r[k] = inputs[k];
     runThreaded(p.threaded.data(), r, nullptr);
-    const int* const out = p.outputRegister.data();
-    const std::size_t outputCount = p.outputRegister.size();
+    const int* const out = p.scalarOutputRegister.data();
+    const std::size_t outputCount = p.scalarOutputRegister.size();
     for (std::size_t o = 0; o < outputCount; ++o) outputs[o] = r[out[o]];
 }
 

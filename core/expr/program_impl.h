@@ -108,11 +108,19 @@ struct Program::Impl {
     std::vector<Instruction> code;
     std::vector<ScalarInstruction> scalar;  // `code` for single-point evaluation, fused
     std::vector<ThreadedInstruction> threaded;  // `scalar` as run
+    // `scalar` has its own temporaries (see buildSinglePointProgram): where its outputs are
+    // and how many registers it needs (inputs and constants are where `code` has them).
+    std::vector<int> scalarOutputRegister;
+    int scalarRegisters = 0;
     std::vector<int> outputRegister;
     // Output o is written straight into the caller's array by its instruction (first use of
     // a computed node); the others are copied after the block.
     std::vector<bool> outputDirect;
 };
+
+// Builds scalar, threaded, scalarOutputRegister and scalarRegisters from code, outputRegister
+// and registers.
+void buildSinglePointProgram(Program::Impl& p);
 
 // Single-point evaluation by the original switch loop over `code` (Program::evaluate runs the
 // flattened `scalar` form); kept so tests can check that both give the same bits.
