@@ -43,6 +43,8 @@ ScalarOp scalarOp(const Instruction& in) {
         case Op::Cos: return ScalarOp::Cos;
         case Op::Exp: return ScalarOp::Exp;
         case Op::Log: return ScalarOp::Log;
+        case Op::Abs: return ScalarOp::Abs;
+        case Op::Sign: return ScalarOp::Sign;
         case Op::Sqrt: return ScalarOp::Sqrt;
         case Op::Atan: return ScalarOp::Atan;
         default: return ScalarOp::Unary;
@@ -54,6 +56,8 @@ ScalarOp scalarOp(const Instruction& in) {
         case Op::Mul: return ScalarOp::Mul;
         case Op::Div: return ScalarOp::Div;
         case Op::Pow: return ScalarOp::Pow;
+        case Op::Min: return ScalarOp::Min;
+        case Op::Max: return ScalarOp::Max;
         default: return ScalarOp::Binary;
         }
     }
@@ -94,7 +98,7 @@ __attribute__((noinline, noclone, optimize("no-crossjumping"))) void runThreaded
     // Same order as ScalarOp.
     static const void* const handler[] = {&&add, &&sub, &&mul, &&div, &&neg, &&square, &&cube, &&fourth,
                                           &&reciprocal, &&powInteger, &&sin, &&cos, &&exp, &&log, &&sqrt,
-                                          &&atan, &&pow, &&select, &&unary, &&binary,
+                                          &&atan, &&pow, &&select, &&abs, &&sign, &&min, &&max, &&unary, &&binary,
 #define SW_EXPR_FUSED_LABEL(P, p, Q, q) &&fused_##P##Q, &&fused_##P##Q##r,
                                           SW_EXPR_PAIRS(SW_EXPR_FUSED_LABEL)
 #undef SW_EXPR_FUSED_LABEL
@@ -174,6 +178,25 @@ atan:
 pow:
     r[in->dst] = std::pow(r[in->a], r[in->b]);
     SW_NEXT();
+    // abs, sign, min and max exactly as apply1/apply2 (graph.cpp) compute them, without the call.
+abs:
+    r[in->dst] = std::fabs(r[in->a]);
+    SW_NEXT();
+sign: {
+    const double x = r[in->a];
+    r[in->dst] = x > 0 ? 1.0 : (x < 0 ? -1.0 : x);
+    SW_NEXT();
+}
+min: {
+    const double x = r[in->a], y = r[in->b];
+    r[in->dst] = (x <= y || x != x) ? x : y;
+    SW_NEXT();
+}
+max: {
+    const double x = r[in->a], y = r[in->b];
+    r[in->dst] = (x >= y || x != x) ? x : y;
+    SW_NEXT();
+}
 select:
     r[in->dst] = r[in->a] != 0 ? r[in->b] : r[in->c];
     SW_NEXT();
@@ -309,11 +332,12 @@ int operandsOf(const ScalarInstruction& in, std::int32_t out[5]) {
     case ScalarOp::Neg: case ScalarOp::Square: case ScalarOp::Cube: case ScalarOp::Fourth:
     case ScalarOp::Reciprocal: case ScalarOp::PowInteger: case ScalarOp::Sin: case ScalarOp::Cos:
     case ScalarOp::Exp: case ScalarOp::Log: case ScalarOp::Sqrt: case ScalarOp::Atan: case ScalarOp::Unary:
+    case ScalarOp::Abs: case ScalarOp::Sign:
     case ScalarOp::NegExp:
         count = 1;
         break;
     case ScalarOp::Add: case ScalarOp::Sub: case ScalarOp::Mul: case ScalarOp::Div:
-    case ScalarOp::Pow: case ScalarOp::Binary:
+    case ScalarOp::Pow: case ScalarOp::Binary: case ScalarOp::Min: case ScalarOp::Max:
         count = 2;
         break;
     case ScalarOp::DotStep: case ScalarOp::SquareStep: count = 5; break;
@@ -509,7 +533,11 @@ std::string listing(const std::vector<ScalarInstruction>& program) {
             if (q >= 0) out << reg(in.a) << " " << symbol[q] << " " << reg(in.b);
             else if (in.op == ScalarOp::Select) out << reg(in.a) << " ? " << reg(in.b) << " : " << reg(in.c);
             else if (in.op == ScalarOp::PowInteger) out << reg(in.a) << "^" << in.b;
-            else if (in.op == ScalarOp::Pow || in.op == ScalarOp::Binary) out << opName(in.op == ScalarOp::Pow ? Op::Pow : in.generic) << "(" << reg(in.a) << ", " << reg(in.b) << ")";
+            else if (in.op == ScalarOp::Pow || in.op == ScalarOp::Min || in.op == ScalarOp::Max || in.op == ScalarOp::Binary)
+                out << opName(in.op == ScalarOp::Pow ? Op::Pow : in.op == ScalarOp::Min ? Op::Min : in.op == ScalarOp::Max ? Op::Max : in.generic)
+                    << "(" << reg(in.a) << ", " << reg(in.b) << ")";
+            else if (in.op == ScalarOp::Abs || in.op == ScalarOp::Sign)
+                out << opName(in.op == ScalarOp::Abs ? Op::Abs : Op::Sign) << "(" << reg(in.a) << ")";
             else {
                 static const char* const unary[] = {"-", "square", "cube", "fourth", "reciprocal"};
                 const int u = op - static_cast<int>(ScalarOp::Neg);

@@ -49,6 +49,7 @@ struct Instruction {
 enum class ScalarOp : std::uint8_t {
     Add, Sub, Mul, Div, Neg, Square, Cube, Fourth, Reciprocal, PowInteger,
     Sin, Cos, Exp, Log, Sqrt, Atan, Pow, Select,
+    Abs, Sign, Min, Max,  // inline, as apply1/apply2 define them
     Unary,   // any other one-argument op: apply1(generic, a)
     Binary,  // any other two-argument op: apply2(generic, a, b)
     // Fused pairs, t = a P b read once by Q:  PQ: (a P b) Q c;  PQr: c Q (a P b).
