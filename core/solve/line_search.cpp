@@ -33,6 +33,15 @@ std::string describeTrials(const std::vector<LineSearchTrial>& trials, std::size
     return text;
 }
 
+double stepFromPreviousDecrease(double previousDecrease, double slope) {
+    const double guess = std::min(1.0, 1.01 * 2 * previousDecrease / -slope);
+    return std::isfinite(guess) && guess > 0 ? guess : 1.0;
+}
+
+double firstStepFromGradient(const Vector& gradient, double slope) {
+    return stepFromPreviousDecrease(gradient.norm() / 2, slope);
+}
+
 std::vector<OptionSpec> lineSearchOptionSpecs(double defaultCurvature) {
     using T = OptionSpec::Type;
     return {

@@ -162,6 +162,25 @@ TEST(StrongWolfe, FailsAndSaysSoWhenTrialsRunOut) {
     EXPECT_NE(r.message.find("last trials: alpha=1"), std::string::npos) << r.message;
 }
 
+TEST(FirstTrialStep, ExpectsTheLastDecreaseAgainCappedAtOne) {
+    // Nocedal & Wright (2006) eq. 3.60 with min(1, 1.01 alpha0): 1.01 * 2 * 0.5 / 4 = 0.2525.
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(0.5, -4.0), 1.01 * 0.25);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(10.0, -4.0), 1.0);
+}
+
+TEST(FirstTrialStep, FallsBackToOneWhenTheGuessIsNotAPositiveNumber) {
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(0.0, -4.0), 1.0);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(kNaN, -4.0), 1.0);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(-1.0, -4.0), 1.0);
+}
+
+TEST(FirstTrialStep, BeforeTheFirstStepIsAboutUnitLengthAlongSteepestDescent) {
+    const Vector g = point(3, 4);  // |g| = 5, d = -g, g'd = -25
+    EXPECT_DOUBLE_EQ(firstStepFromGradient(g, g.dot(-g)), 1.01 / 5);
+    const Vector small = point(0.3, 0.4);
+    EXPECT_DOUBLE_EQ(firstStepFromGradient(small, small.dot(-small)), 1.0);
+}
+
 TEST(LineSearchSettings, CurvatureMustExceedSufficientDecrease) {
     LineSearchSettings s;
     s.sufficientDecrease = 0.5;
