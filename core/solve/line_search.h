@@ -5,6 +5,7 @@
 
 #include "core/solve/method.h"
 
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -17,6 +18,11 @@ struct LineSearchSettings {
     double backtrackFactor = 0.5;     // backtracking: a <- factor * a, in (0, 1)
     int maxTrials = 30;               // trials before the search gives up
     double maxStep = 1e10;            // strong Wolfe: the largest alpha tried
+    // Strong Wolfe only, optional: a further test on the gradient at a trial that meets both
+    // Wolfe conditions; a trial that fails it is not accepted and the search goes on (toward
+    // the exact minimiser along d). `extraConditionName` labels such trials in the record.
+    std::function<bool(const Vector& trialGradient)> extraCondition;
+    const char* extraConditionName = "extra condition";
     std::string check() const;        // "" or a sentence
 };
 

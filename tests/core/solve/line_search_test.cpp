@@ -101,6 +101,32 @@ TEST(StrongWolfe, AcceptedStepSatisfiesBothConditions) {
     }
 }
 
+TEST(StrongWolfe, GoesOnPastAWolfeStepThatFailsTheExtraCondition) {
+    // Along -g on Rosenbrock from (-1.2, 1) the first Wolfe step is far from the minimiser along
+    // the line; asking for a nearly flat slope there (|g+'d| <= 0.01 |g'd|, stricter than c2 = 0.9)
+    // makes the search go on past Wolfe points and label them.
+    Probe p = rosenbrockProbe();
+    Evaluator eval(p.objective, 1000);
+    LineSearchSettings s;
+    const double slope0 = p.g.dot(p.d);
+    s.extraCondition = [&](const Vector& next) { return std::abs(next.dot(p.d)) <= 0.01 * std::abs(slope0); };
+    s.extraConditionName = "flat slope";
+    LineSearchResult r = strongWolfe(eval, p.x, p.f, p.g, p.d, s);
+    ASSERT_TRUE(r.success) << r.message;
+    ASSERT_TRUE(r.curvatureMet) << r.message;
+    EXPECT_LE(std::abs(r.gradient.dot(p.d)), 0.01 * std::abs(slope0));
+    EXPECT_LE(r.value, p.f + s.sufficientDecrease * r.alpha * slope0);
+    int labelled = 0;
+    for (const LineSearchTrial& t : r.trials) labelled += t.failed == "flat slope";
+    EXPECT_GE(labelled, 1) << describeTrials(r.trials, 10);
+
+    Evaluator plainEval(p.objective, 1000);
+    LineSearchSettings plain;
+    LineSearchResult without = strongWolfe(plainEval, p.x, p.f, p.g, p.d, plain);
+    ASSERT_TRUE(without.success);
+    EXPECT_LT(without.trials.size(), r.trials.size());
+}
+
 TEST(StrongWolfe, TightCurvatureStillConvergesOnAOneDimensionalQuadratic) {
     // phi(a) = (a - 3)^2 along d = 1 from x = 0: the exact minimiser a = 3 (worked by hand,
     // common practice, no published source). With c2 = 1e-3 only points very near 3 pass.

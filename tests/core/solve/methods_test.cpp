@@ -313,6 +313,25 @@ TEST(ConjugateGradient, RestartsEveryNStepsAndSaysSo) {
     EXPECT_EQ(run.trace[1].dampingName, "beta");
 }
 
+TEST(ConjugateGradient, DescentTestMakesEveryNextDirectionSufficientlyDownhill) {
+    // With the descent test sigma, each step is one whose following PR+ direction d+ satisfies
+    // g+'d+ <= -sigma |g+|^2 (Gilbert & Nocedal 1992); c2 = 0.4 without orthogonality restarts
+    // leaves room for it to bite on Rosenbrock.
+    const FunctionObjective f = problems::rosenbrock();
+    const double sigma = 0.01;
+    solve::Run run = solve("cg-polak-ribiere", f, point(-1.2, 1),
+                           {{"curvature", "0.4"}, {"restart_orthogonality", "0"}, {"descent_test", "0.01"}});
+    ASSERT_TRUE(isConvergence(run.termination)) << run.message;
+    int labelled = 0;
+    for (std::size_t k = 1; k + 1 < run.trace.size(); ++k) {
+        const IterationRecord& r = run.trace[k];
+        const Vector direction = r.step / r.stepLength;
+        EXPECT_LE(r.gradient.dot(direction), -sigma * r.gradient.squaredNorm()) << "iteration " << k;
+        for (const LineSearchTrial& t : run.trace[k - 1].trials) labelled += t.failed == "descent test";
+    }
+    EXPECT_GE(labelled, 1);  // the test rejected at least one Wolfe step
+}
+
 TEST(ConjugateGradient, PolakRibierePlusNeverTakesANegativeBeta) {
     const FunctionObjective f = problems::himmelblau();
     for (const Vector& start : {point(-0.3, -0.9), point(0.1, 2.8), point(-4, 4)}) {
