@@ -49,8 +49,8 @@ MORE_ITERATIONS = {
     "lbfgs": "the same algorithm: both paths agree to rounding for ~25 iterations, then rounding differences "
              "(compact L-BFGS-B matrix vs two-loop recursion) grow on the way through the saddle region",
     "cg-polak-ribiere": "line search: ours c2 = 0.02 with orthogonality restarts, SciPy c2 = 0.4 with a descent test; "
-                        "options curvature=0.4 restart_orthogonality=0 need fewer iterations here but more over "
-                        "the catalogue",
+                        "SciPy's settings (options curvature=0.4 restart_orthogonality=0 descent_test=0.01) need 16 "
+                        "here but more over the catalogue",
 }
 # Pairs whose iteration counts are sensitive to rounding: how far SciPy's own count moves when the start
 # is perturbed at the 1e-16..1e-12 relative level (printed beside the extra iterations).
