@@ -55,9 +55,11 @@ void expectNoMoreIterationsThanSciPy(const std::string& method, const sw::solve:
 }
 
 TEST(SciPyVariants, BfgsWithTheDecreaseBasedFirstTrialNeedsNoMoreIterationsThanSciPysBfgs) {
-    // SciPy 1.10.1 method='BFGS', gtol=1e-8, norm=2: nit on problems 1, 5, 6, 7, 8, 14.
+    // SciPy 1.10.1 method='BFGS', gtol=1e-8, norm=2: nit on every problem of the catalogue where it
+    // succeeds (on problem 2 it stops with "precision loss"). Our default (alpha = 1 first) differs.
     expectNoMoreIterationsThanSciPy("bfgs", {{"first_trial", "previous_decrease"}}, "BFGS",
-                                    {{1, 34}, {5, 16}, {6, 19}, {7, 32}, {8, 23}, {14, 91}});
+                                    {{1, 34}, {3, 155}, {4, 16}, {5, 16}, {6, 19}, {7, 32}, {8, 23}, {9, 4}, {13, 62},
+                                     {14, 91}});
 }
 
 TEST(SciPyVariants, TrustRegionExactTakesSciPysIterationsWhenSciPySolvesItsSubproblemToRounding) {
