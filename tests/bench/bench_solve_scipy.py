@@ -47,7 +47,8 @@ MORE_ITERATIONS = {
             "option first_trial=previous_decrease takes SciPy's count (tests/reference/solve/scipy_variant_test.cpp) "
             "but more iterations over the whole catalogue",
     "lbfgs": "the same algorithm: both paths agree to rounding for ~25 iterations, then rounding differences "
-             "(compact L-BFGS-B matrix vs two-loop recursion) grow on the way through the saddle region",
+             "(presumably L-BFGS-B's compact matrix vs our two-loop recursion) grow on the way through the saddle "
+             "region",
     "cg-polak-ribiere": "line search: ours c2 = 0.02 with orthogonality restarts, SciPy c2 = 0.4 with a descent test; "
                         "SciPy's settings (options curvature=0.4 restart_orthogonality=0 descent_test=0.01) need 16 "
                         "here but more over the catalogue",
