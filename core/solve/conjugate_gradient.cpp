@@ -13,10 +13,21 @@ enum class BetaRule { FletcherReeves, PolakRibierePlus };
 
 class NonlinearCg final : public MethodState {
 public:
-    NonlinearCg(BetaRule rule, bool periodicRestart, int restartEvery, double orthogonalityRestart,
+    NonlinearCg(BetaRule rule, bool periodicRestart, int restartEvery, double orthogonalityRestart, double descentTest,
                 LineSearchSettings settings)
         : rule_(rule), periodicRestart_(periodicRestart), restartEvery_(restartEvery),
-          orthogonalityRestart_(orthogonalityRestart), settings_(settings) {}
+          orthogonalityRestart_(orthogonalityRestart), descentTest_(descentTest), settings_(settings) {
+        if (descentTest_ > 0) {
+            // Sufficient descent of the next direction, g+'d+ <= -sigma |g+|^2 (the condition of the
+            // PR+ convergence analysis of Gilbert & Nocedal 1992), required of the step itself: the
+            // search goes on until the direction it leads to is downhill enough.
+            settings_.extraCondition = [this](const Vector& next) { return nextDirectionDescends(next); };
+            settings_.extraConditionName = "descent test";
+        }
+    }
+    // The search settings hold a callback into this object: it is neither copied nor moved.
+    NonlinearCg(const NonlinearCg&) = delete;
+    NonlinearCg& operator=(const NonlinearCg&) = delete;
 
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
         const Vector& g = state.gradient;
@@ -69,10 +80,24 @@ public:
     }
 
 private:
+    // Beta of the rule for the next gradient `next` after the current one (before restarts).
+    double betaFor(const Vector& next, const Vector& current) const {
+        if (rule_ == BetaRule::FletcherReeves) return next.squaredNorm() / current.squaredNorm();  // eq. 5.41a
+        return std::max(next.dot(next - current) / current.squaredNorm(), 0.0);                   // eqs. 5.44-5.45
+    }
+
+    // g+'d+ <= -sigma |g+|^2 for d+ = -g+ + beta d, the direction the next iteration would take.
+    bool nextDirectionDescends(const Vector& next) const {
+        const double beta = betaFor(next, previousGradient_);
+        const double gg = next.squaredNorm();
+        return -gg + beta * next.dot(direction_) <= -descentTest_ * gg;
+    }
+
     BetaRule rule_;
     bool periodicRestart_;
     int restartEvery_;
     double orthogonalityRestart_;
+    double descentTest_;  // sigma of the descent test (0 = off)
     LineSearchSettings settings_;
     Vector direction_, previousGradient_;
     int sinceRestart_ = 0;
@@ -102,6 +127,10 @@ MethodRegistration cgRegistration(std::string id, std::string summary, BetaRule 
         integerOption("restart_every", "period of the periodic restart (0 = n, the number of variables)", 0, 0, 1000000),
         realOption("restart_orthogonality", "restart when |g'g_prev| >= this |g|^2 (0 = off; N&W eq. 5.52)",
                    defaults.orthogonality, 0, 1, false, false),
+        realOption("descent_test",
+                   "sigma: the line search accepts a step only when the next direction d+ satisfies "
+                   "g+'d+ <= -sigma |g+|^2 (sufficient descent, Gilbert & Nocedal 1992; 0 = off)",
+                   0.0, 0, 1, false, true),
     };
     for (OptionSpec& s : lineSearchOptionSpecs(defaults.curvature))
         if (s.name != "backtrack_factor") info.options.push_back(std::move(s));
@@ -111,6 +140,7 @@ MethodRegistration cgRegistration(std::string id, std::string summary, BetaRule 
                 return std::make_unique<NonlinearCg>(rule, optionFlag(specs, v, "periodic_restart"),
                                                      static_cast<int>(optionNumber(specs, v, "restart_every")),
                                                      optionNumber(specs, v, "restart_orthogonality"),
+                                                     optionNumber(specs, v, "descent_test"),
                                                      lineSearchSettings(specs, v));
             },
             [specs](const OptionValues& v) { return lineSearchSettings(specs, v).check(); }};

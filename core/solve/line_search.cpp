@@ -33,6 +33,15 @@ std::string describeTrials(const std::vector<LineSearchTrial>& trials, std::size
     return text;
 }
 
+double stepFromPreviousDecrease(double previousDecrease, double slope) {
+    const double guess = std::min(1.0, 1.01 * 2 * previousDecrease / -slope);
+    return std::isfinite(guess) && guess > 0 ? guess : 1.0;
+}
+
+double firstStepFromGradient(const Vector& gradient, double slope) {
+    return stepFromPreviousDecrease(gradient.norm() / 2, slope);
+}
+
 std::vector<OptionSpec> lineSearchOptionSpecs(double defaultCurvature) {
     using T = OptionSpec::Type;
     return {
@@ -239,6 +248,7 @@ void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g
 
     Vector& trialX = result.x;  // trials are built where the result lives
     Vector& trialG = result.gradient;
+    bool extraFailed = false;   // this trial met the Wolfe conditions but not settings.extraCondition
     for (int trialNo = 0; trialNo < settings.maxTrials; ++trialNo) {
         trialX.noalias() = x + stp * d;
         const double value = eval.gradient(trialX, trialG);
@@ -265,7 +275,11 @@ void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g
         // step that keeps f within rounding and meets the curvature condition (the approximate
         // Wolfe conditions of Hager & Zhang 2005, with a tighter epsilon).
         const bool flatWithinRounding = value <= f + kRoundingSlack * std::abs(f);
-        if ((decreaseOk || flatWithinRounding) && curvatureOk) {
+        const bool wolfeOk = (decreaseOk || flatWithinRounding) && curvatureOk;
+        if (wolfeOk && settings.extraCondition && !settings.extraCondition(trialG)) {
+            t.failed = settings.extraConditionName;
+            extraFailed = true;
+        } else if (wolfeOk) {
             if (!decreaseOk) result.message = "accepted on the approximate Wolfe conditions: f is flat to rounding";
             t.accepted = true;
             result.trials.push_back(t);
@@ -274,7 +288,8 @@ void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g
             result.value = value;
             return;
         }
-        t.failed = decreaseOk ? "curvature" : "sufficient decrease";
+        if (!extraFailed) t.failed = decreaseOk ? "curvature" : "sufficient decrease";
+        extraFailed = false;
         result.trials.push_back(t);
         if (decreaseOk && value < fallbackValue) {
             fallbackAlpha = stp;
@@ -324,6 +339,12 @@ void strongWolfeInto(Evaluator& eval, const Vector& x, double f, const Vector& g
         result.value = fallbackValue;
         result.gradient = fallbackGradient;
         result.message = "strong Wolfe curvature condition not met; took the best step with sufficient decrease";
+        for (const LineSearchTrial& t : result.trials)
+            if (settings.extraCondition && t.failed == settings.extraConditionName) {
+                result.message = std::string("no step met both Wolfe conditions and the ") +
+                                 settings.extraConditionName + "; took the best step with sufficient decrease";
+                break;
+            }
         for (LineSearchTrial& t : result.trials)
             if (t.alpha == fallbackAlpha && t.value == fallbackValue) {
                 t.accepted = true;

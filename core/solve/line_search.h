@@ -5,6 +5,7 @@
 
 #include "core/solve/method.h"
 
+#include <functional>
 #include <string>
 #include <vector>
 
@@ -17,6 +18,11 @@ struct LineSearchSettings {
     double backtrackFactor = 0.5;     // backtracking: a <- factor * a, in (0, 1)
     int maxTrials = 30;               // trials before the search gives up
     double maxStep = 1e10;            // strong Wolfe: the largest alpha tried
+    // Strong Wolfe only, optional: a further test on the gradient at a trial that meets both
+    // Wolfe conditions; a trial that fails it is not accepted and the search goes on (toward
+    // the exact minimiser along d). `extraConditionName` labels such trials in the record.
+    std::function<bool(const Vector& trialGradient)> extraCondition;
+    const char* extraConditionName = "extra condition";
     std::string check() const;        // "" or a sentence
 };
 
@@ -42,6 +48,18 @@ LineSearchResult backtrackingArmijo(Evaluator& eval, const Vector& x, double f, 
 // auxiliary function psi to f once psi <= 0 and f' >= 0 (their Section 3).
 LineSearchResult strongWolfe(Evaluator& eval, const Vector& x, double f, const Vector& g, const Vector& d,
                              const LineSearchSettings& settings);
+
+// First trial step from the last decrease (Nocedal & Wright 2006, eq. 3.60, with their advice
+// to take min(1, 1.01 alpha0) so that a unit step is eventually tried): expect f to fall by
+// as much as in the previous iteration, alpha0 = min(1, 1.01 * 2 (f_{k-1} - f_k) / -g'd).
+// `previousDecrease` is f_{k-1} - f_k; `slope` is g'd (< 0). Falls back to 1 when the guess
+// is not a positive finite number.
+double stepFromPreviousDecrease(double previousDecrease, double slope);
+
+// The same rule before the first step, where there is no previous decrease: it assumes a
+// previous decrease of |g| / 2, so along d = -g the first trial is min(1, 1.01 / |g|), a step
+// of length about 1 (common practice, no published source).
+double firstStepFromGradient(const Vector& gradient, double slope);
 
 // "alpha=1 f=3.2 (sufficient decrease); alpha=0.5 ..." for the last `count` trials.
 std::string describeTrials(const std::vector<LineSearchTrial>& trials, std::size_t count = 4);

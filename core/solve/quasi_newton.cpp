@@ -39,8 +39,8 @@ std::string skipNote(double ys, const char* method) {
 
 class Bfgs final : public MethodState {
 public:
-    Bfgs(LineSearchKind kind, LineSearchSettings settings, bool scaleInitial)
-        : kind_(kind), settings_(settings), scaleInitial_(scaleInitial) {}
+    Bfgs(LineSearchKind kind, LineSearchSettings settings, bool scaleInitial, bool trialFromDecrease)
+        : kind_(kind), settings_(settings), scaleInitial_(scaleInitial), trialFromDecrease_(trialFromDecrease) {}
 
     StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) override {
         const auto n = state.x.size();
@@ -57,12 +57,16 @@ public:
         }
         record.stepKind = StepKind::QuasiNewton;
         LineSearchSettings settings = settings_;
-        settings.initialStep = firstTrial(state, first_);
-        first_ = false;
         previousGradient_ = state.gradient;
         const double slope = previousGradient_.dot(direction);
+        if (!trialFromDecrease_) settings.initialStep = firstTrial(state, first_);
+        else if (first_) settings.initialStep = firstStepFromGradient(state.gradient, slope);
+        else settings.initialStep = stepFromPreviousDecrease(previousDecrease_, slope);
+        first_ = false;
+        const double valueBefore = state.value;
         StepOutcome outcome = searchAndMove(eval, state, record, direction, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
+        previousDecrease_ = valueBefore - state.value;
         record.predictedDecrease = modelDecrease(slope, record.stepLength);
         gradientChange_ = state.gradient - previousGradient_;
         update(record.step, gradientChange_, record);
@@ -79,10 +83,12 @@ private:
     LineSearchKind kind_;
     LineSearchSettings settings_;
     bool scaleInitial_;
+    bool trialFromDecrease_;  // first trial by N&W eq. 3.60 instead of alpha = 1
     Matrix inverse_;
     Vector direction_, previousGradient_, gradientChange_;
     int updates_ = 0;
     bool first_ = true;
+    double previousDecrease_ = kNaN;
 };
 
 // ---- lbfgs ------------------------------------------------------------------------------------------
@@ -231,14 +237,20 @@ std::vector<MethodRegistration> quasiNewtonMethods() {
                                      {"wolfe", "armijo"}, 0),
                         flagOption("scale_initial",
                                    "scale the first model by y's / y'y (Nocedal & Wright eq. 6.20); off: H0 = I",
-                                   false)};
+                                   false),
+                        choiceOption("first_trial",
+                                     "first trial step of each line search: unit (alpha = 1, the full quasi-Newton "
+                                     "step) or previous_decrease (expect the last decrease again, Nocedal & Wright "
+                                     "eq. 3.60, capped at 1)",
+                                     {"unit", "previous_decrease"}, 0)};
         for (OptionSpec& s : lineSearchOptionSpecs(0.9)) info.options.push_back(std::move(s));
         const std::vector<OptionSpec> specs = info.options;
         list.push_back({info,
                         [specs](const OptionValues& v) {
                             return std::make_unique<Bfgs>(searchKind(optionChoice(specs, v, "line_search")),
                                                           lineSearchSettings(specs, v),
-                                                          optionFlag(specs, v, "scale_initial"));
+                                                          optionFlag(specs, v, "scale_initial"),
+                                                          optionChoice(specs, v, "first_trial") == "previous_decrease");
                         },
                         [specs](const OptionValues& v) { return lineSearchSettings(specs, v).check(); }});
     }

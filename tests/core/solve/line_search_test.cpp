@@ -101,6 +101,32 @@ TEST(StrongWolfe, AcceptedStepSatisfiesBothConditions) {
     }
 }
 
+TEST(StrongWolfe, GoesOnPastAWolfeStepThatFailsTheExtraCondition) {
+    // Along -g on Rosenbrock from (-1.2, 1) the first Wolfe step is far from the minimiser along
+    // the line; asking for a nearly flat slope there (|g+'d| <= 0.01 |g'd|, stricter than c2 = 0.9)
+    // makes the search go on past Wolfe points and label them.
+    Probe p = rosenbrockProbe();
+    Evaluator eval(p.objective, 1000);
+    LineSearchSettings s;
+    const double slope0 = p.g.dot(p.d);
+    s.extraCondition = [&](const Vector& next) { return std::abs(next.dot(p.d)) <= 0.01 * std::abs(slope0); };
+    s.extraConditionName = "flat slope";
+    LineSearchResult r = strongWolfe(eval, p.x, p.f, p.g, p.d, s);
+    ASSERT_TRUE(r.success) << r.message;
+    ASSERT_TRUE(r.curvatureMet) << r.message;
+    EXPECT_LE(std::abs(r.gradient.dot(p.d)), 0.01 * std::abs(slope0));
+    EXPECT_LE(r.value, p.f + s.sufficientDecrease * r.alpha * slope0);
+    int labelled = 0;
+    for (const LineSearchTrial& t : r.trials) labelled += t.failed == "flat slope";
+    EXPECT_GE(labelled, 1) << describeTrials(r.trials, 10);
+
+    Evaluator plainEval(p.objective, 1000);
+    LineSearchSettings plain;
+    LineSearchResult without = strongWolfe(plainEval, p.x, p.f, p.g, p.d, plain);
+    ASSERT_TRUE(without.success);
+    EXPECT_LT(without.trials.size(), r.trials.size());
+}
+
 TEST(StrongWolfe, TightCurvatureStillConvergesOnAOneDimensionalQuadratic) {
     // phi(a) = (a - 3)^2 along d = 1 from x = 0: the exact minimiser a = 3 (worked by hand,
     // common practice, no published source). With c2 = 1e-3 only points very near 3 pass.
@@ -160,6 +186,25 @@ TEST(StrongWolfe, FailsAndSaysSoWhenTrialsRunOut) {
     EXPECT_FALSE(r.success);
     EXPECT_NE(r.message.find("strong Wolfe"), std::string::npos) << r.message;
     EXPECT_NE(r.message.find("last trials: alpha=1"), std::string::npos) << r.message;
+}
+
+TEST(FirstTrialStep, ExpectsTheLastDecreaseAgainCappedAtOne) {
+    // Nocedal & Wright (2006) eq. 3.60 with min(1, 1.01 alpha0): 1.01 * 2 * 0.5 / 4 = 0.2525.
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(0.5, -4.0), 1.01 * 0.25);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(10.0, -4.0), 1.0);
+}
+
+TEST(FirstTrialStep, FallsBackToOneWhenTheGuessIsNotAPositiveNumber) {
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(0.0, -4.0), 1.0);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(kNaN, -4.0), 1.0);
+    EXPECT_DOUBLE_EQ(stepFromPreviousDecrease(-1.0, -4.0), 1.0);
+}
+
+TEST(FirstTrialStep, BeforeTheFirstStepIsAboutUnitLengthAlongSteepestDescent) {
+    const Vector g = point(3, 4);  // |g| = 5, d = -g, g'd = -25
+    EXPECT_DOUBLE_EQ(firstStepFromGradient(g, g.dot(-g)), 1.01 / 5);
+    const Vector small = point(0.3, 0.4);
+    EXPECT_DOUBLE_EQ(firstStepFromGradient(small, small.dot(-small)), 1.0);
 }
 
 TEST(LineSearchSettings, CurvatureMustExceedSufficientDecrease) {

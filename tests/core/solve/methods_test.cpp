@@ -2,6 +2,7 @@
 // a convex quadratic (minimiser (0.2, 0.4), f* = -0.3; common practice, no published source)
 // and Rosenbrock's function (minimiser (1, 1), f* = 0; Rosenbrock 1960, value from memory).
 #include "core/solve/method.h"
+#include "core/solve/line_search.h"
 #include "core/solve/quasi_newton.h"
 #include "tests/core/solve/solve_test_problems.h"
 
@@ -156,6 +157,32 @@ TEST(Bfgs, FewerIterationsThanGradientDescentOnRosenbrock) {
     EXPECT_GT(gd.iterations(), 10 * bfgs.iterations());
 }
 
+TEST(Bfgs, PreviousDecreaseFirstTrialFollowsEquation360) {
+    // Each line search after the first starts from min(1, 1.01 * 2 (f_{k-1} - f_k) / -g_k'd_k)
+    // (Nocedal & Wright 2006, eq. 3.60); the first from min(1, 1.01 / |g_0|).
+    const FunctionObjective f = problems::rosenbrock();
+    solve::Run run = solve("bfgs", f, point(-1.2, 1), {{"first_trial", "previous_decrease"}});
+    ASSERT_TRUE(isConvergence(run.termination)) << run.message;
+    ASSERT_GT(run.trace.size(), 5u);
+    EXPECT_DOUBLE_EQ(run.trace[0].trials.front().alpha, std::min(1.0, 1.01 / run.trace[0].gradientNorm));
+    int belowOne = 0;
+    for (std::size_t k = 1; k + 1 < run.trace.size(); ++k) {
+        const IterationRecord& r = run.trace[k];
+        ASSERT_FALSE(r.trials.empty());
+        const Vector direction = r.step / r.stepLength;
+        const double expected = stepFromPreviousDecrease(run.trace[k - 1].value - r.value, r.gradient.dot(direction));
+        EXPECT_NEAR(r.trials.front().alpha, expected, 1e-9 * expected) << "iteration " << k;
+        belowOne += r.trials.front().alpha < 1;
+    }
+    EXPECT_GT(belowOne, 0);  // the rule is not alpha = 1 in disguise
+}
+
+TEST(Bfgs, UnitFirstTrialByDefault) {
+    const FunctionObjective f = problems::rosenbrock();
+    solve::Run run = solve("bfgs", f, point(-1.2, 1));
+    for (std::size_t k = 1; k + 1 < run.trace.size(); ++k) EXPECT_EQ(run.trace[k].trials.front().alpha, 1.0);
+}
+
 TEST(BfgsUpdate, SkipsWhenCurvatureIsNotPositive) {
     Matrix h = Matrix::Identity(2, 2);
     std::string note;
@@ -284,6 +311,25 @@ TEST(ConjugateGradient, RestartsEveryNStepsAndSaysSo) {
     EXPECT_EQ(run.trace[3].stepKind, StepKind::Gradient);
     EXPECT_NE(run.trace[3].note.text().find("restart after 3 steps"), std::string::npos) << run.trace[3].note.text();
     EXPECT_EQ(run.trace[1].dampingName, "beta");
+}
+
+TEST(ConjugateGradient, DescentTestMakesEveryNextDirectionSufficientlyDownhill) {
+    // With the descent test sigma, each step is one whose following PR+ direction d+ satisfies
+    // g+'d+ <= -sigma |g+|^2 (Gilbert & Nocedal 1992); c2 = 0.4 without orthogonality restarts
+    // leaves room for it to bite on Rosenbrock.
+    const FunctionObjective f = problems::rosenbrock();
+    const double sigma = 0.01;
+    solve::Run run = solve("cg-polak-ribiere", f, point(-1.2, 1),
+                           {{"curvature", "0.4"}, {"restart_orthogonality", "0"}, {"descent_test", "0.01"}});
+    ASSERT_TRUE(isConvergence(run.termination)) << run.message;
+    int labelled = 0;
+    for (std::size_t k = 1; k + 1 < run.trace.size(); ++k) {
+        const IterationRecord& r = run.trace[k];
+        const Vector direction = r.step / r.stepLength;
+        EXPECT_LE(r.gradient.dot(direction), -sigma * r.gradient.squaredNorm()) << "iteration " << k;
+        for (const LineSearchTrial& t : run.trace[k - 1].trials) labelled += t.failed == "descent test";
+    }
+    EXPECT_GE(labelled, 1);  // the test rejected at least one Wolfe step
 }
 
 TEST(ConjugateGradient, PolakRibierePlusNeverTakesANegativeBeta) {

@@ -31,6 +31,18 @@ TEST(BadInput, AnUnknownMethodIdIsRejectedWithTheListOfIds) {
         EXPECT_TRUE(mentions(made.error, id)) << made.error;
 }
 
+TEST(BadInput, TheNewLineSearchOptionsAreCheckedByName) {
+    const FormulaObjective f("(1 - x)^2 + 100*(y - x^2)^2", {"x", "y"});
+    const auto sigma = makeSolver("cg-polak-ribiere", f, point(-1.2, 1), {{"descent_test", "1"}});
+    EXPECT_FALSE(sigma.solver);
+    EXPECT_TRUE(mentions(sigma.error, "descent_test")) << sigma.error;
+    EXPECT_TRUE(mentions(sigma.error, "[0, 1)")) << sigma.error;
+    const auto trial = makeSolver("bfgs", f, point(-1.2, 1), {{"first_trial", "half"}});
+    EXPECT_FALSE(trial.solver);
+    EXPECT_TRUE(mentions(trial.error, "first_trial")) << trial.error;
+    EXPECT_TRUE(mentions(trial.error, "previous_decrease")) << trial.error;
+}
+
 TEST(BadInput, AnOptionOutsideItsRangeIsNamedWithTheRange) {
     const FormulaObjective f("(1 - x)^2 + 100*(y - x^2)^2", {"x", "y"});
     const auto made = makeSolver("trust-region-exact", f, point(-1.2, 1), {{"eta", "0.5"}});
