@@ -88,23 +88,23 @@ public:
         const double* worst = vertex(last);
         const double best = value(0), secondWorst = value(last - 1), worstValue = value(last);
 
-        along(reflected_, reflection_, worst, true);  // c + r (c - worst)
+        awayFrom(reflected_, reflection_, worst);
         const double fr = evaluate(eval, reflected_);
         const char* move;
         if (fr < best) {
-            along(trial_, expansion_, reflected_.data(), false);  // c + e (reflected - c)
+            toward(trial_, expansion_, reflected_.data());
             const double fe = evaluate(eval, trial_);
             if (fe < fr) replaceWorst(trial_, fe), move = kExpand;
             else replaceWorst(reflected_, fr), move = kReflect;
         } else if (fr < secondWorst) {
             replaceWorst(reflected_, fr), move = kReflect;
         } else if (fr < worstValue) {
-            along(trial_, contraction_, reflected_.data(), false);
+            toward(trial_, contraction_, reflected_.data());
             const double fc = evaluate(eval, trial_);
             if (fc <= fr) replaceWorst(trial_, fc), move = kContractOutside;
             else shrinkToBest(eval), move = kShrink;
         } else {
-            along(trial_, contraction_, worst, false);  // c + k (worst - c)
+            toward(trial_, contraction_, worst);
             const double fcc = evaluate(eval, trial_);
             if (fcc < worstValue) replaceWorst(trial_, fcc), move = kContractInside;
             else shrinkToBest(eval), move = kShrink;
@@ -134,11 +134,17 @@ private:
     const double* vertex(std::size_t rank) const { return simplex_.col(order_[rank]).data(); }
     double value(std::size_t rank) const { return values_[static_cast<std::size_t>(order_[rank])]; }
 
-    // out = c + t (p - c) when fromCentroid is false, out = c + t (c - p) when it is true.
-    void along(Vector& out, double t, const double* p, bool fromCentroid) const {
+    // Points on the line through the centroid c and a point p: c + t (c - p), on the far side of
+    // c (reflection), and c + t (p - c), toward p (expansion past the reflected point, contractions).
+    void awayFrom(Vector& out, double t, const double* p) const {
         const double* c = centroid_.data();
         double* o = out.data();
-        for (Eigen::Index k = 0; k < out.size(); ++k) o[k] = fromCentroid ? c[k] + t * (c[k] - p[k]) : c[k] + t * (p[k] - c[k]);
+        for (Eigen::Index k = 0; k < out.size(); ++k) o[k] = c[k] + t * (c[k] - p[k]);
+    }
+    void toward(Vector& out, double t, const double* p) const {
+        const double* c = centroid_.data();
+        double* o = out.data();
+        for (Eigen::Index k = 0; k < out.size(); ++k) o[k] = c[k] + t * (p[k] - c[k]);
     }
 
     // A value that is not finite counts as +inf, so the simplex moves away from it.
