@@ -9,6 +9,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <cstdlib>
 #include <cmath>
 
 namespace sw::solve {
@@ -200,6 +201,56 @@ TEST(BfgsUpdate, SatisfiesTheSecantEquationAndStaysSymmetricPositiveDefinite) {
     EXPECT_NEAR((h * y - s).norm(), 0, 1e-14);  // H+ y = s (Nocedal & Wright eq. 6.7 for the inverse)
     EXPECT_NEAR((h - h.transpose()).norm(), 0, 1e-15);
     EXPECT_EQ(Eigen::LLT<Matrix>(h).info(), Eigen::Success);
+}
+
+// Pairs with positive curvature y's > 0, as L-BFGS keeps them, in a ring of `memory` columns.
+struct RingOfPairs {
+    Matrix s, y;
+    std::vector<double> rho;
+    RingOfPairs(int n, int memory, unsigned seed) : s(n, memory), y(n, memory), rho(static_cast<std::size_t>(memory)) {
+        std::srand(seed);
+        s.setRandom();
+        // y = D s with a positive diagonal D, different per pair: y's > 0 always.
+        y = s.cwiseProduct((Matrix::Random(n, memory).array() + 1.5).matrix());
+        for (int c = 0; c < memory; ++c) rho[static_cast<std::size_t>(c)] = 1.0 / y.col(c).dot(s.col(c));
+    }
+};
+
+TEST(LbfgsTwoLoop, TwoVariablePathGivesTheBitsOfTheGeneralLoop) {
+    // The fast path keeps the iterate in registers but does the same operations in the same order.
+    for (unsigned seed = 1; seed <= 50; ++seed) {
+        const RingOfPairs ring(2, 7, seed);
+        for (double r : ring.rho) ASSERT_GT(r, 0);
+        const Vector g = Vector::Random(2);
+        for (int count : {0, 1, 3, 7})
+            for (int newest : {0, 4, 6}) {
+                Vector fast, general;
+                std::vector<double> alphaFast(7), alphaGeneral(7);
+                lbfgsTwoLoop(ring.s, ring.y, ring.rho, count, newest, g, fast, alphaFast);
+                lbfgsTwoLoopGeneral(ring.s, ring.y, ring.rho, count, newest, g, general, alphaGeneral);
+                ASSERT_EQ(fast.size(), 2);
+                EXPECT_EQ(fast[0], general[0]) << "seed " << seed << " count " << count << " newest " << newest;
+                EXPECT_EQ(fast[1], general[1]) << "seed " << seed << " count " << count << " newest " << newest;
+                if (count == 0) {
+                    EXPECT_EQ(fast, Vector(-g));  // no pairs: steepest descent
+                }
+            }
+    }
+}
+
+TEST(LbfgsTwoLoop, SatisfiesTheSecantEquationForTheNewestPair) {
+    // H y = s for the newest pair (s, y): the secant equation every BFGS update keeps
+    // (Nocedal & Wright 2006, eq. 6.7 for the inverse), so the direction for g = y is -s.
+    for (int n : {2, 3, 6}) {
+        const RingOfPairs ring(n, 5, 7u + static_cast<unsigned>(n));
+        for (int newest : {0, 3}) {
+            Vector d;
+            std::vector<double> alpha(5);
+            const Vector g = ring.y.col(newest);
+            lbfgsTwoLoop(ring.s, ring.y, ring.rho, 5, newest, g, d, alpha);
+            EXPECT_NEAR((d + ring.s.col(newest)).norm(), 0, 1e-12 * ring.s.col(newest).norm()) << "n = " << n;
+        }
+    }
 }
 
 TEST(Bfgs, RecordsSkippedUpdatesWithArmijoSteps) {
