@@ -110,9 +110,11 @@ public:
             count_ = newest_ = 0;
         }
         lbfgsTwoLoop(s_, y_, rho_, count_, newest_, state.gradient, direction_, alpha_);
-        if (!(state.gradient.dot(direction_) < 0)) {
+        double slope = state.gradient.dot(direction_);
+        if (!(slope < 0)) {
             count_ = 0;
             direction_ = -state.gradient;
+            slope = state.gradient.dot(direction_);
             record.note = "the L-BFGS direction was not downhill; dropped the stored pairs";
         }
         record.stepKind = StepKind::QuasiNewton;
@@ -121,7 +123,6 @@ public:
         LineSearchSettings settings = settings_;
         settings.initialStep = firstTrial(state, count_ == 0);
         previousGradient_ = state.gradient;
-        const double slope = previousGradient_.dot(direction_);
         StepOutcome outcome = searchAndMove(eval, state, record, direction_, kind_, settings);
         if (outcome.termination != Termination::Running) return outcome;
         record.predictedDecrease = modelDecrease(slope, record.stepLength);
@@ -129,7 +130,8 @@ public:
         gradientChange_ = state.gradient - previousGradient_;
         const Vector& y = gradientChange_;
         const double ys = y.dot(s);
-        if (!(ys > kCurvatureFloor * s.norm() * y.norm())) {
+        // ys > floor |s| |y|, squared: the same test without two square roots per iteration.
+        if (!(ys > 0 && ys * ys > kCurvatureFloor * kCurvatureFloor * s.squaredNorm() * y.squaredNorm())) {
             record.note += (record.note.empty() ? "" : "; ") + skipNote(ys, "L-BFGS");
             return outcome;
         }
