@@ -56,7 +56,9 @@ std::vector<OptionSpec> lineSearchOptionSpecs(double defaultCurvature) {
 LineSearchSettings lineSearchSettings(const std::vector<OptionSpec>& specs, const OptionValues& values) {
     LineSearchSettings s;
     auto read = [&](const char* name, double fallback) {
-        return findOption(specs, name) ? optionNumber(specs, values, name) : fallback;
+        const OptionSpec* spec = findOption(specs, name);
+        if (!spec) return fallback;
+        return values.empty() ? spec->defaultValue : optionNumber(specs, values, name);
     };
     s.sufficientDecrease = read("sufficient_decrease", s.sufficientDecrease);
     s.curvature = read("curvature", s.curvature);

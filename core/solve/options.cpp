@@ -126,6 +126,7 @@ std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValue
 double optionNumber(const std::vector<OptionSpec>& specs, const OptionValues& values, const std::string& name) {
     const OptionSpec* spec = findOption(specs, name);
     if (!spec) throw std::logic_error("optionNumber: no option named " + name);
+    if (values.empty()) return spec->defaultValue;  // the common case: a method at its defaults
     auto it = values.find(name);
     if (it == values.end()) return spec->defaultValue;
     double v = spec->defaultValue;

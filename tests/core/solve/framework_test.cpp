@@ -270,6 +270,26 @@ TEST(Registry, EveryMethodHasAUniqueIdAFamilyAndDocumentedOptions) {
     EXPECT_EQ(findMethod("gradient-decent"), nullptr);
 }
 
+TEST(Registry, EveryMethodsDefaultsPassItsOwnCrossOptionCheck) {
+    // makeSolver skips a method's cross-option check when no option is given; that is only
+    // sound while the defaults pass it, written out or left implicit.
+    for (const MethodRegistration& r : registrations()) {
+        if (!r.check) continue;
+        EXPECT_EQ(r.check({}), "") << r.info.id;
+        OptionValues all;
+        for (const OptionSpec& o : r.info.options) all[o.name] = o.defaultText();
+        EXPECT_EQ(r.check(all), "") << r.info.id;
+    }
+}
+
+TEST(MakeSolver, StillChecksChosenOptionsAgainstEachOther) {
+    // c1 >= c2 is rejected by the line search's own check (Wolfe needs 0 < c1 < c2 < 1).
+    const FunctionObjective f = convexQuadratic();
+    SolverOrError made = makeSolver("bfgs", f, point(2, -1), {{"sufficient_decrease", "0.95"}, {"curvature", "0.9"}});
+    EXPECT_EQ(made.solver, nullptr);
+    EXPECT_NE(made.error.find("curvature"), std::string::npos) << made.error;
+}
+
 TEST(Solver, EndPointAwayFromACriticalPointIsMarkedNotCritical) {
     // Five steepest-descent steps on Rosenbrock from (-1.2, 1) end far from any critical point:
     // the curvature there is still reported, but the end point must not pass for a saddle or a
