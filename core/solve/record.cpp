@@ -138,17 +138,6 @@ void Note::add(const char* pattern, double a, double b, double c) {
     deferred_[static_cast<std::size_t>(parts_++)] = Part{pattern, {a, b, c}};
 }
 
-void Note::add(const Note& other) {
-    if (other.empty()) return;
-    if (other.text_.empty() && parts_ + other.parts_ <= static_cast<int>(deferred_.size())) {
-        for (int i = 0; i < other.parts_; ++i) deferred_[static_cast<std::size_t>(parts_++)] = other.deferred_[static_cast<std::size_t>(i)];
-        return;
-    }
-    render();
-    if (!text_.empty()) text_ += "; ";
-    text_ += other.text();
-}
-
 void Note::clear() {
     text_.clear();
     parts_ = 0;

@@ -68,8 +68,6 @@ public:
     Note& operator+=(std::string_view more);
     // Appends "; " (unless the note is empty) and the pattern with its numbers, deferred.
     void add(const char* pattern, double a = kNaN, double b = kNaN, double c = kNaN);
-    // Appends "; " (unless either is empty) and another note, keeping its deferred parts deferred.
-    void add(const Note& other);
     bool empty() const { return text_.empty() && parts_ == 0; }
     void clear();
     std::string text() const;

@@ -129,12 +129,6 @@ const char* ratioNote(const Trial& t) {
     return "";
 }
 
-// Appends "; " and `more` (nothing when it is empty).
-void appendNote(Note& note, const std::string& more) {
-    if (more.empty()) return;
-    if (!note.empty()) note += "; ";
-    note += more;
-}
 
 // ---- trust-region methods with the exact Hessian --------------------------------------
 
@@ -306,20 +300,19 @@ public:
             const Vector y = trial.gradient - state.gradient;
             if (settings_.scaleInitial && updates_ == 0 && y.dot(s) > 0) {
                 model_ = (y.squaredNorm() / y.dot(s)) * Matrix::Identity(s.size(), s.size());
-                appendNote(record.note, "B0 scaled to " + shortNumber(model_(0, 0)) + " I");
+                record.note.add("B0 scaled to {} I", model_(0, 0));
             }
             const Vector v = y - model_ * s;
             const double denominator = s.dot(v);
             if (std::abs(denominator) < settings_.skipThreshold * s.norm() * v.norm() || !(std::abs(denominator) > 0)) {
-                appendNote(record.note, "SR1 update skipped: |s'(y-Bs)| = " + shortNumber(std::abs(denominator)) +
-                                            " < r |s| |y-Bs| = " +
-                                            shortNumber(settings_.skipThreshold * s.norm() * v.norm()));
+                record.note.add("SR1 update skipped: |s'(y-Bs)| = {} < r |s| |y-Bs| = {}", std::abs(denominator),
+                                settings_.skipThreshold * s.norm() * v.norm());
             } else {
                 model_ += (v * v.transpose()) / denominator;
                 ++updates_;
             }
         } else {
-            appendNote(record.note, "SR1 update skipped: trial not finite");
+            record.note.add("SR1 update skipped: trial not finite");
         }
 
         // Nocedal & Wright (2006), Alg. 6.2 radius rule.
