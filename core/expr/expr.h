@@ -23,7 +23,11 @@ namespace sw::expr {
 class FormulaError : public std::runtime_error {
 public:
     FormulaError(std::string message, std::string formula, int position);
+    // An unknown-name error also lists the names (in order of first use), so a caller can offer
+    // to declare them.
+    FormulaError(std::string message, std::string formula, int position, std::vector<std::string> unknownNames);
     const std::string& formula() const { return formula_; }
+    const std::vector<std::string>& unknownNames() const { return unknownNames_; }
     int position() const { return position_; }
     const std::string& reason() const { return reason_; }
     // Three lines: the message with its column, the formula, a caret under the position.
@@ -33,6 +37,7 @@ private:
     std::string reason_;
     std::string formula_;
     int position_;
+    std::vector<std::string> unknownNames_;
 };
 
 // Documented limits (also in DEVELOPERS.md).

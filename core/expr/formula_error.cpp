@@ -13,6 +13,11 @@ FormulaError::FormulaError(std::string message, std::string formula, int positio
       formula_(std::move(formula)),
       position_(position) {}
 
+FormulaError::FormulaError(std::string message, std::string formula, int position, std::vector<std::string> unknownNames)
+    : FormulaError(std::move(message), std::move(formula), position) {
+    unknownNames_ = std::move(unknownNames);
+}
+
 std::string FormulaError::withCaret() const {
     std::string text = what();
     if (formula_.empty()) return text;

@@ -177,7 +177,7 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
         std::string reason = (unknown.size() == 1 ? "unknown name " : "unknown names ");
         for (std::size_t k = 0; k < unknown.size(); ++k) reason += (k ? ", " : "") + quoted(unknown[k]);
         reason += symbols.empty() ? " (no variables are declared)" : "; the variables are " + joinNames(symbols);
-        throw FormulaError(reason, text, firstUnknown);
+        throw FormulaError(reason, text, firstUnknown, unknown);
     }
 }
 
@@ -275,7 +275,7 @@ Expression Expression::parse(const std::string& text, const std::vector<std::str
     if (!strayNames.empty()) {
         auto pos = text.find(strayNames.front());
         throw FormulaError("unknown name " + quoted(strayNames.front()) + "; the variables are " + joinNames(symbols), text,
-                           pos == std::string::npos ? -1 : static_cast<int>(pos));
+                           pos == std::string::npos ? -1 : static_cast<int>(pos), {strayNames.front()});
     }
     if (parser.GetNumResults() != 1)
         throw FormulaError("the formula gives " + std::to_string(parser.GetNumResults()) +

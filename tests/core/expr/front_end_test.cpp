@@ -197,9 +197,12 @@ TEST(FormulaErrors, UnknownNamesAreAllListedWithTheDeclaredVariables) {
     auto e = errorOf("x + a*b - a", {"x", "y"});
     EXPECT_EQ(e.reason(), "unknown names 'a', 'b'; the variables are x, y");
     EXPECT_EQ(e.position(), 4);
+    EXPECT_EQ(e.unknownNames(), (std::vector<std::string>{"a", "b"}));  // so a window can offer to declare them
     auto one = errorOf("sin(t)", {});
     EXPECT_EQ(one.reason(), "unknown name 't' (no variables are declared)");
     EXPECT_EQ(one.position(), 4);
+    EXPECT_EQ(one.unknownNames(), std::vector<std::string>{"t"});
+    EXPECT_TRUE(errorOf("3 4").unknownNames().empty());
 }
 
 TEST(FormulaErrors, UnknownFunctionIsNamed) {
