@@ -6,6 +6,7 @@
 #include "core/objective/objective.h"
 #include "core/solve/options.h"
 
+#include <map>
 #include <memory>
 #include <optional>
 #include <stdexcept>
@@ -87,6 +88,12 @@ struct Study {
     double stepTolerance = 1e-14;
     double functionTolerance = 0;
 
+    // Added: text typed into a number field that does not read as a number yet, by the field's
+    // place in the document ("variables[1].start" -> "1.2."); the field itself holds NaN. It is
+    // written in place of the number, so a file saved from the window holds what was on screen.
+    // Empty for every study that runs.
+    std::map<std::string, std::string> unparsed;
+
     bool operator==(const Study&) const = default;
     bool isFit() const { return fit.has_value(); }
     std::vector<std::string> variableNames() const;
@@ -114,6 +121,20 @@ struct Study {
 // except what needs the data (the model's names against the table's columns).
 Study fromJson(const std::string& text, const std::string& baseDirectory, bool verifyData = true);
 std::string toJson(const Study& study);                           // stable key order, 2-space indent
+// Added: reads a study as it was saved, keeping content that does not parse or check yet: a
+// formula or model with an error, a name that is not a valid name, a number typed as text (kept
+// in Study::unparsed), an option value out of range, a missing, changed or unreadable data file,
+// fewer than two variables. The window saves exactly what is on screen and reopens it with the
+// same text (and shows the problem); the command line reads strictly (fromJson / loadFile) and
+// reports such a file's first problem with its place. The document's structure must still be
+// sound: JSON, format, version, known keys, and the types of everything the window cannot leave
+// half-typed (flags, choices, colours, markers, stopping rules).
+Study fromJsonAsTyped(const std::string& text, const std::string& baseDirectory);
+Study loadFileAsTyped(const std::string& path);
+// Added: the first problem with the variables (fewer than two, a bad or repeated name, a number
+// that is text or not finite, lower not below upper), as a StudyError with its place; the same
+// sentences as loading. For a window checking what is typed before it builds the objective.
+void checkVariables(const Study& study);
 Study loadFile(const std::string& path, bool verifyData = true);  // throws StudyError (place "file" for I/O)
 // Atomic for the command line (temp file + rename); the window uses QSaveFile with toJson.
 void saveFile(const Study& study, const std::string& path);

@@ -40,6 +40,34 @@ const std::vector<std::string>& markerNames() {
 
 namespace {
 
+// How the document on this thread is being read (see fromJsonAsTyped in study.h): strictly, or
+// as typed, where content problems are passed over and number fields may hold the text typed.
+// Set for the length of one read by ReadingMode; the reading helpers below consult it.
+struct Reading {
+    bool asTyped = false;
+    Study* study = nullptr;  // receives the text of number fields that do not read as numbers
+};
+thread_local Reading* currentReading = nullptr;
+
+class ReadingMode {
+public:
+    explicit ReadingMode(Reading& reading) : previous_(currentReading) { currentReading = &reading; }
+    ~ReadingMode() { currentReading = previous_; }
+    ReadingMode(const ReadingMode&) = delete;
+    ReadingMode& operator=(const ReadingMode&) = delete;
+
+private:
+    Reading* previous_;
+};
+
+bool readingAsTyped() { return currentReading && currentReading->asTyped; }
+
+// A problem with the content rather than the structure of the document: an error when reading
+// strictly, passed over when reading as typed (the window shows it once the study is open).
+void contentProblem(const std::string& place, const std::string& problem) {
+    if (!readingAsTyped()) throw StudyError(place, problem);
+}
+
 std::string jsonTypeName(const Json& value) {
     switch (value.type()) {
         case Json::value_t::null:
@@ -123,6 +151,10 @@ public:
             return fallback;
         }
         const Json& v = value_.at(key);
+        if (v.is_string() && readingAsTyped()) {  // a number typed as text, kept as it was typed
+            if (currentReading->study) currentReading->study->unparsed[at(key)] = v.get<std::string>();
+            return std::nan("");
+        }
         if (!v.is_number()) fail(at(key), "must be a number (got " + shown(v) + ")");
         return v.get<double>();
     }
@@ -232,8 +264,8 @@ std::vector<Variable> readVariables(const Json& document) {
     const Json& list = document.at("variables");
     if (!list.is_array()) throw StudyError("variables", "must be a list [...] (got " + jsonTypeName(list) + ")");
     if (list.size() < 2)
-        throw StudyError("variables", "a study needs at least two variables (the landscape plots two; got " +
-                                          std::to_string(list.size()) + ")");
+        contentProblem("variables", "a study needs at least two variables (the landscape plots two; got " +
+                                        std::to_string(list.size()) + ")");
     std::vector<Variable> variables;
     for (std::size_t k = 0; k < list.size(); ++k) {
         const std::string place = item("variables", k);
@@ -242,15 +274,15 @@ std::vector<Variable> readVariables(const Json& document) {
         Variable v;
         v.name = in.text("name", "", true);
         if (!isName(v.name))
-            ObjectReader::fail(in.at("name"),
+            contentProblem(in.at("name"),
                                "'" + v.name + "' is not a valid name (letters, digits, _; not starting with a digit)");
         for (const Variable& earlier : variables)
-            if (earlier.name == v.name) ObjectReader::fail(in.at("name"), "'" + v.name + "' is named twice");
+            if (earlier.name == v.name) contentProblem(in.at("name"), "'" + v.name + "' is named twice");
         v.start = in.number("start", 0, true);
         v.lower = in.number("lower", 0, true);
         v.upper = in.number("upper", 0, true);
-        if (!(v.lower < v.upper))
-            ObjectReader::fail(in.at("lower"), "must be below upper (got lower " + numberText(v.lower) + ", upper " +
+        if (!(v.lower < v.upper) && !std::isnan(v.lower) && !std::isnan(v.upper))
+            contentProblem(in.at("lower"), "must be below upper (got lower " + numberText(v.lower) + ", upper " +
                                                    numberText(v.upper) + ")");
         variables.push_back(v);
     }
@@ -272,6 +304,8 @@ std::string lowercase(std::string text) {
 // canonical text in the Study, so load -> save -> load is exact.
 std::string optionText(const solve::OptionSpec& spec, const Json& value, const std::string& place) {
     using Type = solve::OptionSpec::Type;
+    // As typed, a value the window kept as text (it did not read as the option's type) stays text.
+    if (readingAsTyped() && value.is_string()) return value.get<std::string>();
     switch (spec.type) {
         case Type::Boolean:
             if (!value.is_boolean()) ObjectReader::fail(place, "must be true or false (got " + shown(value) + ")");
@@ -323,7 +357,7 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
             ObjectReader::fail(in.at("method"),
                                "unknown method '" + entry.method + "'; known: " + solve::methodIdList());
         if (info->needsResiduals && !residualForm)
-            ObjectReader::fail(in.at("method"), entry.method +
+            contentProblem(in.at("method"), entry.method +
                                                     " needs a least-squares fit (residual form); this study's "
                                                     "objective has none (a formula, or a fit with another loss)");
         entry.label = in.text("label", entry.method);
@@ -349,13 +383,13 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                 }
                 const std::string text = optionText(*spec, option.value(), optionPlace);
                 const std::string problem = solve::checkOptions(info->options, {{option.key(), text}});
-                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, option.key()));
+                if (!problem.empty()) contentProblem(optionPlace, withoutOptionPrefix(problem, option.key()));
                 entry.options[option.key()] = text;
             }
             for (const solve::MethodRegistration& registration : solve::registrations())
                 if (registration.info.id == entry.method && registration.check) {
                     const std::string problem = registration.check(entry.options);
-                    if (!problem.empty()) ObjectReader::fail(in.at("options"), problem);
+                    if (!problem.empty()) contentProblem(in.at("options"), problem);
                 }
         }
         entry.colour = lowercase(in.text("colour", "", true));
@@ -406,15 +440,22 @@ void readView(const Json& document, Study& study) {
     auto index = [&](const std::string& key, int fallback) {
         if (!in.has(key)) return fallback;
         const std::string name = in.text(key, "");
-        const auto it = std::find(names.begin(), names.end(), name);
-        if (it == names.end())
-            ObjectReader::fail(in.at(key), "'" + name + "' is not one of the variables (" + join(names) + ")");
+        auto it = std::find(names.begin(), names.end(), name);
+        if (it == names.end()) {
+            contentProblem(in.at(key), "'" + name + "' is not one of the variables (" + join(names) + ")");
+            return fallback;
+        }
+        // Read as typed, two variables may share a name: plot_y then names the later one.
+        if (key == "plot_y" && it - names.begin() == view.plotX) {
+            const auto later = std::find(it + 1, names.end(), name);
+            if (later != names.end() && readingAsTyped()) it = later;
+        }
         return static_cast<int>(it - names.begin());
     };
     view.plotX = index("plot_x", 0);
     view.plotY = index("plot_y", view.plotX == 1 ? 0 : 1);
-    if (view.plotX == view.plotY)
-        ObjectReader::fail(in.at("plot_y"), "must differ from plot_x (both are '" + names[view.plotX] + "')");
+    if (view.plotX == view.plotY && view.plotX < static_cast<int>(names.size()))
+        contentProblem(in.at("plot_y"), "must differ from plot_x (both are '" + names[view.plotX] + "')");
     view.logColour = in.flag("log_colour", view.logColour);
     view.contourCount = static_cast<int>(in.integer("contour_count", view.contourCount, 0, 100));
     view.gridCells = static_cast<int>(in.integer("grid_cells", view.gridCells, 10, 2000));
@@ -425,9 +466,7 @@ void checkObjective(const Study& study, const std::string& baseDirectory) {
     makeObjective(study, baseDirectory);
 }
 
-}  // namespace
-
-Study fromJson(const std::string& text, const std::string& baseDirectory, bool verifyData) {
+Study readDocument(const std::string& text, const std::string& baseDirectory, bool verifyData) {
     const Json document = parseDocument(text);
     readHeader(document);
     ObjectReader root(document, "",
@@ -455,16 +494,16 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
                 ObjectReader::fail(objective.at(key), "belongs to data-fit mode, not to a formula study");
         study.formula = objective.text("formula", "", true);
         if (study.formula.find_first_not_of(" \t\r\n") == std::string::npos)
-            ObjectReader::fail(objective.at("formula"), "is empty");
+            contentProblem(objective.at("formula"), "is empty");
     } else {
         DataFit fit;
         fit.dataPath = objective.text("data", "", true);
-        if (fit.dataPath.empty()) ObjectReader::fail(objective.at("data"), "is empty; give the data file's path");
+        if (fit.dataPath.empty()) contentProblem(objective.at("data"), "is empty; give the data file's path");
         fit.checksum = lowercase(objective.text("checksum", "", true));
         const bool checksumShape = fit.checksum.size() == 7 + 64 && fit.checksum.rfind("sha256:", 0) == 0 &&
                                    std::all_of(fit.checksum.begin() + 7, fit.checksum.end(),
                                                [](char c) { return std::isxdigit(static_cast<unsigned char>(c)); });
-        if (!checksumShape)
+        if (!checksumShape && !(readingAsTyped() && fit.checksum.empty()))  // empty: no table chosen yet
             ObjectReader::fail(objective.at("checksum"), "must be \"sha256:\" followed by 64 hex digits");
         fit.model = objective.text("model", "", true);
         fit.response = objective.text("response", "", true);
@@ -481,10 +520,10 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
             fit.weights = objective.text("weights", "");
         }
         if (loss == Loss::Weighted && fit.weights.empty())
-            ObjectReader::fail("objective", "the weighted loss needs a \"weights\" or a \"sigma\" column");
+            contentProblem("objective", "the weighted loss needs a \"weights\" or a \"sigma\" column");
         fit.lossScale = objective.number("scale", fit.lossScale);
         if (!(fit.lossScale > 0))
-            ObjectReader::fail(objective.at("scale"), "must be > 0 (got " + numberText(fit.lossScale) + ")");
+            contentProblem(objective.at("scale"), "must be > 0 (got " + numberText(fit.lossScale) + ")");
         fit.separator = objective.text("separator", fit.separator);
         Separator separator;
         if (!parseSeparator(fit.separator, separator) || fit.separator.size() < 3)
@@ -498,18 +537,68 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
     study.variables = readVariables(document);
     readStopping(document, study);
     readView(document, study);
-    if (verifyData || !study.fit) checkObjective(study, baseDirectory);
+    if ((verifyData || !study.fit) && !readingAsTyped()) checkObjective(study, baseDirectory);
     study.methods = readMethods(document, residualForm);
     return study;
 }
 
-Study loadFile(const std::string& path, bool verifyData) {
+std::string readText(const std::string& path) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw StudyError("file", "cannot open '" + path + "' for reading");
     std::ostringstream text;
     text << in.rdbuf();
     if (in.bad()) throw StudyError("file", "cannot read '" + path + "'");
-    return fromJson(text.str(), directoryOf(path), verifyData);
+    return text.str();
+}
+
+}  // namespace
+
+Study fromJson(const std::string& text, const std::string& baseDirectory, bool verifyData) {
+    Reading strict;
+    const ReadingMode mode(strict);
+    return readDocument(text, baseDirectory, verifyData);
+}
+
+Study fromJsonAsTyped(const std::string& text, const std::string& baseDirectory) {
+    Study study;
+    Reading asTyped{true, &study};
+    const ReadingMode mode(asTyped);
+    Study read = readDocument(text, baseDirectory, false);
+    read.unparsed = std::move(study.unparsed);
+    return read;
+}
+
+Study loadFile(const std::string& path, bool verifyData) {
+    return fromJson(readText(path), directoryOf(path), verifyData);
+}
+
+Study loadFileAsTyped(const std::string& path) { return fromJsonAsTyped(readText(path), directoryOf(path)); }
+
+void checkVariables(const Study& study) {
+    const std::vector<Variable>& variables = study.variables;
+    if (variables.size() < 2)
+        throw StudyError("variables", "a study needs at least two variables (the landscape plots two; got " +
+                                          std::to_string(variables.size()) + ")");
+    for (std::size_t k = 0; k < variables.size(); ++k) {
+        const Variable& v = variables[k];
+        const std::string place = item("variables", k);
+        if (!isName(v.name))
+            throw StudyError(place + ".name",
+                             "'" + v.name + "' is not a valid name (letters, digits, _; not starting with a digit)");
+        for (std::size_t j = 0; j < k; ++j)
+            if (variables[j].name == v.name) throw StudyError(place + ".name", "'" + v.name + "' is named twice");
+        for (const auto& [key, value] : {std::pair<std::string, double>{"start", v.start}, {"lower", v.lower},
+                                         {"upper", v.upper}}) {
+            const auto typed = study.unparsed.find(place + "." + key);
+            if (typed != study.unparsed.end())
+                throw StudyError(place + "." + key, "must be a number (got \"" + typed->second + "\")");
+            if (!std::isfinite(value))
+                throw StudyError(place + "." + key, "must be a finite number (got " + numberText(value) + ")");
+        }
+        if (!(v.lower < v.upper))
+            throw StudyError(place + ".lower", "must be below upper (got lower " + numberText(v.lower) + ", upper " +
+                                                   numberText(v.upper) + ")");
+    }
 }
 
 }  // namespace sw::study

@@ -71,6 +71,8 @@ std::string toJson(const Study& study) {
         objective["loss"] = fit.loss;
         if (!fit.weights.empty()) objective[fit.weightsKind == "sigma" ? "sigma" : "weights"] = fit.weights;
         objective["scale"] = fit.lossScale;
+        if (const auto typed = study.unparsed.find("objective.scale"); typed != study.unparsed.end())
+            objective["scale"] = typed->second;
         objective["separator"] = fit.separator;
         objective["drop_incomplete_rows"] = fit.dropIncompleteRows;
     } else {
@@ -79,8 +81,15 @@ std::string toJson(const Study& study) {
     document["objective"] = objective;
 
     Json variables = Json::array();
-    for (const Variable& v : study.variables)
+    for (const Variable& v : study.variables) {
         variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+        // A number typed as text that does not read yet is written as that text (see Study::unparsed).
+        Json& written = variables.back();
+        for (const auto& item : written.items()) {
+            const auto typed = study.unparsed.find("variables[" + std::to_string(variables.size() - 1) + "]." + item.key());
+            if (typed != study.unparsed.end()) item.value() = typed->second;
+        }
+    }
     document["variables"] = variables;
 
     Json methods = Json::array();
