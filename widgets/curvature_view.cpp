@@ -1,5 +1,7 @@
 #include "widgets/curvature_view.h"
 
+#include <QLabel>
+#include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
 
@@ -22,11 +24,20 @@ CurvatureView::CurvatureView(QWidget* parent) : PlotView(parent) {
     conditionRect_->setMarginGroup(QCP::msLeft | QCP::msRight, group);
     conditionRect_->axis(QCPAxis::atLeft)->setScaleType(QCPAxis::stLogarithmic);
     conditionRect_->axis(QCPAxis::atLeft)->setTicker(QSharedPointer<QCPAxisTickerLog>(new QCPAxisTickerLog));
-    conditionRect_->axis(QCPAxis::atLeft)->setLabel(tr("condition number\n|λ|max / |λ|min"));
+    // Axis titles stay short enough to fit along short panels (a rotated title longer than its
+    // panel was cut off and ran into the other panel's); the caption above says the rest.
+    conditionRect_->axis(QCPAxis::atLeft)->setLabel(tr("cond(H)"));
     conditionRect_->axis(QCPAxis::atBottom)->setLabel(tr("iteration"));
     eigenRect_->axis(QCPAxis::atBottom)->setLabel(QString());
     connect(eigenRect_->axis(QCPAxis::atBottom), qOverload<const QCPRange&>(&QCPAxis::rangeChanged),
             conditionRect_->axis(QCPAxis::atBottom), qOverload<const QCPRange&>(&QCPAxis::setRange));
+
+    caption_ = new QLabel(this);
+    caption_->setObjectName(QStringLiteral("curvatureCaption"));
+    caption_->setWordWrap(true);
+    caption_->setContentsMargins(4, 2, 4, 0);
+    caption_->setToolTip(tr("What the two panels show"));
+    layout_->insertWidget(0, caption_);
 
     auto* legendRow = new QCPLayoutGrid;
     plot_->plotLayout()->addElement(2, 0, legendRow);
@@ -51,6 +62,8 @@ QCPGraph* CurvatureView::conditionGraph(int track) const {
     if (track < 0 || track >= static_cast<int>(conditionGraphs_.size())) return nullptr;
     return conditionGraphs_[static_cast<std::size_t>(track)];
 }
+
+QString CurvatureView::caption() const { return caption_->text(); }
 
 QPointF CurvatureView::highlightPosition() const {
     if (!highlight_ || !highlight_->visible() || highlight_->data()->isEmpty()) return QPointF(std::nan(""), std::nan(""));
@@ -98,7 +111,10 @@ void CurvatureView::rebuild() {
         c_ = std::pow(10.0, std::floor(std::log10(std::max(smallest, largest * 1e-8))));
     }
     ey->setTicker(symmetricLogTicker(c_));
-    ey->setLabel(tr("Hessian eigenvalues λ\n(symmetric log scale, linear for |λ| < %1)").arg(formatNumber(c_)));
+    ey->setLabel(tr("λ"));
+    caption_->setText(tr("Top: the Hessian's eigenvalues λ at each iteration, on a symmetric log scale (linear for "
+                         "|λ| < %1). Bottom: the condition number cond(H) = |λ|max / |λ|min.")
+                          .arg(formatNumber(c_)));
 
     // Shaded band for negative curvature.
     auto* band = new QCPItemRect(plot_);
@@ -146,10 +162,10 @@ void CurvatureView::rebuild() {
             std::vector<QCPGraph*> graphs;
             for (std::size_t k = 0; k < indices.size(); ++k) {
                 auto* graph = plot_->addGraph(ex, ey);
-                QPen pen(track.colour, 1.5, k == 0 ? Qt::SolidLine : Qt::DashLine);
+                QPen pen(trackColour(track), 1.5, k == 0 ? Qt::SolidLine : Qt::DashLine);
                 scaleForScreen(pen);
                 graph->setPen(pen);
-                graph->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
+                graph->setScatterStyle(iterateStyle(track.marker, trackColour(track), 5));
                 graph->setSelectable(QCP::stNone);
                 if (k == 0)
                     graph->setName(n > kMostEigenvaluesDrawn ? tr("%1 (λmin solid, λmax dashed)").arg(track.label)
@@ -162,15 +178,15 @@ void CurvatureView::rebuild() {
             negative->setLineStyle(QCPGraph::lsNone);
             QPen outline(negativeBandColour().darker(140), 1.6);
             scaleForScreen(outline);
-            negative->setScatterStyle(QCPScatterStyle(scatterShape(track.marker), outline, QBrush(track.colour), 9));
+            negative->setScatterStyle(QCPScatterStyle(scatterShape(track.marker), outline, QBrush(trackColour(track)), 9));
             negative->removeFromLegend();
             negative->setSelectable(QCP::stNone);
 
             auto* condition = plot_->addGraph(cx, cy);
-            QPen cpen(track.colour, 1.5);
+            QPen cpen(trackColour(track), 1.5);
             scaleForScreen(cpen);
             condition->setPen(cpen);
-            condition->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
+            condition->setScatterStyle(iterateStyle(track.marker, trackColour(track), 5));
             condition->removeFromLegend();
             condition->setSelectable(QCP::stNone);
 

@@ -5,6 +5,8 @@
 
 #include "widgets/plot_style.h"
 
+class QLabel;
+
 namespace sw::widgets {
 
 class CurvatureView : public PlotView {
@@ -22,6 +24,7 @@ public:
     std::vector<QCPGraph*> eigenvalueGraphs(int track) const;
     QCPGraph* conditionGraph(int track) const;
     QPointF highlightPosition() const;  // in plot coordinates of the eigenvalue panel
+    QString caption() const;
 
 protected:
     void rebuild() override;
@@ -30,6 +33,7 @@ protected:
 private:
     void updateHighlight();
     double c_ = 1.0;
+    QLabel* caption_ = nullptr;
     QCPAxisRect* eigenRect_ = nullptr;
     QCPAxisRect* conditionRect_ = nullptr;
     std::vector<std::vector<QCPGraph*>> eigenGraphs_;

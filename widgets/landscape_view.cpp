@@ -61,7 +61,16 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     colourScale_->setBarWidth(12);
     colourScale_->setRangeDrag(false);
     colourScale_->setRangeZoom(false);
-    plot_->plotLayout()->addElement(0, 1, colourScale_);
+    // The plot and its colour scale share the top row; the legend has the whole width under
+    // them (so its width never depends on the colour scale's, which is unknown before the
+    // first layout and left the legend cut short after a relaunch).
+    QCPAxisRect* rect = plot_->axisRect();
+    plot_->plotLayout()->take(rect);
+    plot_->plotLayout()->simplify();
+    auto* top = new QCPLayoutGrid;
+    plot_->plotLayout()->addElement(0, 0, top);
+    top->addElement(0, 0, rect);
+    top->addElement(0, 1, colourScale_);
     colourMap_->setColorScale(colourScale_);
     colourScale_->setGradient(fieldGradient());  // the scale pushes its gradient onto the map
     marginGroup_ = new QCPMarginGroup(plot_);
@@ -76,13 +85,13 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
-    enableLegendReflow(3, [this] { return colourScale_->visible() ? colourScale_->outerRect().width() : 0; });
+    enableLegendReflow(3);
     plot_->plotLayout()->setRowStretchFactor(1, 0.001);
 
     startCurve_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
     startCurve_->setLayer(QStringLiteral("marks"));
     startCurve_->setLineStyle(QCPCurve::lsNone);
-    startCurve_->setName(QStringLiteral("start (drag to move)"));
+    startCurve_->setName(tr("start (drag to move)"));
     highlightCurve_ = new QCPCurve(plot_->xAxis, plot_->yAxis);
     highlightCurve_->setLayer(QStringLiteral("marks"));
     highlightCurve_->setLineStyle(QCPCurve::lsNone);
@@ -94,7 +103,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     readout_->setObjectName(QStringLiteral("landscapeReadout"));
     readout_->setTextInteractionFlags(Qt::TextSelectableByMouse);
     readout_->setToolTip(tr("Values under the cursor: position, f, gradient norm and Hessian eigenvalues"));
-    readout_->setText(tr("Move the cursor over the landscape to read f, |∇f| and the Hessian eigenvalues."));
+    readout_->setText(readoutHint());
     readout_->setWordWrap(true);
     logBox_ = new QCheckBox(tr("Log colour"), this);
     logBox_->setToolTip(tr("Colour by log10(f − f_min) so both the valley floor and the walls show"));
@@ -206,8 +215,31 @@ QPointF LandscapeView::highlightPosition() const {
     return QPointF(it->key, it->value);
 }
 
+void LandscapeView::clear() {
+    field_.reset();
+    snapshot_.reset();
+    selection_ = {};
+    start_ = Vector();
+    hasStart_ = false;
+    hasHome_ = false;
+    dragging_ = pressed_ = false;
+    readout_->setText(readoutHint());
+    plot_->xAxis->setLabel(QString());
+    plot_->yAxis->setLabel(QString());
+    rebuildField();
+    rebuildPaths();
+    updateStartMarker();
+    updateHighlight();
+    queueReplot();
+}
+
+QString LandscapeView::readoutHint() const {
+    return tr("Move the cursor over the landscape to read f, |∇f| and the Hessian eigenvalues.");
+}
+
 void LandscapeView::rebuild() {
     applyPlotStyle(plot_);
+    startCurve_->setName(exporting() ? tr("start") : tr("start (drag to move)"));
     if (snapshot_ && snapshot_->plotX >= 0 && snapshot_->plotX < static_cast<int>(snapshot_->variableNames.size()))
         plot_->xAxis->setLabel(snapshot_->variableNames[static_cast<std::size_t>(snapshot_->plotX)]);
     if (snapshot_ && snapshot_->plotY >= 0 && snapshot_->plotY < static_cast<int>(snapshot_->variableNames.size()))

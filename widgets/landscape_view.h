@@ -26,6 +26,8 @@ public:
     void setHomeBox(const analyze::Box& box);
     analyze::Box viewBox() const;
     void resetView();
+    // Forgets everything shown (field, runs, start, home box, readout): a new study starts clean.
+    void clear();
     // Colour by log10(f - fmin + offset) instead of f (also a check box under the plot).
     void setLogColour(bool on);
     bool logColour() const;
@@ -56,6 +58,7 @@ protected:
 
 private:
     void rebuildField();
+    QString readoutHint() const;
     void rebuildPaths();
     void updateStartMarker();
     void updateHighlight();

@@ -27,11 +27,16 @@ LocalModelView::LocalModelView(QWidget* parent) : PlotView(parent) {
     verdict_->setContentsMargins(4, 0, 4, 2);
     verdict_->setToolTip(tr("The shape of the quadratic model at the selected iterate, from the Hessian's eigenvalues"));
     layout_->addWidget(verdict_);
+    // The legend sits in its own row under the plot, so it never covers the iterate or its step.
+    auto* legendRow = new QCPLayoutGrid;
+    plot_->plotLayout()->addElement(1, 0, legendRow);
+    plot_->plotLayout()->setRowStretchFactor(1, 0.001);
+    legendRow->setMargins(QMargins(4, 0, 4, 4));
+    legendRow->addElement(0, 0, plot_->legend);
+    plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setVisible(true);
-    plot_->axisRect()->insetLayout()->setInsetAlignment(0, Qt::AlignTop | Qt::AlignRight);
-    plot_->setToolTip(tr("The quadratic model (dashed) over the true contours at the selected iterate; "
-                         "click the legend to move it to another corner"));
-    connect(plot_, &QCustomPlot::legendClick, this, [this] { moveLegendToNextCorner(); });
+    enableLegendReflow(2, {}, 90);  // two columns (names elided, full name as a tooltip) keep the plot tall
+    plot_->setToolTip(tr("The quadratic model (dashed) over the true contours at the selected iterate"));
     // Equal scales on both axes, so eigenvector axes look perpendicular and the trust
     // region looks round: adjust the ranges once the axis rect's size is known.
     connect(plot_, &QCustomPlot::afterLayout, this, [this] {
@@ -50,19 +55,6 @@ LocalModelView::LocalModelView(QWidget* parent) : PlotView(parent) {
 }
 
 QString LocalModelView::verdict() const { return verdict_->text(); }
-
-Qt::Alignment LocalModelView::legendCorner() const { return plot_->axisRect()->insetLayout()->insetAlignment(0); }
-
-void LocalModelView::moveLegendToNextCorner() {
-    static const Qt::Alignment corners[] = {Qt::AlignTop | Qt::AlignRight, Qt::AlignBottom | Qt::AlignRight,
-                                            Qt::AlignBottom | Qt::AlignLeft, Qt::AlignTop | Qt::AlignLeft};
-    const Qt::Alignment now = legendCorner();
-    int next = 0;
-    for (int i = 0; i < 4; ++i)
-        if (corners[i] == now) next = (i + 1) % 4;
-    plot_->axisRect()->insetLayout()->setInsetAlignment(0, corners[next]);
-    plot_->replot(QCustomPlot::rpQueuedReplot);
-}
 
 void LocalModelView::setHalfWidth(double halfWidth) {
     halfWidth_ = std::isfinite(halfWidth) && halfWidth > 0 ? halfWidth : 0;
@@ -114,7 +106,9 @@ void LocalModelView::rebuild() {
     h2 << model.hessian(px, px), model.hessian(px, py), model.hessian(py, px), model.hessian(py, py);
     const Eigen::Vector2d g2(model.gradient[px], model.gradient[py]);
 
-    // Window: wide enough for the step, the trust region and (within reason) the Newton point.
+    // Window: wide enough for the step, the trust region and (within reason) the Newton point,
+    // and never narrower than the model's own curvature scale (curvatureReach): near a converged
+    // iterate the step and the Newton point vanish, and a window that small shows only round-off.
     double half = halfWidth_;
     if (!(half > 0)) {
         double local = 0;
@@ -127,9 +121,10 @@ void LocalModelView::rebuild() {
             half = local > 0 ? std::max(local, std::min(newtonReach, 2.5 * local)) : newtonReach;
         else
             half = local;
-        if (!(half > 0) || !std::isfinite(half)) half = 0.1 * std::max(1.0, std::hypot(x[px], x[py]));
-        half = std::max(half, 1e-9 * std::max(1.0, std::hypot(x[px], x[py])));
+        const double curvature = curvatureReach(h2, g2, model.value, *track.run, x[px], x[py]);
+        if (!(half > 0) || !std::isfinite(half) || half < curvature) half = curvature;
     }
+    shownHalfWidth_ = half;
     const analyze::Box box{x[px] - half, x[px] + half, x[py] - half, x[py] + half};
 
     // True contours from an 80 x 80 field (a few milliseconds; timed for the brief's 10 ms budget).
@@ -166,7 +161,7 @@ void LocalModelView::rebuild() {
     trueInk.setAlpha(120);
     QPen truePen(trueInk, devicePixelRatioF());  // cosmetic: the fast path for many points
     truePen.setCosmetic(true);
-    QPen modelPen(track.colour, 1.6, Qt::DashLine);
+    QPen modelPen(trackColour(track), 1.6, Qt::DashLine);
     scaleForScreen(modelPen);
     auto drawSets = [&](const std::vector<analyze::ContourSet>& sets, const QPen& pen, const QString& legendName) {
         int count = 0;
@@ -211,12 +206,20 @@ void LocalModelView::rebuild() {
             axis->end->setCoords(x[px] + reach * v[0], x[py] + reach * v[1]);
             axis->setPen(pen);
             axis->setSelectable(false);
+            // The label starts where the axis line ends and extends away from the iterate, on a
+            // backing of the plot's colour, so neither this line nor the plot's axes run through it.
             auto* label = new QCPItemText(plot_);
             label->position->setCoords(x[px] + reach * v[0], x[py] + reach * v[1]);
-            label->setPositionAlignment(Qt::AlignLeft | Qt::AlignBottom);
+            label->setPositionAlignment((v[0] >= 0 ? Qt::AlignLeft : Qt::AlignRight) |
+                                        (v[1] >= 0 ? Qt::AlignBottom : Qt::AlignTop));
             label->setText(QStringLiteral("λ%1 = %2").arg(k == 0 ? QStringLiteral("₁") : QStringLiteral("₂"),
                                                           formatNumber(lambda, 3)));
             label->setColor(colour);
+            QColor backing = pal.color(QPalette::Base);
+            backing.setAlpha(215);
+            label->setBrush(backing);
+            label->setPadding(QMargins(3, 1, 3, 1));
+            label->setClipToAxisRect(true);
             label->setSelectable(false);
             ++eigenAxes_;
         }
@@ -244,7 +247,7 @@ void LocalModelView::rebuild() {
         auto* arrow = new QCPItemLine(plot_);
         arrow->start->setCoords(x[px], x[py]);
         arrow->end->setCoords(x[px] + record->step[px], x[py] + record->step[py]);
-        QPen pen(track.colour, 2.2);
+        QPen pen(trackColour(track), 2.2);
         scaleForScreen(pen);
         arrow->setPen(pen);
         arrow->setHead(QCPLineEnding(QCPLineEnding::esSpikeArrow, 10, 12));
@@ -258,7 +261,7 @@ void LocalModelView::rebuild() {
     // The iterate itself.
     auto* here = new QCPCurve(plot_->xAxis, plot_->yAxis);
     here->setLineStyle(QCPCurve::lsNone);
-    here->setScatterStyle(iterateStyle(track.marker, track.colour, 10));
+    here->setScatterStyle(iterateStyle(track.marker, trackColour(track), 10));
     here->setData(QVector<double>{x[px]}, QVector<double>{x[py]});
     here->setName(tr("%1, iterate %2").arg(track.label).arg(record->iteration));
 
@@ -292,6 +295,50 @@ void LocalModelView::rebuild() {
 void LocalModelView::settingRangeFor(const analyze::Box& box) {
     plot_->xAxis->setRange(box.xMin, box.xMax);
     plot_->yAxis->setRange(box.yMin, box.yMax);
+    // Enough significant digits that neighbouring ticks differ: a window of width 1e-5 around
+    // 0.99 needs seven, where the default six printed "0.99203" five times.
+    for (QCPAxis* axis : {plot_->xAxis, plot_->yAxis}) {
+        const QCPRange range = axis->range();
+        const double magnitude = std::max(std::abs(range.lower), std::abs(range.upper));
+        const double step = range.size() / 5;
+        int digits = 3;
+        if (magnitude > 0 && step > 0) digits = static_cast<int>(std::ceil(std::log10(magnitude / step))) + 2;
+        axis->setNumberFormat(QStringLiteral("g"));
+        axis->setNumberPrecision(std::clamp(digits, 3, 15));
+    }
+}
+
+// Half-width at which the plotted block of the model changes f by a clearly resolvable amount
+// Δ: 0.5 λ h² = Δ along the flatter curved direction (|g| h = Δ when there is no curvature).
+// Δ is a ten-thousandth of what the track's run gained in f, and never below a millionth of |f|
+// (plus one), so the true contours are far above f's rounding error.
+double LocalModelView::curvatureReach(const Eigen::Matrix2d& h2, const Eigen::Vector2d& g2, double f,
+                                      const solve::Run& run, double x, double y) {
+    double gained = 0;
+    if (!run.trace.empty()) {
+        double lowest = run.trace.front().value;
+        for (const auto& r : run.trace)
+            if (std::isfinite(r.value)) lowest = std::min(lowest, r.value);
+        gained = run.trace.front().value - lowest;
+    }
+    const double scale = std::isfinite(f) ? std::abs(f) : 0.0;
+    double delta = std::max(1e-4 * (std::isfinite(gained) ? gained : 0.0), 1e-6 * (1 + scale));
+    double reach = 0;
+    if (h2.allFinite()) {
+        const Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> eigen(h2, Eigen::EigenvaluesOnly);
+        const double largest = eigen.eigenvalues().cwiseAbs().maxCoeff();
+        double flattest = std::numeric_limits<double>::infinity();
+        for (int k = 0; k < 2; ++k) {
+            const double a = std::abs(eigen.eigenvalues()[k]);
+            if (a > 1e-8 * largest && a > 0) flattest = std::min(flattest, a);
+        }
+        if (std::isfinite(flattest)) reach = std::sqrt(2 * delta / flattest);
+    }
+    if (!(reach > 0) && g2.allFinite() && g2.norm() > 0) reach = delta / g2.norm();
+    const double size = std::max(1.0, std::hypot(x, y));
+    if (!(reach > 0) || !std::isfinite(reach)) reach = 0.1 * size;
+    // Not so small that the coordinates themselves run out of digits, nor absurdly large.
+    return std::clamp(reach, 1e-7 * size, 1e6 * size);
 }
 
 }  // namespace sw::widgets

@@ -28,10 +28,11 @@ public:
     int eigenAxisCount() const { return eigenAxes_; }
     // Time of the last true-field sampling, in milliseconds (the brief asks < 10 ms).
     double lastSampleMilliseconds() const { return sampleMs_; }
-    // The legend sits in a corner of the plot; clicking it moves it to the next corner
-    // (clockwise from top right), so it never has to hide what the user is looking at.
-    void moveLegendToNextCorner();
-    Qt::Alignment legendCorner() const;
+    // Half-width of the window drawn around the selected iterate (before equal axis scaling).
+    double shownHalfWidth() const { return shownHalfWidth_; }
+    // The window's half-width from the model's curvature (see local_model_view.cpp).
+    static double curvatureReach(const Eigen::Matrix2d& h2, const Eigen::Vector2d& g2, double f, const solve::Run& run,
+                                 double x, double y);
 
 protected:
     void rebuild() override;
@@ -39,6 +40,7 @@ protected:
 private:
     void settingRangeFor(const analyze::Box& box);
     double halfWidth_ = 0;
+    double shownHalfWidth_ = 0;
     QLabel* verdict_ = nullptr;
     QCPCurve* newton_ = nullptr;
     QCPCurve* trust_ = nullptr;

@@ -82,6 +82,74 @@ QString endPointLabel(solve::PointKind kind) {
 
 bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }
 
+namespace {
+double relativeLuminance(const QColor& c) {
+    auto channel = [](double v) { return v <= 0.04045 ? v / 12.92 : std::pow((v + 0.055) / 1.055, 2.4); };
+    return 0.2126 * channel(c.redF()) + 0.7152 * channel(c.greenF()) + 0.0722 * channel(c.blueF());
+}
+}  // namespace
+
+double contrastRatio(const QColor& a, const QColor& b) {
+    const double la = relativeLuminance(a), lb = relativeLuminance(b);
+    return (std::max(la, lb) + 0.05) / (std::min(la, lb) + 0.05);
+}
+
+QColor readableColour(const QColor& colour, const QColor& background) {
+    constexpr double kWanted = 3.0;  // WCAG's minimum for graphical objects
+    if (contrastRatio(colour, background) >= kWanted) return colour;
+    // Mix toward white on a dark background, toward black on a light one, in small steps.
+    const QColor toward = relativeLuminance(background) < 0.18 ? QColor(Qt::white) : QColor(Qt::black);
+    QColor mixed = colour;
+    for (int k = 1; k <= 20 && contrastRatio(mixed, background) < kWanted; ++k) {
+        const double t = k / 20.0;
+        mixed = QColor::fromRgbF(static_cast<float>(colour.redF() + t * (toward.redF() - colour.redF())),
+                                 static_cast<float>(colour.greenF() + t * (toward.greenF() - colour.greenF())),
+                                 static_cast<float>(colour.blueF() + t * (toward.blueF() - colour.blueF())));
+    }
+    mixed.setAlpha(colour.alpha());
+    return mixed;
+}
+
+QPalette figurePalette() {
+    QPalette p(QColor(0xf0, 0xf0, 0xf0));  // a neutral light palette derived from a light button colour
+    p.setColor(QPalette::Window, Qt::white);
+    p.setColor(QPalette::Base, Qt::white);
+    p.setColor(QPalette::WindowText, QColor(0x20, 0x20, 0x20));
+    p.setColor(QPalette::Text, QColor(0x20, 0x20, 0x20));
+    p.setColor(QPalette::Highlight, QColor(0x1f, 0x5f, 0xbf));
+    return p;
+}
+
+void raiseFontSizes(QCustomPlot* plot, double points) {
+    auto raised = [points](QFont font) {
+        if (font.pointSizeF() > 0) {
+            if (font.pointSizeF() < points) font.setPointSizeF(points);
+        } else {
+            font.setPointSizeF(points);  // a pixel-sized font: give it a point size instead
+        }
+        return font;
+    };
+    std::vector<QCPAxis*> axes;
+    for (QCPAxisRect* rect : plot->axisRects())
+        for (QCPAxis* axis : rect->axes()) axes.push_back(axis);
+    const QList<QCPLayoutElement*> elements = plot->plotLayout()->elements(true);
+    for (QCPLayoutElement* element : elements) {
+        if (auto* scale = qobject_cast<QCPColorScale*>(element)) axes.push_back(scale->axis());
+        if (auto* text = qobject_cast<QCPTextElement*>(element)) text->setFont(raised(text->font()));
+        if (auto* legend = qobject_cast<QCPLegend*>(element)) {
+            legend->setFont(raised(legend->font()));
+            for (int k = 0; k < legend->itemCount(); ++k)
+                if (QCPAbstractLegendItem* item = legend->item(k)) item->setFont(raised(item->font()));
+        }
+    }
+    for (QCPAxis* axis : axes) {
+        axis->setLabelFont(raised(axis->labelFont()));
+        axis->setTickLabelFont(raised(axis->tickLabelFont()));
+    }
+    for (int i = 0; i < plot->itemCount(); ++i)
+        if (auto* text = qobject_cast<QCPItemText*>(plot->item(i))) text->setFont(raised(text->font()));
+}
+
 void styleAxisRect(QCPAxisRect* rect, const QPalette& palette) {
     const QColor text = palette.color(QPalette::WindowText);
     QColor grid = text;
@@ -110,6 +178,23 @@ void applyPlotStyle(QCustomPlot* plot) {
     const QPalette palette = plot->palette();
     plot->setBackground(QBrush(palette.color(QPalette::Window)));
     for (QCPAxisRect* rect : plot->axisRects()) styleAxisRect(rect, palette);
+    // A colour scale keeps its axis in an axis rect of its own that axisRects() does not list:
+    // without this its title and ticks stay black on a dark window.
+    for (QCPLayoutElement* element : plot->plotLayout()->elements(true))
+        if (auto* scale = qobject_cast<QCPColorScale*>(element)) {
+            const QColor text = palette.color(QPalette::WindowText);
+            QCPAxis* axis = scale->axis();
+            axis->setBasePen(QPen(text, 1));
+            axis->setTickPen(QPen(text, 1));
+            axis->setSubTickPen(QPen(text, 1));
+            axis->setLabelColor(text);
+            axis->setTickLabelColor(text);
+            QFont labelFont = QApplication::font();
+            QFont tickFont = labelFont;
+            tickFont.setPointSizeF(std::max(7.0, labelFont.pointSizeF() * 0.9));
+            axis->setLabelFont(labelFont);
+            axis->setTickLabelFont(tickFont);
+        }
     const QColor text = palette.color(QPalette::WindowText);
     QColor legendFill = palette.color(QPalette::Base);
     legendFill.setAlpha(215);
@@ -300,7 +385,7 @@ QSize ElidedLegendItem::minimumOuterSizeHint() const {
     return size;
 }
 
-void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns) {
+void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns, int elidedColumnText) {
     QCPLegend* legend = plot->legend;
     // itemCount() counts the cells of the legend's grid; a cell past the last entry is empty.
     std::vector<QCPPlottableLegendItem*> entries;
@@ -333,6 +418,9 @@ void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns) {
     }
     const int room = availableWidth - legend->margins().left() - legend->margins().right();
     int columns = 1;
+    auto decorationOf = [&](ElidedLegendItem* item) {
+        return legend->iconSize().width() + legend->iconTextPadding() + item->margins().left() + item->margins().right();
+    };
     for (int c = std::min(maxColumns, n); c >= 1; --c) {
         std::vector<int> columnWidth(static_cast<std::size_t>(c), 0);
         for (int i = 0; i < n; ++i)
@@ -340,17 +428,22 @@ void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns) {
                 std::max(columnWidth[static_cast<std::size_t>(i % c)], widths[static_cast<std::size_t>(i)]);
         int total = (c - 1) * legend->columnSpacing();
         for (int w : columnWidth) total += w;
-        if (total <= room || c == 1) {
+        if (total <= room) {
             columns = c;
-            if (c == 1 && total > room) {
-                // One column is still too wide: elide each name to what is left beside its icon.
-                for (ElidedLegendItem* item : items) {
-                    const int decoration = legend->iconSize().width() + legend->iconTextPadding() +
-                                           item->margins().left() + item->margins().right();
-                    item->setTextWidthLimit(std::max(24, room - decoration));
-                }
-            }
             break;
+        }
+        // Too wide side by side: a compact legend keeps the columns and elides the names, as
+        // long as each column keeps enough room to read them.
+        const int perColumn = (room - (c - 1) * legend->columnSpacing()) / c;
+        if (c > 1 && elidedColumnText > 0 && perColumn - decorationOf(items.front()) >= elidedColumnText) {
+            columns = c;
+            for (ElidedLegendItem* item : items) item->setTextWidthLimit(perColumn - decorationOf(item));
+            break;
+        }
+        if (c == 1) {
+            // One column is still too wide: elide each name to what is left beside its icon.
+            for (ElidedLegendItem* item : items) item->setTextWidthLimit(std::max(24, room - decorationOf(item)));
+            columns = 1;
         }
     }
     if (legend->wrap() != columns || plain) {
@@ -421,13 +514,57 @@ void PlotView::changeEvent(QEvent* event) {
 
 void PlotView::queueReplot() { plot_->replot(QCustomPlot::rpQueuedReplot); }
 
-void PlotView::enableLegendReflow(int maxColumns, std::function<int()> besideLegend) {
-    connect(plot_, &QCustomPlot::beforeReplot, this, [this, maxColumns, besideLegend] {
+QColor PlotView::trackColour(const RunTrack& track) const {
+    return readableColour(track.colour, plot_->palette().color(QPalette::Base));
+}
+
+bool PlotView::exportFigure(const QString& path, int w, int h, const FigureLook& look, QString* error) {
+    const bool ownPalette = testAttribute(Qt::WA_SetPalette);
+    const QPalette before = palette();
+    const bool repaint = look.light && isDarkPalette(before);
+    exporting_ = true;
+    if (repaint)
+        setPalette(figurePalette());  // the palette change rebuilds the view in the figure's colours
+    else
+        rebuild();
+    QCPTextElement* title = nullptr;
+    if (!look.title.isEmpty()) {
+        plot_->plotLayout()->insertRow(0);
+        QFont font = QApplication::font();
+        font.setBold(true);
+        title = new QCPTextElement(plot_, look.title, font);
+        title->setTextColor(plot_->palette().color(QPalette::WindowText));
+        title->setMargins(QMargins(6, 6, 6, 2));
+        plot_->plotLayout()->addElement(0, 0, title);
+        plot_->plotLayout()->setRowStretchFactor(0, 0.001);
+    }
+    raiseFontSizes(plot_, look.minimumPointSize);
+    if (legendReflow_) legendReflow_(w);
+    const bool ok = exportPlot(plot_, path, w, h, error);
+    if (title) {
+        plot_->plotLayout()->remove(title);
+        plot_->plotLayout()->simplify();
+    }
+    exporting_ = false;
+    if (repaint)
+        setPalette(ownPalette ? before : QPalette());  // back to the window's colours (and a rebuild)
+    else
+        rebuild();
+    if (legendReflow_) legendReflow_(plot_->viewport().width());
+    queueReplot();
+    return ok;
+}
+
+void PlotView::enableLegendReflow(int maxColumns, std::function<int()> besideLegend, int elidedColumnText) {
+    legendReflow_ = [this, maxColumns, besideLegend, elidedColumnText](int width) {
         if (!plot_->legend->visible()) return;
-        // The viewport is already the new size when a resize replots (the last layout's
-        // rects are not); 8 px for the legend row's own margins.
+        // 8 px for the legend row's own margins.
         const int beside = besideLegend ? besideLegend() : 0;
-        fitLegendToWidth(plot_, plot_->viewport().width() - beside - 8, maxColumns);
+        fitLegendToWidth(plot_, width - beside - 8, maxColumns, elidedColumnText);
+    };
+    // The viewport is already the new size when a resize replots (the last layout's rects are not).
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this] {
+        if (!exporting_) legendReflow_(plot_->viewport().width());
     });
 }
 

@@ -41,6 +41,23 @@ void applyPlotStyle(QCustomPlot* plot);
 void styleAxisRect(QCPAxisRect* rect, const QPalette& palette);
 // True when the palette's window colour is dark.
 bool isDarkPalette(const QPalette& palette);
+// Contrast ratio of two colours (WCAG 2.x: (L1 + 0.05) / (L2 + 0.05) of relative luminances).
+double contrastRatio(const QColor& a, const QColor& b);
+// A track's colour as drawn on `background`: a colour too dark to read there (the lineup's deep
+// blue on a dark plot) is lightened, keeping its hue, until it reaches 3:1; otherwise unchanged.
+QColor readableColour(const QColor& colour, const QColor& background);
+
+// How a figure looks when exported (PlotView::exportFigure).
+struct FigureLook {
+    bool light = true;              // a light, print-ready palette whatever the window's appearance
+    QString title;                  // a title line above the plot ("" for none)
+    double minimumPointSize = 10;   // no text smaller than this
+};
+// The light palette exported figures use.
+QPalette figurePalette();
+// Raises every font of the plot (axes, tick labels, legend, titles, text items) to at least
+// `points` points.
+void raiseFontSizes(QCustomPlot* plot, double points);
 
 // The landscape's colour gradient: sequential, lightness rising monotonically from a deep
 // blue-violet (low f) to a pale straw (high f); stops chosen for this project.
@@ -105,7 +122,10 @@ private:
 // Lays the legend of `plot` out in as many columns (up to maxColumns) as fit in
 // `availableWidth` pixels, filled row by row; when even one column is too narrow, names are
 // elided. Plain plottable entries are replaced by ElidedLegendItem on the way.
-void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns = 3);
+// elidedColumnText > 0: when the names do not fit side by side, keep several columns anyway
+// (eliding the names) as long as each column still has that many pixels for its text; a
+// compact legend for small panels (the local model's).
+void fitLegendToWidth(QCustomPlot* plot, int availableWidth, int maxColumns = 3, int elidedColumnText = 0);
 
 // Common base of the plot views: holds the snapshot and the selection, owns the plot,
 // and re-applies the palette when the theme changes. Replots are queued.
@@ -121,6 +141,12 @@ public:
     Selection selection() const { return selection_; }
     // The selected record, or nullptr when the selection does not name one.
     const solve::IterationRecord* selectedRecord() const;
+    // Writes the plot to `path` (PNG, SVG or PDF by suffix) at w x h as a figure: by default
+    // light and print-ready whatever the window's appearance, text of at least 10 pt, an
+    // optional title line, no interaction hints. The view on screen is left as it was.
+    bool exportFigure(const QString& path, int w, int h, const FigureLook& look, QString* error);
+    // True while exportFigure draws (views leave out hints such as "drag to move").
+    bool exporting() const { return exporting_; }
 
 signals:
     // The user picked an iterate on this plot (click near its marker).
@@ -134,10 +160,12 @@ protected:
     void changeEvent(QEvent* event) override;
     bool eventFilter(QObject* watched, QEvent* event) override;
     void queueReplot();
+    // The colour a track is drawn in on this view's plot background (see readableColour).
+    QColor trackColour(const RunTrack& track) const;
     // For views whose legend sits in its own row under the plot: before each replot the
     // legend takes as many columns as the width allows, and elides names when one is too many.
     // besideLegend: pixels of the plot's width not under the legend (e.g. a colour scale).
-    void enableLegendReflow(int maxColumns = 3, std::function<int()> besideLegend = {});
+    void enableLegendReflow(int maxColumns = 3, std::function<int()> besideLegend = {}, int elidedColumnText = 0);
     // Before each replot, every left axis asks for about one tick per `pixelsPerTick` of its
     // rect's height (2..6), so a short panel does not pile its tick labels on each other.
     void enableTickThinning(int pixelsPerTick = 34);
@@ -160,6 +188,8 @@ protected:
 
 private:
     QPointF clickPressPixel_;
+    bool exporting_ = false;
+    std::function<void(int width)> legendReflow_;  // set by enableLegendReflow
 };
 
 }  // namespace sw::widgets

@@ -157,10 +157,10 @@ void ProgressView::rebuild() {
             auto* gap = plot_->addGraph(gx, gy);
             auto* gradient = plot_->addGraph(dx, dy);
             for (QCPGraph* graph : {gap, gradient}) {
-                QPen pen(track.colour, 1.6);
+                QPen pen(trackColour(track), 1.6);
                 scaleForScreen(pen);
                 graph->setPen(pen);
-                graph->setScatterStyle(iterateStyle(track.marker, track.colour, 5));
+                graph->setScatterStyle(iterateStyle(track.marker, trackColour(track), 5));
                 graph->setSelectable(QCP::stNone);
             }
             gap->setName(track.label);

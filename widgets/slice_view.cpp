@@ -1,5 +1,6 @@
 #include "widgets/slice_view.h"
 
+#include <QCheckBox>
 #include <QComboBox>
 #include <QHBoxLayout>
 #include <QLabel>
@@ -17,9 +18,16 @@ QColor modelColour() { return QColor(0x2e, 0x9e, 0x7a); }
 
 SliceView::SliceView(QWidget* parent) : PlotView(parent) {
     setObjectName(QStringLiteral("sliceView"));
-    plot_->legend->setVisible(true);
     plot_->setInteractions(QCP::iRangeDrag | QCP::iRangeZoom);
-    plot_->axisRect()->insetLayout()->setInsetAlignment(0, Qt::AlignTop | Qt::AlignRight);
+    // The legend has its own row under the plot: inside it hid the accepted step.
+    auto* legendRow = new QCPLayoutGrid;
+    plot_->plotLayout()->addElement(1, 0, legendRow);
+    plot_->plotLayout()->setRowStretchFactor(1, 0.001);
+    legendRow->setMargins(QMargins(4, 0, 4, 4));
+    legendRow->addElement(0, 0, plot_->legend);
+    plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
+    plot_->legend->setVisible(true);
+    enableLegendReflow(3);
 
     auto* row = new QHBoxLayout;
     row->setContentsMargins(4, 0, 4, 2);
@@ -33,8 +41,16 @@ SliceView::SliceView(QWidget* parent) : PlotView(parent) {
     caption_->setObjectName(QStringLiteral("sliceCaption"));
     caption_->setWordWrap(true);
     caption_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    logScale_ = new QCheckBox(tr("log α"), this);
+    logScale_->setToolTip(tr("Step lengths on a log scale: line-search trials often span several decades "
+                             "(on by itself when they span more than two)"));
+    connect(logScale_, &QCheckBox::toggled, this, [this](bool on) {
+        logScaleChosen_ = true;
+        if (on != logScale_->property("applied").toBool()) rebuild();
+    });
     row->addWidget(label);
     row->addWidget(directionChoice_);
+    row->addWidget(logScale_);
     row->addWidget(caption_, 1);
     layout_->addLayout(row);
     connect(directionChoice_, qOverload<int>(&QComboBox::activated), this,
@@ -96,6 +112,7 @@ void SliceView::rebuild() {
     Vector d;
     double acceptedT = std::nan("");
     double tMax = 1;
+    double tMin = std::numeric_limits<double>::infinity();  // smallest positive trial or step
     QString what;
     const bool hasStep = record->step.size() == n && record->step.allFinite() && record->step.norm() > 0;
     const int eigenIndex = direction_ >= 0 && direction_ < n ? direction_ : -1;
@@ -105,8 +122,12 @@ void SliceView::rebuild() {
         d = hasAlpha ? Vector(record->step / record->stepLength) : record->step;
         acceptedT = hasAlpha ? record->stepLength : 1.0;
         tMax = acceptedT;
+        tMin = acceptedT;
         for (const auto& trial : record->trials)
-            if (std::isfinite(trial.alpha)) tMax = std::max(tMax, trial.alpha);
+            if (std::isfinite(trial.alpha) && trial.alpha > 0) {
+                tMax = std::max(tMax, trial.alpha);
+                tMin = std::min(tMin, trial.alpha);
+            }
         what = tr("search direction d of the %1 step").arg(QString::fromUtf8(solve::toString(record->stepKind)));
         plot_->xAxis->setLabel(hasAlpha ? tr("step length α along d") : tr("fraction t of the step"));
     } else if (eigenIndex >= 0 && model.eigenvectors.cols() == n && model.eigenvectors.allFinite()) {
@@ -132,15 +153,35 @@ void SliceView::rebuild() {
     }
     plot_->yAxis->setLabel(tr("f along the line"));
 
-    // The window shows the accepted step; trials further out stay reachable by zoom and pan, so
-    // the line is also sampled (more coarsely) out to the farthest trial.
+    // The window shows every trial and the accepted step (a backtracking search tries 1, ½, ¼, …
+    // before it accepts a short step: each rejected trial is part of the story). When the trials
+    // span more than two decades the step length goes on a log scale, unless the user chose.
+    const bool trialsShown = eigenIndex < 0 && hasStep;
     const double tShown = std::isfinite(acceptedT) && acceptedT > 0 ? acceptedT : tMax;
-    const double shownLo = -0.3 * tShown, shownHi = 1.6 * tShown;
-    std::vector<double> ts = analyze::linspace(shownLo, shownHi, kSamples);
-    if (tMax > shownHi) {
-        for (double t : analyze::linspace(shownHi, 1.1 * tMax, kSamples / 2))
-            if (t > shownHi) ts.push_back(t);
+    const bool spansDecades = trialsShown && std::isfinite(tMin) && tMin > 0 && tMax / tMin > 100;
+    logScale_->setEnabled(trialsShown && std::isfinite(tMin) && tMin > 0 && tMax / tMin > 10);
+    if (!logScaleChosen_) {
+        const QSignalBlocker quiet(logScale_);
+        logScale_->setChecked(spansDecades);
     }
+    const bool logAxis = logScale_->isEnabled() && logScale_->isChecked();
+    logScale_->setProperty("applied", logAxis);
+    double shownLo = -0.3 * tShown, shownHi = 1.6 * tShown;
+    std::vector<double> ts;
+    if (logAxis) {
+        shownLo = tMin / 2;
+        shownHi = tMax * 1.6;
+        const double a = std::log10(shownLo), b = std::log10(shownHi);
+        for (double e : analyze::linspace(a, b, kSamples)) ts.push_back(std::pow(10.0, e));
+    } else {
+        if (trialsShown) shownHi = std::max(shownHi, 1.08 * tMax);
+        ts = analyze::linspace(shownLo, shownHi, kSamples);
+    }
+    plot_->xAxis->setScaleType(logAxis ? QCPAxis::stLogarithmic : QCPAxis::stLinear);
+    if (logAxis)
+        plot_->xAxis->setTicker(QSharedPointer<QCPAxisTickerLog>(new QCPAxisTickerLog));
+    else
+        plot_->xAxis->setTicker(QSharedPointer<QCPAxisTicker>(new QCPAxisTicker));
     const std::vector<double> truth = analyze::valuesAlong(objective, x, d, ts);
     const std::vector<double> quadratic = model.finite ? model.along(d, ts) : std::vector<double>(ts.size(), std::nan(""));
     const std::vector<double> armijo = gradient.size() == n
@@ -171,7 +212,7 @@ void SliceView::rebuild() {
 
     trialGraph_ = plot_->addGraph();
     trialGraph_->setLineStyle(QCPGraph::lsNone);
-    QPen trialPen(track.colour, 1.5);
+    QPen trialPen(trackColour(track), 1.5);
     scaleForScreen(trialPen);
     trialGraph_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, trialPen, Qt::NoBrush, 9));
     trialGraph_->setName(tr("line-search trials"));
@@ -196,7 +237,7 @@ void SliceView::rebuild() {
 
     acceptedGraph_ = plot_->addGraph();
     acceptedGraph_->setLineStyle(QCPGraph::lsNone);
-    acceptedGraph_->setScatterStyle(iterateStyle(track.marker, track.colour, 11));
+    acceptedGraph_->setScatterStyle(iterateStyle(track.marker, trackColour(track), 11));
     if (std::isfinite(acceptedT)) {
         const double landed = objective.value(x + acceptedT * d);
         acceptedGraph_->addData(acceptedT, landed);
@@ -207,25 +248,54 @@ void SliceView::rebuild() {
     for (QCPGraph* graph : {trueGraph_, modelGraph_, armijoGraph_, trialGraph_, rejectedGraph_, acceptedGraph_})
         graph->setSelectable(QCP::stNone);
 
-    // Vertical range from the true curve, the trials and the step (the model may run off to
-    // -inf along negative curvature; it is clipped rather than allowed to flatten the plot).
+    // Vertical range: first what happens up to twice the accepted step (the true curve there,
+    // trials there, the step, f at the iterate); then farther trials and the rest of the curve
+    // as long as the plot does not grow beyond five times that. A trial far uphill (a first
+    // trial at 1e11 when f is 20) would flatten everything else: it is drawn pinned to the top
+    // edge instead (an upward triangle), and the caption gives its value.
+    const double tNear = 2 * tShown;
     double lo = std::numeric_limits<double>::infinity(), hi = -lo;
     auto take = [&](double v) {
         if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
     };
     for (std::size_t i = 0; i < ts.size(); ++i)
-        if (ts[i] <= shownHi) take(truth[i]);
+        if (ts[i] <= tNear) take(truth[i]);
     for (const auto& point : *trialGraph_->data())
-        if (point.key <= shownHi) take(point.value);
+        if (point.key <= tNear) take(point.value);
     for (const auto& point : *acceptedGraph_->data()) take(point.value);
     take(record->value);
-    if (lo <= hi) {
-        const double pad = hi > lo ? 0.08 * (hi - lo) : std::max(1.0, std::abs(hi)) * 0.1;
-        plot_->yAxis->setRange(lo - pad, hi + pad);
-    } else {
-        plot_->yAxis->setRange(-1, 1);
+    if (!(lo <= hi)) lo = -1, hi = 1;
+    const double nearSpan = hi > lo ? hi - lo : std::max(1.0, std::abs(hi)) * 0.2;
+    const double ceiling = hi + 4 * nearSpan;
+    double farthestAbove = -std::numeric_limits<double>::infinity();
+    for (std::size_t i = 0; i < ts.size(); ++i)
+        if (std::isfinite(truth[i]) && truth[i] <= ceiling) take(truth[i]);
+    for (const auto& point : *trialGraph_->data()) {
+        if (!std::isfinite(point.value)) continue;
+        if (point.value <= ceiling)
+            take(point.value);
+        else
+            farthestAbove = std::max(farthestAbove, point.value);
     }
+    const double pad = hi > lo ? 0.08 * (hi - lo) : std::max(1.0, std::abs(hi)) * 0.1;
+    plot_->yAxis->setRange(lo - pad, hi + pad);
     plot_->xAxis->setRange(shownLo, shownHi);
+    int pinned = 0;
+    if (std::isfinite(farthestAbove)) {
+        auto* above = plot_->addGraph();
+        above->setLineStyle(QCPGraph::lsNone);
+        QPen pen(armijoColour(), 1.6);
+        scaleForScreen(pen);
+        above->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssTriangle, pen, QBrush(armijoColour()), 9));
+        const double top = hi + 0.5 * pad;
+        for (const auto& point : *trialGraph_->data())
+            if (std::isfinite(point.value) && point.value > ceiling) {
+                above->addData(point.key, top);
+                ++pinned;
+            }
+        above->setName(tr("trial far above (pinned to the top)"));
+        above->setSelectable(QCP::stNone);
+    }
 
     const double slope = gradient.size() == n ? gradient.dot(d) : std::nan("");
     QString text = tr("Iterate %1 of %2, along the %3: |d| = %4, slope ∇f·d = %5")
@@ -233,6 +303,7 @@ void SliceView::rebuild() {
                        .arg(track.label, what, formatNumber(d.norm()), formatNumber(slope));
     if (std::isfinite(acceptedT) && eigenIndex < 0)
         text += tr(", step at %1, %2 trial(s)").arg(formatNumber(acceptedT)).arg(record->trials.size());
+    if (pinned > 0) text += tr("; %n trial(s) far above, up to f = %1", nullptr, pinned).arg(formatNumber(farthestAbove));
     caption_->setText(text);
     queueReplot();
 }

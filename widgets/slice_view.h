@@ -5,6 +5,7 @@
 
 #include "widgets/plot_style.h"
 
+class QCheckBox;
 class QComboBox;
 class QLabel;
 
@@ -30,6 +31,8 @@ public:
     QCPGraph* trialGraph() const { return trialGraph_; }
     QCPGraph* acceptedGraph() const { return acceptedGraph_; }
     QString caption() const;
+    // Step lengths on a log scale (chosen by itself when the trials span more than two decades).
+    QCheckBox* logScaleBox() const { return logScale_; }
 
 protected:
     void rebuild() override;
@@ -38,6 +41,8 @@ private:
     int direction_ = -1;
     double c1_ = 1e-4;
     QComboBox* directionChoice_ = nullptr;
+    QCheckBox* logScale_ = nullptr;
+    bool logScaleChosen_ = false;  // the user ticked or cleared "log α": keep their choice
     QLabel* caption_ = nullptr;
     QCPGraph* trueGraph_ = nullptr;
     QCPGraph* modelGraph_ = nullptr;

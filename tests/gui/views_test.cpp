@@ -140,7 +140,10 @@ private slots:
     void landscapeMarksEndPointsByKind();
     void localModelShowsModelTrueContoursNewtonPointAxesAndTrustRegion();
     void localModelCallsASaddleASaddle();
-    void localModelLegendMovesToTheNextCornerWhenClicked();
+    void localModelLegendSitsOutsideThePlot();
+    void localModelAtAConvergedIterateShowsDistinctTicksAndContoursAboveRoundOff();
+    void curvatureAxisTitlesFitAlongAShortPanel();
+    void sliceShowsEveryLineSearchTrial();
     void curvatureDrawsEigenvaluesOnSymmetricLogScale();
     void symmetricLogRoundTripsAndLabelsRealValues();
     void progressDrawsGapAndGradientForEveryTrack();
@@ -361,24 +364,117 @@ void ViewsTest::localModelCallsASaddleASaddle() {
     keepImage(view, "local-model-saddle");
 }
 
-void ViewsTest::localModelLegendMovesToTheNextCornerWhenClicked() {
+void ViewsTest::localModelLegendSitsOutsideThePlot() {
+    // At the size of a right-hand panel on a 1280 x 800 screen the legend took a third of the
+    // plot and hid the accepted step; it now has a row of its own under the plot.
     auto snapshot = valleySnapshot();
     LocalModelView view;
     view.setSnapshot(snapshot);
     view.setSelection(Selection{2, 1});
-    show(view);
+    view.resize(420, 330);
+    view.show();
     QCustomPlot* plot = view.plot();
     plot->replot();
-    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignRight);
-    // A real click on the legend, through QCustomPlot's own hit test.
-    const QPoint onLegend = plot->legend->outerRect().center();
-    QTest::mouseClick(plot, Qt::LeftButton, Qt::NoModifier, onLegend);
-    QCOMPARE(view.legendCorner(), Qt::AlignBottom | Qt::AlignRight);
-    view.moveLegendToNextCorner();
-    view.moveLegendToNextCorner();
-    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignLeft);
-    view.moveLegendToNextCorner();
-    QCOMPARE(view.legendCorner(), Qt::AlignTop | Qt::AlignRight);
+    plot->replot();
+    const QRect legend = plot->legend->outerRect();
+    QVERIFY(legend.isValid());
+    QVERIFY2(!legend.intersects(plot->axisRect()->rect()), "the legend covers the plot");
+    QVERIFY(plot->viewport().contains(legend));
+}
+
+void ViewsTest::localModelAtAConvergedIterateShowsDistinctTicksAndContoursAboveRoundOff() {
+    // At BFGS's last iterate the step and the Newton point are ~1e-9 away: a window that small
+    // printed "1" (or "0.99203") at every tick and drew rounding noise as contours.
+    auto snapshot = valleySnapshot();
+    const solve::Run& run = *snapshot->tracks[1].run;
+    QVERIFY(solve::isConvergence(run.termination));
+    const int last = static_cast<int>(run.trace.size()) - 1;
+    LocalModelView view;
+    view.setSnapshot(snapshot);
+    view.setSelection(Selection{1, last});
+    show(view);
+    view.plot()->replot();
+    view.plot()->replot();
+    for (QCPAxis* axis : {view.plot()->xAxis, view.plot()->yAxis}) {
+        const QVector<QString> labels = axis->tickVectorLabels();
+        QVERIFY(labels.size() >= 2);
+        const QSet<QString> distinct(labels.begin(), labels.end());
+        QVERIFY2(distinct.size() == labels.size(), qPrintable(QStringList(labels.begin(), labels.end()).join(" | ")));
+    }
+    // Across the window f changes far more than its rounding error (about 1e-16 here).
+    const Vector& x = run.trace.back().x;
+    const Objective& f = *snapshot->objective;
+    const double halfX = view.plot()->xAxis->range().size() / 2, halfY = view.plot()->yAxis->range().size() / 2;
+    const double centre = f.value(x);
+    double spread = 0;
+    for (double dx : {-1.0, 1.0})
+        for (double dy : {-1.0, 1.0})
+            spread = std::max(spread, std::abs(f.value(x + (Vector(2) << dx * halfX, dy * halfY).finished()) - centre));
+    QVERIFY2(spread > 1e-8 * (1 + std::abs(centre)), qPrintable(QStringLiteral("f spreads %1 over a half-width of %2")
+                                                                     .arg(spread)
+                                                                     .arg(halfX)));
+    QVERIFY(view.trueContourCount() >= 4);
+    QVERIFY(view.modelContourCount() >= 4);
+    keepImage(view, "local-model-converged");
+}
+
+void ViewsTest::curvatureAxisTitlesFitAlongAShortPanel() {
+    // A tabbed right-hand panel at 1280 x 800 is about 430 x 300: the axis titles must fit
+    // along their own panel (a longer rotated title is cut off and runs into the other one).
+    auto snapshot = valleySnapshot();
+    CurvatureView view;
+    view.setSnapshot(snapshot);
+    view.resize(430, 300);
+    view.show();
+    view.plot()->replot();
+    view.plot()->replot();
+    for (QCPAxisRect* rect : {view.eigenvalueRect(), view.conditionRect()}) {
+        QCPAxis* axis = rect->axis(QCPAxis::atLeft);
+        const QFontMetrics metrics(axis->labelFont());
+        int longest = 0;
+        for (const QString& line : axis->label().split('\n')) longest = std::max(longest, metrics.horizontalAdvance(line));
+        QVERIFY2(longest <= rect->rect().height(),
+                 qPrintable(QStringLiteral("'%1' is %2 px along a %3 px panel")
+                                .arg(axis->label())
+                                .arg(longest)
+                                .arg(rect->rect().height())));
+    }
+}
+
+void ViewsTest::sliceShowsEveryLineSearchTrial() {
+    // Gradient descent's first step from (-1.2, 1) backtracks from a long first trial to a
+    // short accepted step: every trial must be on the plot, not only the accepted one.
+    auto snapshot = valleySnapshot();
+    const auto& record = snapshot->tracks[0].run->trace[0];
+    QVERIFY(record.trials.size() >= 3);
+    SliceView view;
+    view.setSnapshot(snapshot);
+    view.setSelection(Selection{0, 0});
+    show(view);
+    view.plot()->replot();
+    const QCPRange shown = view.plot()->xAxis->range();
+    for (const auto& trial : record.trials)
+        QVERIFY2(shown.contains(trial.alpha), qPrintable(QStringLiteral("trial at %1 is outside %2 .. %3")
+                                                             .arg(trial.alpha)
+                                                             .arg(shown.lower)
+                                                             .arg(shown.upper)));
+    QVERIFY(shown.contains(record.stepLength));
+    // Their values are on the plot too, or (a trial far uphill that would flatten the rest)
+    // marked at the top edge above its step length.
+    const QCPRange vertical = view.plot()->yAxis->range();
+    QCPGraph* pinned = nullptr;
+    for (int i = 0; i < view.plot()->graphCount(); ++i)
+        if (view.plot()->graph(i)->name().contains("far above")) pinned = view.plot()->graph(i);
+    for (const auto& trial : record.trials) {
+        if (!std::isfinite(trial.value) || vertical.contains(trial.value)) continue;
+        QVERIFY2(trial.value > vertical.upper && pinned, qPrintable(QStringLiteral("trial f = %1").arg(trial.value)));
+        bool marked = false;
+        for (const auto& point : *pinned->data()) marked = marked || (point.key == trial.alpha && vertical.contains(point.value));
+        QVERIFY(marked);
+    }
+    // The accepted step is not squeezed into the bottom of the plot by those far trials.
+    QVERIFY(vertical.size() < 10 * std::max(1.0, std::abs(record.value)));
+    keepImage(view, "slice-trials");
 }
 
 void ViewsTest::curvatureDrawsEigenvaluesOnSymmetricLogScale() {
