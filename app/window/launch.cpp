@@ -52,7 +52,7 @@ int launch(int argc, char** argv) {
     if (!shot.isEmpty()) {
         const QString size = qEnvironmentVariable("SADDLEWISE_SCREENSHOT_SIZE");  // e.g. 1600x1000
         const QStringList wh = size.split('x');
-        if (wh.size() == 2) window.resize(wh[0].toInt(), wh[1].toInt());
+        if (wh.size() == 2) window.setInitialSize(QSize(wh[0].toInt(), wh[1].toInt()));
         scheduleScreenshot(window, QFileInfo(shot).absoluteFilePath());
     }
     window.show();

@@ -1,5 +1,7 @@
 #include "app/window/lineup_editor.h"
 
+#include "app/window/method_names.h"
+
 #include "core/solve/solver.h"
 #include "widgets/theme.h"
 
@@ -77,7 +79,8 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
     for (const auto& info : solve::methods()) {
         QMenu*& sub = families[info.family];
         if (!sub) sub = menu->addMenu(QString::fromStdString(info.family));
-        QAction* action = sub->addAction(QString::fromStdString(info.id));
+        QAction* action = sub->addAction(QStringLiteral("%1  (%2)").arg(methodDisplayName(info.id),
+                                                                         QString::fromStdString(info.id)));
         action->setToolTip(QString::fromStdString(info.summary));
         action->setStatusTip(QString::fromStdString(info.summary));
         const std::string id = info.id;
@@ -89,9 +92,13 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
     duplicate_->setToolTip(tr("Add a copy of the selected entry (to compare options of one method)"));
     remove_ = new QPushButton(tr("Remove"), this);
     remove_->setToolTip(tr("Remove the selected entry"));
-    up_ = new QPushButton(tr("Up"), this);
+    up_ = new QToolButton(this);
+    up_->setArrowType(Qt::UpArrow);
+    up_->setText(tr("Up"));
     up_->setToolTip(tr("Move the selected entry up"));
-    down_ = new QPushButton(tr("Down"), this);
+    down_ = new QToolButton(this);
+    down_->setArrowType(Qt::DownArrow);
+    down_->setText(tr("Down"));
     down_->setToolTip(tr("Move the selected entry down"));
     connect(duplicate_, &QPushButton::clicked, this, [this] {
         const int i = currentEntry();
@@ -107,8 +114,8 @@ LineupEditor::LineupEditor(QWidget* parent) : QWidget(parent) {
         emit edited();
     });
     connect(remove_, &QPushButton::clicked, this, [this] { removeEntry(currentEntry()); });
-    connect(up_, &QPushButton::clicked, this, [this] { moveEntry(currentEntry(), -1); });
-    connect(down_, &QPushButton::clicked, this, [this] { moveEntry(currentEntry(), +1); });
+    connect(up_, &QToolButton::clicked, this, [this] { moveEntry(currentEntry(), -1); });
+    connect(down_, &QToolButton::clicked, this, [this] { moveEntry(currentEntry(), +1); });
     connect(list_, &QListWidget::currentRowChanged, this, [this] { refreshDetails(); });
     connect(list_, &QListWidget::itemChanged, this, [this] { onItemChanged(); });
 
@@ -246,6 +253,9 @@ void LineupEditor::setCurrentEntry(int index) {
 void LineupEditor::refreshList() {
     const bool wasUpdating = updating_;
     updating_ = true;
+    // Rebuilding the list moves its current row through -1 and back; the details (and the
+    // option table whose cell may be open in an editor) must not be rebuilt on the way.
+    const QSignalBlocker quiet(list_);
     const int current = list_->currentRow();
     list_->clear();
     for (const auto& e : entries_) {
@@ -289,8 +299,9 @@ void LineupEditor::refreshDetails() {
     const study::MethodEntry& e = entries_[static_cast<std::size_t>(i)];
     label_->setText(QString::fromStdString(e.label));
     const solve::MethodInfo* info = solve::findMethod(e.method);
-    method_->setText(info ? QStringLiteral("%1 — %2").arg(QString::fromStdString(e.method),
-                                                         QString::fromStdString(info->summary))
+    method_->setText(info ? QStringLiteral("%1 (%2) — %3")
+                                .arg(methodDisplayName(e.method), QString::fromStdString(e.method),
+                                     QString::fromStdString(info->summary))
                           : QString::fromStdString(e.method));
     const QColor colour(QString::fromStdString(e.colour));
     colour_->setText(colour.name());
@@ -366,7 +377,10 @@ void LineupEditor::onDetailsEdited() {
     const bool changed = before.label != e.label || before.marker != e.marker || before.options != e.options;
     if (!changed) return;
     refreshList();
-    refreshDetails();
+    // The option table is rebuilt once the cell editor that caused this edit has closed: rebuilt
+    // now, its rows would be gone under the closing editor ("closeEditor called with an editor
+    // that does not belong to this view").
+    QMetaObject::invokeMethod(this, [this] { refreshDetails(); }, Qt::QueuedConnection);
     emit edited();
 }
 

@@ -57,8 +57,8 @@ private:
     QToolButton* add_ = nullptr;
     QPushButton* duplicate_ = nullptr;
     QPushButton* remove_ = nullptr;
-    QPushButton* up_ = nullptr;
-    QPushButton* down_ = nullptr;
+    QToolButton* up_ = nullptr;
+    QToolButton* down_ = nullptr;
     QWidget* details_ = nullptr;
     QLineEdit* label_ = nullptr;
     QLabel* method_ = nullptr;

@@ -3,6 +3,9 @@
 
 #include "app/window/main_window.h"
 
+#include "app/window/derivatives_pane.h"
+#include "app/window/file_dialogs.h"
+#include "app/window/icons.h"
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
 #include "core/solve/solver.h"
@@ -10,12 +13,14 @@
 #include "widgets/landscape_view.h"
 #include "widgets/local_model_view.h"
 #include "widgets/progress_view.h"
+#include "widgets/run_summary.h"
 #include "widgets/slice_view.h"
 #include "widgets/steps_table.h"
 #include "widgets/theme.h"
 
 #include <QAction>
 #include <QApplication>
+#include <QCheckBox>
 #include <QCloseEvent>
 #include <QComboBox>
 #include <QCoreApplication>
@@ -35,12 +40,16 @@
 #include <QProgressBar>
 #include <QPushButton>
 #include <QSaveFile>
+#include <QScreen>
+#include <QScrollArea>
 #include <QSettings>
 #include <QSpinBox>
 #include <QStatusBar>
+#include <QTextBrowser>
 #include <QThread>
 #include <QToolBar>
 #include <QToolButton>
+#include <QVBoxLayout>
 #include <algorithm>
 #include <cmath>
 
@@ -79,14 +88,23 @@ study::Study defaultStudy(const Preferences& preferences) {
 
 QString humanNumber(double v) { return QString::number(v, 'g', 4); }
 
+// The icon each toolbar action draws (see icons.h).
+const std::map<QString, QString>& actionIcons() {
+    static const std::map<QString, QString> icons = {
+        {"new", "new"},           {"open", "open"},   {"save", "save"},   {"run-all", "run-all"},
+        {"step-all", "step-all"}, {"play", "play"},   {"reset", "reset"}, {"cancel", "cancel"},
+        {"export-view", "export-view"}};
+    return icons;
+}
+
 }  // namespace
 
 MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     setObjectName("SaddlewiseMainWindow");
     jobs_ = new JobRunner(this);
     createViews();
-    createDocks();
     createActions();
+    createDocks();
     createMenus();
     createToolBars();
     createStatusBar();
@@ -123,6 +141,8 @@ void MainWindow::createViews() {
     progress_ = new widgets::ProgressView(this);
     slice_ = new widgets::SliceView(this);
     steps_ = new widgets::StepsTable(this);
+    runSummary_ = new widgets::RunSummary(this);
+    derivatives_ = new DerivativesPane(this);
     objectiveEditor_ = new ObjectiveEditor(this);
     lineupEditor_ = new LineupEditor(this);
 
@@ -131,6 +151,7 @@ void MainWindow::createViews() {
                                     static_cast<widgets::PlotView*>(slice_)})
         connect(view, &widgets::PlotView::selectionRequested, this, &MainWindow::setSelection);
     connect(steps_, &widgets::StepsTable::selectionRequested, this, &MainWindow::setSelection);
+    connect(runSummary_, &widgets::RunSummary::selectionRequested, this, &MainWindow::setSelection);
     connect(landscape_, &widgets::LandscapeView::startMoved, this, &MainWindow::moveStart);
     connect(landscape_, &widgets::LandscapeView::startPlaced, this, &MainWindow::moveStart);
     connect(landscape_, &widgets::LandscapeView::viewBoxChanged, this, &MainWindow::setViewBox);
@@ -139,52 +160,102 @@ void MainWindow::createViews() {
         study_.view.logColour = on;
         setModified(true);
     });
+    connect(objectiveEditor_, &ObjectiveEditor::changed, this, [this] {
+        if (!loading_) setModified(true);  // any edit, even one that does not parse yet
+    });
     connect(objectiveEditor_, &ObjectiveEditor::edited, this, &MainWindow::rebuildObjective);
     connect(objectiveEditor_, &ObjectiveEditor::plotAxesChanged, this, &MainWindow::onPlotAxesChanged);
+    connect(objectiveEditor_, &ObjectiveEditor::heldValuesEdited, this, &MainWindow::onHeldValuesEdited);
     connect(lineupEditor_, &LineupEditor::edited, this, &MainWindow::onLineupEdited);
 }
 
+QDockWidget* MainWindow::addViewDock(const QString& name, const QString& title, QWidget* content, const QString& tip,
+                                     bool scrolls) {
+    auto* dock = new QDockWidget(title, this);
+    dock->setObjectName(name);
+    if (scrolls) {
+        // An editor keeps its controls at their natural size and scrolls when the panel is
+        // shorter; without this a short panel either grows the window past the screen or
+        // squeezes the controls over each other.
+        auto* area = new QScrollArea(dock);
+        area->setObjectName(name + QStringLiteral("-scroll"));
+        area->setWidget(content);
+        area->setWidgetResizable(true);
+        area->setFrameShape(QFrame::NoFrame);
+        area->setHorizontalScrollBarPolicy(Qt::ScrollBarAsNeeded);  // a safety net: nothing is ever cut off
+        area->setMinimumSize(220, 120);
+        dock->setWidget(area);
+    } else {
+        dock->setWidget(content);
+    }
+    dock->setToolTip(tip);
+    dock->toggleViewAction()->setToolTip(tr("Show or hide the %1 panel").arg(title));
+    docks_[name] = dock;
+    dockOrder_ << name;
+    return dock;
+}
+
+QDockWidget* MainWindow::dock(const QString& name) const {
+    const auto it = docks_.find(name);
+    return it == docks_.end() ? nullptr : it->second;
+}
+
+// Every dock is made here; placeDocks() says where each one goes by default.
 void MainWindow::createDocks() {
     setDockNestingEnabled(true);
     setDockOptions(QMainWindow::AnimatedDocks | QMainWindow::AllowNestedDocks | QMainWindow::AllowTabbedDocks);
-    auto makeDock = [this](const QString& name, const QString& title, QWidget* content, const QString& tip) {
-        auto* dock = new QDockWidget(title, this);
-        dock->setObjectName(name);
-        dock->setWidget(content);
-        dock->setToolTip(tip);
-        dock->toggleViewAction()->setToolTip(tr("Show or hide the %1 panel").arg(title));
-        docks_[name] = dock;
-        return dock;
-    };
-    QDockWidget* objective = makeDock("objective", tr("Objective"), objectiveEditor_,
-                                      tr("The function to minimise, its variables and its exact derivatives"));
-    QDockWidget* lineup = makeDock("lineup", tr("Methods"), lineupEditor_, tr("The methods run side by side"));
-    QDockWidget* landscape = makeDock("landscape", tr("Landscape"), landscape_,
-                                      tr("The objective over two variables, with every method's path; drag the start"));
-    QDockWidget* local = makeDock("local-model", tr("Local model"), localModel_,
-                                  tr("The quadratic model at the selected iterate over the true contours"));
-    QDockWidget* curvature = makeDock("curvature", tr("Curvature"), curvature_,
-                                      tr("Hessian eigenvalues and condition number along each path"));
-    QDockWidget* progress = makeDock("progress", tr("Progress"), progress_,
-                                     tr("Distance to the best value and gradient length per iteration"));
-    QDockWidget* slice = makeDock("slice", tr("Slice"), slice_,
-                                  tr("The objective along the selected step, with the line-search trials"));
-    QDockWidget* steps = makeDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
+    addViewDock("objective", tr("Objective"), objectiveEditor_,
+                tr("The function to minimise or the model to fit, and its variables"), true);
+    addViewDock("lineup", tr("Methods"), lineupEditor_, tr("The methods run side by side"), true);
+    addViewDock("landscape", tr("Landscape"), landscape_,
+                tr("The objective over two variables, with every method's path; drag the start"));
+    addViewDock("local-model", tr("Local model"), localModel_,
+                tr("The quadratic model at the selected iterate over the true contours"));
+    addViewDock("curvature", tr("Curvature"), curvature_, tr("Hessian eigenvalues and condition number along each path"));
+    addViewDock("progress", tr("Progress"), progress_, tr("Distance to the best value and gradient length per iteration"));
+    addViewDock("slice", tr("Slice"), slice_, tr("The objective along the selected step, with the line-search trials"));
+    addViewDock("summary", tr("Summary"), runSummary_,
+                tr("Every method's run side by side: how it ended and why, where, in how many steps"));
+    addViewDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
+    addViewDock("derivatives", tr("Derivatives"), derivatives_, tr("The exact gradient and Hessian as formulas"));
+    setCentralWidget(nullptr);  // no central widget: every view is a dock the user may move, stack or float
+    placeDocks();
+}
 
-    // No central widget: every view is a dock the user may move, stack or float.
-    setCentralWidget(nullptr);
-    addDockWidget(Qt::LeftDockWidgetArea, objective);
-    splitDockWidget(objective, lineup, Qt::Vertical);
-    addDockWidget(Qt::RightDockWidgetArea, landscape);
-    splitDockWidget(landscape, local, Qt::Horizontal);
-    splitDockWidget(landscape, steps, Qt::Vertical);
-    splitDockWidget(local, progress, Qt::Vertical);
-    tabifyDockWidget(progress, curvature);
-    tabifyDockWidget(curvature, slice);
-    progress->raise();
-    resizeDocks({objective, landscape, local}, {330, 640, 430}, Qt::Horizontal);
-    resizeDocks({landscape, steps}, {600, 260}, Qt::Vertical);
-    resizeDocks({objective, lineup}, {480, 380}, Qt::Vertical);
+// The default arrangement: editors on the left, the landscape taking most of the middle with
+// the tables under it, the local model over the tabbed line plots on the right.
+void MainWindow::placeDocks() {
+    auto at = [this](const char* name) { return docks_.at(QString::fromLatin1(name)); };
+    addDockWidget(Qt::LeftDockWidgetArea, at("objective"));
+    splitDockWidget(at("objective"), at("lineup"), Qt::Vertical);
+    addDockWidget(Qt::RightDockWidgetArea, at("landscape"));
+    splitDockWidget(at("landscape"), at("local-model"), Qt::Horizontal);
+    splitDockWidget(at("landscape"), at("summary"), Qt::Vertical);
+    tabifyDockWidget(at("summary"), at("steps"));
+    tabifyDockWidget(at("steps"), at("derivatives"));
+    splitDockWidget(at("local-model"), at("progress"), Qt::Vertical);
+    tabifyDockWidget(at("progress"), at("curvature"));
+    tabifyDockWidget(at("curvature"), at("slice"));
+    at("progress")->raise();
+    at("summary")->raise();
+}
+
+// Proportions of the default layout for the window's current size.
+void MainWindow::fitToScreen() {
+    const QSize size = this->size();
+    const int w = std::max(800, size.width()), h = std::max(500, size.height());
+    const int left = std::clamp(w / 4, 330, 420);
+    const int right = std::clamp(w * 3 / 10, 300, 560);
+    resizeDocks({docks_.at("objective"), docks_.at("landscape"), docks_.at("local-model")},
+                {left, w - left - right, right}, Qt::Horizontal);
+    resizeDocks({docks_.at("landscape"), docks_.at("summary")}, {h * 62 / 100, h * 38 / 100}, Qt::Vertical);
+    resizeDocks({docks_.at("objective"), docks_.at("lineup")}, {h * 56 / 100, h * 44 / 100}, Qt::Vertical);
+    resizeDocks({docks_.at("local-model"), docks_.at("progress")}, {h * 56 / 100, h * 44 / 100}, Qt::Vertical);
+}
+
+void MainWindow::setInitialSize(const QSize& size) {
+    resize(size);
+    fitToScreen();
 }
 
 // ---------------------------------------------------------------- actions
@@ -195,46 +266,39 @@ QAction* MainWindow::action(const QString& name) const {
 }
 
 void MainWindow::createActions() {
-    auto make = [this](const QString& name, const QString& text, const QString& tip, const QKeySequence& key,
-                       QStyle::StandardPixmap icon = QStyle::SP_CustomBase) {
+    auto make = [this](const QString& name, const QString& text, const QString& tip, const QKeySequence& key) {
         auto* a = new QAction(text, this);
         a->setObjectName(name);
         a->setStatusTip(tip);
         a->setToolTip(key.isEmpty() ? tip : QStringLiteral("%1 (%2)").arg(tip, key.toString(QKeySequence::NativeText)));
         if (!key.isEmpty()) a->setShortcut(key);
-        if (icon != QStyle::SP_CustomBase) a->setIcon(style()->standardIcon(icon));
         actions_[name] = a;
         return a;
     };
-    connect(make("new", tr("&New"), tr("Start a new study with a small example formula"), QKeySequence::New,
-                 QStyle::SP_FileIcon),
+    connect(make("new", tr("&New"), tr("Start a new study with a small example formula"), QKeySequence::New),
             &QAction::triggered, this, [this] {
                 if (maybeSave()) newStudy();
             });
-    connect(make("open", tr("&Open…"), tr("Open a study file"), QKeySequence::Open, QStyle::SP_DialogOpenButton),
-            &QAction::triggered, this, &MainWindow::openDialog);
-    connect(make("save", tr("&Save"), tr("Save the study"), QKeySequence::Save, QStyle::SP_DialogSaveButton),
-            &QAction::triggered, this, &MainWindow::save);
+    connect(make("open", tr("&Open…"), tr("Open a study file"), QKeySequence::Open), &QAction::triggered, this,
+            &MainWindow::openDialog);
+    connect(make("save", tr("&Save"), tr("Save the study"), QKeySequence::Save), &QAction::triggered, this,
+            &MainWindow::save);
     connect(make("save-as", tr("Save &As…"), tr("Save the study under a new name"), QKeySequence::SaveAs),
             &QAction::triggered, this, &MainWindow::saveAsDialog);
     connect(make("quit", tr("&Quit"), tr("Close the window"), QKeySequence::Quit), &QAction::triggered, this,
             &QWidget::close);
 
-    connect(make("run-all", tr("&Run all"), tr("Run every enabled method to the end"), QKeySequence(Qt::CTRL | Qt::Key_R),
-                 QStyle::SP_MediaSeekForward),
+    connect(make("run-all", tr("&Run all"), tr("Run every enabled method to the end"), QKeySequence(Qt::CTRL | Qt::Key_R)),
             &QAction::triggered, this, &MainWindow::runAll);
-    connect(make("step-all", tr("&Step all"), tr("Advance every method by one iteration"), QKeySequence(Qt::Key_F10),
-                 QStyle::SP_MediaSkipForward),
+    connect(make("step-all", tr("&Step all"), tr("Advance every method by one iteration"), QKeySequence(Qt::Key_F10)),
             &QAction::triggered, this, &MainWindow::stepAll);
-    QAction* play = make("play", tr("&Play"), tr("Animate: step every method at the chosen speed"),
-                         QKeySequence(Qt::Key_F5), QStyle::SP_MediaPlay);
+    QAction* play = make("play", tr("&Play"), tr("Animate: step every method at the chosen speed"), QKeySequence(Qt::Key_F5));
     play->setCheckable(true);
     connect(play, &QAction::toggled, this, &MainWindow::setPlaying);
     connect(make("reset", tr("R&eset"), tr("Back to the start: every method at its first iterate"),
-                 QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_R), QStyle::SP_MediaSkipBackward),
+                 QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_R)),
             &QAction::triggered, this, &MainWindow::resetRuns);
-    connect(make("cancel", tr("&Cancel jobs"), tr("Stop the running computations"), QKeySequence(Qt::Key_Escape),
-                 QStyle::SP_BrowserStop),
+    connect(make("cancel", tr("&Cancel jobs"), tr("Stop the running computations"), QKeySequence(Qt::Key_Escape)),
             &QAction::triggered, this, &MainWindow::cancelJobs);
 
     connect(make("export-view", tr("&Export view…"), tr("Save a view as PNG, SVG or PDF at a chosen size"),
@@ -248,8 +312,24 @@ void MainWindow::createActions() {
             &QAction::triggered, this, &MainWindow::showPreferences);
     connect(make("reset-layout", tr("Reset &layout"), tr("Put every panel back where it started"), QKeySequence()),
             &QAction::triggered, this, &MainWindow::resetLayout);
-    connect(make("about", tr("&About Saddlewise"), tr("What this program is"), QKeySequence::HelpContents),
+    connect(make("formula-help", tr("&Formula syntax"), tr("What a formula may contain"), QKeySequence::HelpContents),
+            &QAction::triggered, this, [this] { showHelpText(tr("Formula syntax"), formulaSyntaxText()); });
+    connect(make("shortcuts", tr("&Keyboard shortcuts"), tr("Every action's key"), QKeySequence()),
+            &QAction::triggered, this, [this] { showHelpText(tr("Keyboard shortcuts"), shortcutsText()); });
+    connect(make("about", tr("&About Saddlewise"), tr("What this program is for"), QKeySequence()),
             &QAction::triggered, this, &MainWindow::about);
+    refreshIcons();
+}
+
+void MainWindow::refreshIcons() {
+    for (const auto& [name, icon] : actionIcons())
+        if (QAction* a = action(name)) a->setIcon(toolIcon(icon, palette()));
+    if (QAction* p = action("play")) p->setIcon(toolIcon(p->isChecked() ? "pause" : "play", palette()));
+}
+
+void MainWindow::changeEvent(QEvent* event) {
+    if (event->type() == QEvent::PaletteChange || event->type() == QEvent::ApplicationPaletteChange) refreshIcons();
+    QMainWindow::changeEvent(event);
 }
 
 void MainWindow::createMenus() {
@@ -274,12 +354,14 @@ void MainWindow::createMenus() {
     for (const char* name : {"run-all", "step-all", "play", "reset", "cancel"}) run->addAction(action(name));
 
     viewMenu_ = menuBar()->addMenu(tr("&View"));
-    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps"})
-        viewMenu_->addAction(docks_[name]->toggleViewAction());
+    for (const QString& name : dockOrder_) viewMenu_->addAction(docks_.at(name)->toggleViewAction());
     viewMenu_->addSeparator();
     viewMenu_->addAction(action("reset-layout"));
 
     QMenu* help = menuBar()->addMenu(tr("&Help"));
+    help->addAction(action("formula-help"));
+    help->addAction(action("shortcuts"));
+    help->addSeparator();
     help->addAction(action("about"));
     for (QMenu* m : {file, run, viewMenu_, help}) m->setToolTipsVisible(true);
     updateSamplesMenu();
@@ -314,6 +396,8 @@ void MainWindow::createToolBars() {
 void MainWindow::createStatusBar() {
     statusSummary_ = new QLabel(this);
     statusSummary_->setToolTip(tr("Summary of the last run"));
+    statusSummary_->setMinimumWidth(100);
+    statusSummary_->setSizePolicy(QSizePolicy::Ignored, QSizePolicy::Preferred);  // a long summary never widens the window
     statusProgress_ = new QProgressBar(this);
     statusProgress_->setRange(0, 100);
     statusProgress_->setMaximumWidth(160);
@@ -332,13 +416,23 @@ void MainWindow::createStatusBar() {
 void MainWindow::readSettings() {
     QSettings settings;
     settings.beginGroup(settingsGroup());
+    const QRect available = screen() ? screen()->availableGeometry() : QRect(0, 0, 1280, 800);
     const QByteArray geometry = settings.value("geometry").toByteArray();
-    if (geometry.isEmpty())
-        resize(1500, 940);
-    else
-        restoreGeometry(geometry);
+    // A saved size is used only when it fits the screen it opens on (another monitor, a
+    // smaller resolution, or a size saved by an older version that let the window grow).
+    bool restored = false;
+    if (!geometry.isEmpty() && restoreGeometry(geometry)) {
+        restored = available.contains(frameGeometry()) || isMaximized();
+        if (!restored) setWindowState(Qt::WindowNoState);
+    }
+    if (!restored) {
+        const QSize wanted(std::min(1500, available.width() - 40), std::min(940, available.height() - 40));
+        resize(wanted.expandedTo(QSize(640, 480)).boundedTo(available.size()));
+        move(available.topLeft() + QPoint((available.width() - width()) / 2, (available.height() - height()) / 2));
+    }
+    fitToScreen();
     const QByteArray state = settings.value("layout").toByteArray();
-    if (!state.isEmpty()) restoreState(state);
+    if (restored && !state.isEmpty()) restoreState(state);
     // Before preferences existed the animation speed was kept with the window.
     const QVariant oldSpeed = settings.value("animation-speed");
     settings.endGroup();
@@ -415,6 +509,7 @@ void MainWindow::resetLayout() {
         dock->show();
     }
     restoreState(defaultLayout_);
+    fitToScreen();
 }
 
 void MainWindow::addRecentFile(const QString& path) {
@@ -467,7 +562,7 @@ void MainWindow::updateSamplesMenu() {
         QString title = QFileInfo(file).completeBaseName();
         QString tip = file;
         try {
-            const study::Study s = study::loadFile(file.toStdString());
+            const study::Study s = study::loadFileAsTyped(file.toStdString());
             if (!s.title.empty()) title = QString::fromStdString(s.title);
             if (!s.notes.empty()) tip = QString::fromStdString(s.notes);
         } catch (const std::exception&) {
@@ -475,11 +570,11 @@ void MainWindow::updateSamplesMenu() {
         }
         QAction* a = samplesMenu_->addAction(title);
         a->setToolTip(tip);
-        a->setStatusTip(QFileInfo(file).fileName());
+        a->setStatusTip(tr("Opens a copy of %1; saving asks for a new name").arg(QFileInfo(file).fileName()));
         connect(a, &QAction::triggered, this, [this, file] {
             if (!maybeSave()) return;
             QString error;
-            if (!openStudy(file, &error)) QMessageBox::warning(this, tr("Cannot open sample"), error);
+            if (!openStudy(file, &error, true)) QMessageBox::warning(this, tr("Cannot open sample"), error);
         });
     }
     if (samplesMenu_->isEmpty()) samplesMenu_->addAction(tr("(no samples found)"))->setEnabled(false);
@@ -488,31 +583,54 @@ void MainWindow::updateSamplesMenu() {
 // ---------------------------------------------------------------- document
 
 void MainWindow::newStudy() {
+    jobs_->cancelAll();
+    setPlaying(false);
     study_ = defaultStudy(preferences_);
     studyPath_.clear();
-    baseDirectory_ = QDir::currentPath();
+    copiedFrom_.clear();
+    baseDirectory_.clear();  // a table chosen now is kept by its full path until the study is saved
     presentStudy();
+}
+
+// Everything the previous study left on the views goes: runs, field, selection, readouts.
+void MainWindow::clearViews() {
+    snapshot_.reset();
+    field_.reset();
+    selection_ = {};
+    summary_.clear();
+    statusSummary_->clear();
+    lazyViews_.stop();
+    heldResample_.stop();
+    landscape_->clear();
+    for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(localModel_), static_cast<widgets::PlotView*>(curvature_),
+                                    static_cast<widgets::PlotView*>(progress_), static_cast<widgets::PlotView*>(slice_)}) {
+        view->setSelection({});
+        view->setSnapshot(nullptr);
+    }
+    steps_->setSnapshot(nullptr);
+    runSummary_->setSnapshot(nullptr);
+    derivatives_->clear();
 }
 
 // Shows study_ in the editors and views and starts from a clean slate (no selection, no
 // remembered view box, unmodified); newStudy and openStudy set study_ and its place first.
 void MainWindow::presentStudy() {
     loading_ = true;
+    clearViews();
     objectiveEditor_->setStudy(study_, baseDirectory_);
     lineupEditor_->setEntries(study_.methods);
     landscape_->setLogColour(study_.view.logColour);
     loading_ = false;
     hasViewBox_ = false;
-    selection_ = {};
     objective_.reset();
     rebuildObjective();
     setModified(false);
 }
 
-bool MainWindow::openStudy(const QString& path, QString* error) {
+bool MainWindow::openStudy(const QString& path, QString* error, bool asCopy) {
     study::Study loaded;
     try {
-        loaded = study::loadFile(path.toStdString());
+        loaded = study::loadFileAsTyped(path.toStdString());
     } catch (const study::StudyError& e) {
         if (error) *error = QStringLiteral("%1: %2: %3").arg(path, QString::fromStdString(e.place()), QString::fromStdString(e.problem()));
         return false;
@@ -523,19 +641,29 @@ bool MainWindow::openStudy(const QString& path, QString* error) {
     jobs_->cancelAll();
     setPlaying(false);
     study_ = loaded;
-    studyPath_ = QFileInfo(path).absoluteFilePath();
+    // A copy keeps the file's folder for its data path until it is saved somewhere else.
+    studyPath_ = asCopy ? QString() : QFileInfo(path).absoluteFilePath();
+    copiedFrom_ = asCopy ? QFileInfo(path).fileName() : QString();
     baseDirectory_ = QFileInfo(path).absolutePath();
     presentStudy();
-    addRecentFile(studyPath_);
+    if (!asCopy) addRecentFile(studyPath_);
     return true;
 }
 
+study::Study MainWindow::onScreenStudy() const {
+    study::Study shown = study_;  // title, notes, stopping rules, view settings
+    objectiveEditor_->apply(shown);
+    shown.methods = lineupEditor_->entries();
+    return shown;
+}
+
 bool MainWindow::saveStudy(const QString& path, QString* error) {
-    study::Study toSave = study_;
+    study::Study toSave = onScreenStudy();
+    const QString folder = QFileInfo(path).absolutePath();
     // A data file is referenced relative to the study: re-base it when saving elsewhere.
     if (toSave.fit && !toSave.fit->dataPath.empty()) {
         const QString absolute = QDir(baseDirectory_).absoluteFilePath(QString::fromStdString(toSave.fit->dataPath));
-        toSave.fit->dataPath = QFileInfo(path).absoluteDir().relativeFilePath(absolute).toStdString();
+        toSave.fit->dataPath = QDir(folder).relativeFilePath(absolute).toStdString();
     }
     std::string text;
     try {
@@ -550,20 +678,24 @@ bool MainWindow::saveStudy(const QString& path, QString* error) {
         if (error) *error = tr("Cannot write %1: %2").arg(path, file.errorString());
         return false;
     }
-    study_ = toSave;
+    // The study that runs moves with the file (its data path re-based the same way).
+    if (study_.fit && toSave.fit) study_.fit->dataPath = toSave.fit->dataPath;
     studyPath_ = QFileInfo(path).absoluteFilePath();
-    baseDirectory_ = QFileInfo(path).absolutePath();
+    copiedFrom_.clear();
+    baseDirectory_ = folder;
+    objectiveEditor_->setBaseDirectory(folder);
     setModified(false);
     addRecentFile(studyPath_);
+    rememberFolder(path);
     return true;
 }
 
 void MainWindow::openDialog() {
     if (!maybeSave()) return;
-    const QString dir = studyPath_.isEmpty() ? QDir::homePath() : QFileInfo(studyPath_).absolutePath();
     const QString path =
-        QFileDialog::getOpenFileName(this, tr("Open study"), dir, tr("Saddlewise studies (*.json);;All files (*)"));
+        QFileDialog::getOpenFileName(this, tr("Open study"), lastUsedFolder(), tr("Saddlewise studies (*.json);;All files (*)"));
     if (path.isEmpty()) return;
+    rememberFolder(path);
     QString error;
     if (!openStudy(path, &error)) QMessageBox::warning(this, tr("Cannot open study"), error);
 }
@@ -580,8 +712,10 @@ bool MainWindow::save() {
 }
 
 bool MainWindow::saveAsDialog() {
-    const QString suggested = studyPath_.isEmpty() ? QDir::home().filePath("study.json") : studyPath_;
-    QString path = QFileDialog::getSaveFileName(this, tr("Save study"), suggested, tr("Saddlewise studies (*.json)"));
+    const QString name = !studyPath_.isEmpty() ? QFileInfo(studyPath_).fileName()
+                         : !copiedFrom_.isEmpty() ? copiedFrom_
+                                                  : QStringLiteral("study.json");
+    QString path = QFileDialog::getSaveFileName(this, tr("Save study"), suggestedPath(name), tr("Saddlewise studies (*.json)"));
     if (path.isEmpty()) return false;
     if (QFileInfo(path).suffix().isEmpty()) path += ".json";
     QString error;
@@ -620,46 +754,148 @@ void MainWindow::setModified(bool modified) {
 }
 
 void MainWindow::updateTitle() {
-    const QString name = studyPath_.isEmpty() ? tr("Untitled") : QFileInfo(studyPath_).fileName();
+    QString name = studyPath_.isEmpty() ? tr("Untitled") : QFileInfo(studyPath_).fileName();
+    if (studyPath_.isEmpty() && !copiedFrom_.isEmpty()) name = tr("Untitled (copy of %1)").arg(copiedFrom_);
     setWindowTitle(QStringLiteral("%1%2 — Saddlewise").arg(name, modified_ ? "*" : ""));
+}
+
+// ---------------------------------------------------------------- help
+
+QString MainWindow::aboutText() {
+    // The job paragraph of README.md (tests/gui/window_test.cpp keeps the two the same).
+    return tr("Saddlewise is a desktop workbench for people who fit and tune models by numerical optimization — a "
+              "statistician whose nonlinear regression stalls, an engineer estimating parameters from test data, an ML "
+              "practitioner debugging a loss on a small problem — and who must find out why a fit zig-zags, stalls or "
+              "ends somewhere suspicious (a saddle, a long ill-conditioned valley, bad scaling, an indefinite Hessian "
+              "that sends Newton uphill), choose the method and settings that work, and show the evidence in a review. "
+              "You type an objective (a formula, or a model formula fitted to a CSV table), Saddlewise derives its "
+              "exact gradient and Hessian symbolically, runs several methods side by side from the starts you choose, "
+              "and shows the landscape, the iterate paths, the local quadratic model and the Hessian's eigenvalues at "
+              "any iterate; plots, numbers and step tables export, and a headless command line serves scripts and CI.");
+}
+
+QString MainWindow::formulaSyntaxText() {
+    return tr(
+        "<h3>Formulas</h3>"
+        "<p>A formula is written in your own names: the variables (or, in a fit, the parameters and the table's "
+        "columns). Names are letters, digits and _, not starting with a digit.</p>"
+        "<table cellspacing=4>"
+        "<tr><td><code>+ - * /</code></td><td>arithmetic</td></tr>"
+        "<tr><td><code>^</code></td><td>power, right to left (<code>2^3^2</code> is 2^9); a leading minus binds "
+        "weaker: <code>-x^2</code> is −(x²)</td></tr>"
+        "<tr><td><code>( )</code></td><td>grouping</td></tr>"
+        "<tr><td><code>&lt; &lt;= &gt; &gt;= == !=</code></td><td>comparisons, 1 or 0</td></tr>"
+        "<tr><td><code>&amp;&amp; ||</code></td><td>and, or (non-zero is true)</td></tr>"
+        "<tr><td><code>c ? a : b</code></td><td>a where c is non-zero, else b</td></tr>"
+        "<tr><td><code>sin cos tan asin acos atan sinh cosh tanh asinh acosh atanh</code></td><td>trigonometric and "
+        "hyperbolic</td></tr>"
+        "<tr><td><code>exp log ln log10 log2 sqrt abs sign</code></td><td><code>log</code> and <code>ln</code> are both "
+        "the natural logarithm</td></tr>"
+        "<tr><td><code>atan2(y, x)</code></td><td>angle of the point (x, y)</td></tr>"
+        "<tr><td><code>min(a, b, …) max(a, b, …)</code></td><td>two or more arguments</td></tr>"
+        "<tr><td><code>pi e</code></td><td>constants (a variable of the same name wins)</td></tr>"
+        "<tr><td><code>2.5e-3</code></td><td>numbers use a decimal point, never a comma</td></tr>"
+        "</table>"
+        "<p>Derivatives are exact: <code>abs</code> has slope sign(u) (0 at 0), <code>sign</code> and comparisons "
+        "have slope 0, <code>c ? a : b</code> takes the slope of the branch taken, <code>min</code>/<code>max</code> "
+        "the slope of the argument chosen.</p>"
+        "<p>A formula may be up to %1 characters long and nest %2 levels of parentheses. Mistakes are marked where "
+        "they are as you type; a name that is not declared can be added as a variable in one click.</p>"
+        "<h3>Fits</h3>"
+        "<p>The model is a formula in the table's columns and the parameters; the response is the column it should "
+        "reproduce. The loss adds up the residuals r = response − model: least squares ½Σr², weighted ½Σwr², Huber "
+        "and Cauchy (robust, with a scale), logistic regression (the model is the log-odds, the response 0 or 1), "
+        "Poisson counts (the model is the log of the mean).</p>")
+        .arg(expr::kMaxFormulaLength)
+        .arg(expr::kMaxNestingDepth);
+}
+
+QString MainWindow::shortcutsText() const {
+    QString rows;
+    for (const QString& name : {QStringLiteral("new"), QStringLiteral("open"), QStringLiteral("save"),
+                                QStringLiteral("save-as"), QStringLiteral("run-all"), QStringLiteral("step-all"),
+                                QStringLiteral("play"), QStringLiteral("reset"), QStringLiteral("cancel"),
+                                QStringLiteral("export-view"), QStringLiteral("export-steps"),
+                                QStringLiteral("preferences"), QStringLiteral("formula-help"), QStringLiteral("quit")}) {
+        const QAction* a = action(name);
+        if (!a || a->shortcut().isEmpty()) continue;
+        QString text = a->text();
+        text.remove('&');
+        text.remove(QStringLiteral("…"));
+        rows += QStringLiteral("<tr><td><b>%1</b></td><td>%2</td><td>%3</td></tr>")
+                    .arg(a->shortcut().toString(QKeySequence::NativeText).toHtmlEscaped(), text.toHtmlEscaped(),
+                         a->statusTip().toHtmlEscaped());
+    }
+    return tr("<h3>Keyboard shortcuts</h3><table cellspacing=6>%1</table>"
+              "<p>On the landscape: drag the start marker (⊕) to move every method's start, click an iterate to "
+              "select it, click elsewhere to start from there; the wheel zooms and a drag pans. On the local model, a "
+              "click on the legend moves it to the next corner.</p>")
+        .arg(rows);
+}
+
+void MainWindow::showHelpText(const QString& title, const QString& html) {
+    auto* dialog = new QDialog(this);
+    dialog->setAttribute(Qt::WA_DeleteOnClose);
+    dialog->setWindowTitle(title);
+    auto* text = new QTextBrowser(dialog);
+    text->setHtml(html);
+    text->setOpenExternalLinks(false);
+    text->setToolTip(title);
+    auto* buttons = new QDialogButtonBox(QDialogButtonBox::Close, dialog);
+    connect(buttons, &QDialogButtonBox::rejected, dialog, &QDialog::reject);
+    auto* layout = new QVBoxLayout(dialog);
+    layout->addWidget(text);
+    layout->addWidget(buttons);
+    const QRect available = screen() ? screen()->availableGeometry() : QRect(0, 0, 1280, 800);
+    dialog->resize(std::min(680, available.width() - 80), std::min(620, available.height() - 80));
+    dialog->show();
 }
 
 void MainWindow::about() {
     QMessageBox::about(this, tr("About Saddlewise"),
-                       tr("<b>Saddlewise</b> %1<br>A workbench for watching optimization methods step across an "
-                          "objective: exact gradients and Hessians, paths side by side, the local quadratic model "
-                          "and the Hessian's eigenvalues at every iterate.")
-                           .arg(QCoreApplication::applicationVersion()));
+                       tr("<b>Saddlewise</b> %1<p>%2</p><p>A fit is only as good as its model and its data: check "
+                          "results independently before relying on them, and where safety is involved defer to the "
+                          "applicable codes and licensed professional practice.</p>")
+                           .arg(QCoreApplication::applicationVersion(), aboutText().toHtmlEscaped()));
 }
 
 // ---------------------------------------------------------------- objective, lineup, runs
 
+void MainWindow::showBuildProblem(const std::exception& problem) {
+    if (const auto* formula = dynamic_cast<const expr::FormulaError*>(&problem)) {
+        QStringList names;
+        for (const std::string& name : formula->unknownNames()) names << QString::fromStdString(name);
+        objectiveEditor_->showFormulaError(QString::fromStdString(formula->reason()), formula->position(), names);
+    } else if (const auto* place = dynamic_cast<const study::StudyError*>(&problem)) {
+        objectiveEditor_->showProblem(
+            QStringLiteral("%1: %2").arg(QString::fromStdString(place->place()), QString::fromStdString(place->problem())),
+            QString::fromStdString(place->place()));
+    } else {
+        objectiveEditor_->showProblem(QString::fromUtf8(problem.what()));
+    }
+}
+
 void MainWindow::rebuildObjective() {
     if (loading_) return;
-    study::Study candidate = study_;
-    objectiveEditor_->apply(candidate);
-    candidate.methods = lineupEditor_->entries();
+    study::Study candidate = onScreenStudy();
+    if (candidate.fit && candidate.fit->dataPath.empty()) {
+        objectiveEditor_->showProblem(tr("Choose the table to fit (Choose… beside Table)."));
+        return;
+    }
     std::shared_ptr<const Objective> built;
     try {
+        study::checkVariables(candidate);
         objectiveEditor_->parseActiveFormula(candidate);
         built = study::makeObjective(candidate, baseDirectory_.toStdString());
-    } catch (const expr::FormulaError& e) {
-        objectiveEditor_->showFormulaError(QString::fromStdString(e.reason()), e.position());
-        return;  // the last good objective and its results stay on screen
-    } catch (const study::StudyError& e) {
-        objectiveEditor_->showProblem(QStringLiteral("%1: %2").arg(QString::fromStdString(e.place()),
-                                                                    QString::fromStdString(e.problem())));
-        return;
     } catch (const std::exception& e) {
-        objectiveEditor_->showProblem(QString::fromUtf8(e.what()));
-        return;
+        showBuildProblem(e);
+        return;  // the last good objective and its results stay on screen
     }
     if (!built) {
         objectiveEditor_->showProblem(tr("This objective cannot be built"));
         return;
     }
     objectiveEditor_->clearProblem();
-    const bool changed = objective_ != nullptr;
     const bool sameRanges = objective_ && study_.variables.size() == candidate.variables.size() &&
                             std::equal(study_.variables.begin(), study_.variables.end(), candidate.variables.begin(),
                                        [](const study::Variable& a, const study::Variable& b) {
@@ -668,8 +904,7 @@ void MainWindow::rebuildObjective() {
     if (!sameRanges) hasViewBox_ = false;
     study_ = candidate;
     objective_ = built;
-    objectiveEditor_->showDerivatives(study_);
-    if (changed) setModified(true);
+    derivatives_->showDerivatives(study_, objectiveEditor_->columnNames());
     restart();
 }
 
@@ -685,13 +920,24 @@ void MainWindow::onLineupEdited() {
 
 void MainWindow::onPlotAxesChanged() {
     if (loading_) return;
-    objectiveEditor_->apply(study_);
+    const study::Study shown = onScreenStudy();
+    study_.view.plotX = shown.view.plotX;
+    study_.view.plotY = shown.view.plotY;
     hasViewBox_ = false;
     setModified(true);
     if (snapshot_) {
         auto copy = std::make_shared<widgets::Snapshot>(*snapshot_);
         copy->plotX = study_.view.plotX;
         copy->plotY = study_.view.plotY;
+        pushSnapshot(copy);
+    }
+    requestField();
+}
+
+void MainWindow::onHeldValuesEdited() {
+    if (snapshot_) {
+        auto copy = std::make_shared<widgets::Snapshot>(*snapshot_);
+        copy->held = heldVector();
         pushSnapshot(copy);
     }
     requestField();
@@ -714,8 +960,7 @@ RunRequest MainWindow::runRequest() const {
     RunRequest request;
     request.objective = objective_;
     request.start = start();
-    request.rules.maxIterations = study_.maxIterations;
-    request.rules.gradientTolerance = study_.gradientTolerance;
+    request.rules = study_.stoppingRules();
     int index = 0;
     for (const auto& e : study_.methods) {
         const int slot = index++;
@@ -754,7 +999,7 @@ void MainWindow::setPlaying(bool on) {
         const QSignalBlocker block(play);
         play->setChecked(on);
         play->setText(on ? tr("&Pause") : tr("&Play"));
-        play->setIcon(style()->standardIcon(on ? QStyle::SP_MediaPause : QStyle::SP_MediaPlay));
+        play->setIcon(toolIcon(on ? "pause" : "play", palette()));
     }
     if (on == animation_.isActive()) return;
     if (on) {
@@ -837,14 +1082,22 @@ analyze::Box MainWindow::homeBox() const {
 }
 
 Vector MainWindow::heldVector() const {
+    const int n = static_cast<int>(study_.variables.size());
+    Vector held = start();
     if (snapshot_ && selection_.valid() && selection_.track < static_cast<int>(snapshot_->tracks.size())) {
         const auto& run = snapshot_->tracks[static_cast<std::size_t>(selection_.track)].run;
         if (run && selection_.iteration < static_cast<int>(run->trace.size())) {
             const Vector& x = run->trace[static_cast<std::size_t>(selection_.iteration)].x;
-            if (x.size() == static_cast<Eigen::Index>(study_.variables.size())) return x;
+            if (x.size() == n) held = x;
         }
     }
-    return start();
+    // Values typed for the variables that are not plotted replace the iterate's.
+    if (n > 2 && !objectiveEditor_->heldFollowsSelection()) {
+        const Vector typed = objectiveEditor_->typedHeldValues();
+        for (int i = 0; i < n && i < typed.size(); ++i)
+            if (i != study_.view.plotX && i != study_.view.plotY && std::isfinite(typed(i))) held(i) = typed(i);
+    }
+    return held;
 }
 
 void MainWindow::requestField() {
@@ -872,19 +1125,7 @@ void MainWindow::requestField() {
 }
 
 void MainWindow::updateHeldText() {
-    const int n = static_cast<int>(study_.variables.size());
-    if (n <= 2) {
-        objectiveEditor_->setHeldText({});
-        return;
-    }
-    const Vector held = heldVector();
-    QStringList parts;
-    for (int i = 0; i < n; ++i) {
-        if (i == study_.view.plotX || i == study_.view.plotY) continue;
-        parts << QStringLiteral("%1 = %2").arg(QString::fromStdString(study_.variables[static_cast<std::size_t>(i)].name),
-                                               humanNumber(held(i)));
-    }
-    objectiveEditor_->setHeldText(tr("Held at the selected iterate: %1").arg(parts.join(", ")));
+    if (study_.variables.size() > 2) objectiveEditor_->setHeldValues(heldVector());
 }
 
 void MainWindow::showRuns(std::shared_ptr<const RunBatch> batch) {
@@ -923,12 +1164,14 @@ void MainWindow::showRuns(std::shared_ptr<const RunBatch> batch) {
     // Status bar summary.
     int converged = 0, failed = 0;
     double best = std::numeric_limits<double>::infinity();
-    QString bestLabel;
+    QString bestLabel, firstFailure;
     for (const auto& t : snap->tracks) {
         if (!t.run) continue;
         if (solve::isConvergence(t.run->termination)) ++converged;
-        if (t.run->termination == solve::Termination::Failed || t.run->termination == solve::Termination::NonFinite)
+        if (widgets::RunSummaryModel::failed(*t.run)) {
             ++failed;
+            if (firstFailure.isEmpty()) firstFailure = QStringLiteral("%1: %2").arg(t.label, QString::fromStdString(t.run->message));
+        }
         if (std::isfinite(t.run->value) && t.run->value < best) {
             best = t.run->value;
             bestLabel = t.label;
@@ -946,13 +1189,17 @@ void MainWindow::showRuns(std::shared_ptr<const RunBatch> batch) {
         if (batch->cancelled) summary_ += tr(" (cancelled)");
     }
     if (!bestLabel.isEmpty()) summary_ += tr("; lowest f = %1 (%2)").arg(humanNumber(best), bestLabel);
+    // When nothing got anywhere the reason is what matters (details in the Summary panel).
+    if (failed > 0 && failed == count) summary_ += tr(" — %1").arg(firstFailure);
     statusSummary_->setText(summary_);
+    statusSummary_->setToolTip(failed > 0 ? tr("See the Summary panel for each method's message") : tr("Summary of the last run"));
+    if (failed > 0 && failed == count) docks_.at("summary")->raise();
     if (study_.variables.size() > 2) heldResample_.start();
     emit runsShown();
 }
 
 // The landscape follows every result at once (it is what a drag looks at); the other views
-// and the table catch up 40 ms after the last result, so a continuous drag or a fast
+// and the tables catch up 40 ms after the last result, so a continuous drag or a fast
 // animation redraws one plot per frame rather than six.
 void MainWindow::pushSnapshot(std::shared_ptr<const widgets::Snapshot> snapshot) {
     snapshot_ = std::move(snapshot);
@@ -969,9 +1216,11 @@ void MainWindow::updateOtherViews() {
     }
     steps_->setSnapshot(snapshot_);
     steps_->setSelection(selection_);
+    runSummary_->setSnapshot(snapshot_);
 }
 
 void MainWindow::showField(std::shared_ptr<const widgets::FieldSnapshot> field) {
+    if (!objective_) return;
     field_ = std::move(field);
     landscape_->setField(field_);
     emit fieldShown();
@@ -991,7 +1240,7 @@ void MainWindow::setSelection(const widgets::Selection& selection) {
     steps_->setSelection(selection_);
     if (study_.variables.size() > 2) {
         updateHeldText();
-        heldResample_.start();
+        if (objectiveEditor_->heldFollowsSelection()) heldResample_.start();
     }
 }
 
@@ -1039,13 +1288,36 @@ widgets::PlotView* MainWindow::viewByName(const QString& name) const {
     return nullptr;
 }
 
-bool MainWindow::exportView(const QString& viewName, const QString& path, int width, int height, QString* error) {
+QString MainWindow::figureTitle() const {
+    QString title = study_.fit ? tr("%1 = %2 fitted to %3")
+                                     .arg(QString::fromStdString(study_.fit->response), QString::fromStdString(study_.fit->model),
+                                          QFileInfo(QString::fromStdString(study_.fit->dataPath)).fileName())
+                               : tr("f = %1").arg(QString::fromStdString(study_.formula));
+    const int n = static_cast<int>(study_.variables.size());
+    if (n > 2) {
+        const Vector held = heldVector();
+        QStringList parts;
+        for (int i = 0; i < n && i < held.size(); ++i) {
+            if (i == study_.view.plotX || i == study_.view.plotY) continue;
+            parts << QStringLiteral("%1 = %2").arg(QString::fromStdString(study_.variables[static_cast<std::size_t>(i)].name),
+                                                   humanNumber(held(i)));
+        }
+        title += tr("; held at %1").arg(parts.join(QStringLiteral(", ")));
+    }
+    return title;
+}
+
+bool MainWindow::exportView(const QString& viewName, const QString& path, int width, int height, QString* error,
+                            const ExportLook& look) {
     widgets::PlotView* view = viewByName(viewName);
     if (!view) {
         if (error) *error = tr("unknown view '%1'; known: %2").arg(viewName, viewNames().join(", "));
         return false;
     }
-    return widgets::exportPlot(view->plot(), path, width, height, error);
+    widgets::FigureLook figure;
+    figure.light = look.light;
+    if (look.title) figure.title = figureTitle();
+    return view->exportFigure(path, width, height, figure, error);
 }
 
 bool MainWindow::exportStepsCsv(const QString& path, QString* error) {
@@ -1084,33 +1356,44 @@ void MainWindow::exportViewDialog() {
     format->addItems({"png", "svg", "pdf"});
     format->setCurrentIndex(std::max(0, format->findText(preferences_.exportFormat)));
     format->setToolTip(tr("PNG for pictures, SVG or PDF for scalable drawings"));
+    auto* light = new QCheckBox(tr("Light background, for print"), &dialog);
+    light->setChecked(true);
+    light->setToolTip(tr("Draw the figure on white whatever the window's appearance; untick to keep the window's look"));
+    auto* title = new QCheckBox(tr("Title line with the formula and held values"), &dialog);
+    title->setToolTip(figureTitle());
     auto* buttons = new QDialogButtonBox(QDialogButtonBox::Save | QDialogButtonBox::Cancel, &dialog);
     auto* form = new QFormLayout(&dialog);
     form->addRow(tr("View"), view);
     form->addRow(tr("Width"), width);
     form->addRow(tr("Height"), height);
     form->addRow(tr("Format"), format);
+    form->addRow(light);
+    form->addRow(title);
     form->addRow(buttons);
     connect(buttons, &QDialogButtonBox::accepted, &dialog, &QDialog::accept);
     connect(buttons, &QDialogButtonBox::rejected, &dialog, &QDialog::reject);
     if (dialog.exec() != QDialog::Accepted) return;
     const QString suffix = format->currentText();
     QString path = QFileDialog::getSaveFileName(this, tr("Export view"),
-                                                QDir::home().filePath(view->currentData().toString() + "." + suffix),
+                                                suggestedPath(view->currentData().toString() + "." + suffix),
                                                 suffix.toUpper() + QStringLiteral(" (*.%1)").arg(suffix));
     if (path.isEmpty()) return;
+    rememberFolder(path);
     if (QFileInfo(path).suffix().isEmpty()) path += "." + suffix;
     QString error;
-    if (!exportView(view->currentData().toString(), path, width->value(), height->value(), &error))
+    ExportLook look;
+    look.light = light->isChecked();
+    look.title = title->isChecked();
+    if (!exportView(view->currentData().toString(), path, width->value(), height->value(), &error, look))
         QMessageBox::warning(this, tr("Cannot export"), error);
     else
         statusBar()->showMessage(tr("Saved %1").arg(path), 4000);
 }
 
 void MainWindow::exportStepsDialog() {
-    QString path = QFileDialog::getSaveFileName(this, tr("Export steps"), QDir::home().filePath("steps.csv"),
-                                                tr("CSV tables (*.csv)"));
+    QString path = QFileDialog::getSaveFileName(this, tr("Export steps"), suggestedPath("steps.csv"), tr("CSV tables (*.csv)"));
     if (path.isEmpty()) return;
+    rememberFolder(path);
     if (QFileInfo(path).suffix().isEmpty()) path += ".csv";
     QString error;
     if (!exportStepsCsv(path, &error))

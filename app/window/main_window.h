@@ -1,6 +1,10 @@
 #pragma once
 // The workbench window: every view in a dock, one place for actions, a job runner for
 // all computation, the study as the document (open, save, recent files, samples).
+//
+// Docks are made in one place, createDocks(), with addViewDock(); their default arrangement is
+// placeDocks(). Adding a view is: build the widget, addViewDock(name, title, widget, tip), and
+// one line in placeDocks() saying where it goes (see docs/window.md).
 
 #include "app/window/job_runner.h"
 #include "app/window/preferences.h"
@@ -17,6 +21,7 @@
 
 class QAction;
 class QDockWidget;
+class QScrollArea;
 class QLabel;
 class QMenu;
 class QProgressBar;
@@ -30,6 +35,7 @@ class CurvatureView;
 class ProgressView;
 class SliceView;
 class StepsTable;
+class RunSummary;
 class PlotView;
 }  // namespace sw::widgets
 
@@ -37,6 +43,14 @@ namespace sw::window {
 
 class ObjectiveEditor;
 class LineupEditor;
+class DerivativesPane;
+
+// How an exported figure looks. By default print-ready: light background whatever the
+// window's appearance, text at least 10 pt, no interaction hints.
+struct ExportLook {
+    bool light = true;     // false: the window's own appearance (dark when it is dark)
+    bool title = false;    // a title line: the formula (or model) and the held values
+};
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -45,10 +59,17 @@ public:
     ~MainWindow() override;
 
     // Document. openStudy reports the first problem with its place in *error (no dialog).
-    bool openStudy(const QString& path, QString* error = nullptr);
+    // A study's content that does not parse (a bad formula, a number typed as text, a table
+    // that cannot be read) does not stop it opening: it is shown as saved, with the problem.
+    // asCopy: opens the file as a new untitled study (samples), so Save never overwrites it.
+    bool openStudy(const QString& path, QString* error = nullptr, bool asCopy = false);
+    // Writes what is on screen (onScreenStudy), including fields that do not parse yet.
     bool saveStudy(const QString& path, QString* error = nullptr);
     void newStudy();
+    // The study that runs: the last one whose objective could be built.
     const study::Study& study() const { return study_; }
+    // The study as the editors show it now (what Save writes).
+    study::Study onScreenStudy() const;
     QString studyPath() const { return studyPath_; }
     bool isModified() const { return modified_; }
     // Sample study files found next to the sources or the installed program.
@@ -56,7 +77,10 @@ public:
 
     // Exports. viewName is one of viewNames(); the format follows the file suffix.
     QStringList viewNames() const;
-    bool exportView(const QString& viewName, const QString& path, int width, int height, QString* error = nullptr);
+    bool exportView(const QString& viewName, const QString& path, int width, int height, QString* error = nullptr,
+                    const ExportLook& look = {});
+    // The title line of an exported figure: formula (or model and response) and held values.
+    QString figureTitle() const;
     bool exportStepsCsv(const QString& path, QString* error = nullptr);
 
     // State, for tests, screenshots and benchmarks.
@@ -73,12 +97,27 @@ public:
     widgets::ProgressView* progressView() const { return progress_; }
     widgets::SliceView* slice() const { return slice_; }
     widgets::StepsTable* steps() const { return steps_; }
+    widgets::RunSummary* runSummary() const { return runSummary_; }
+    DerivativesPane* derivatives() const { return derivatives_; }
+    QDockWidget* dock(const QString& name) const;
+    // Dock names in the order of the View menu.
+    QStringList dockNames() const { return dockOrder_; }
     ObjectiveEditor* objectiveEditor() const { return objectiveEditor_; }
     LineupEditor* lineupEditor() const { return lineupEditor_; }
     QAction* action(const QString& name) const;
+    // Values of every variable the landscape holds fixed (the plotted two included, at the
+    // selected iterate or start): the selected iterate, or the values typed in the editor.
+    Vector heldVector() const;
+    // Help texts (also shown from the Help menu).
+    static QString formulaSyntaxText();
+    QString shortcutsText() const;
+    static QString aboutText();
     bool playing() const { return animation_.isActive(); }
     // Waits (processing events) until no job is in flight and the views are up to date.
     bool waitForIdle(int timeoutMs = 30000);
+
+    // Resizes the window and lays the docks out in the default proportions for that size.
+    void setInitialSize(const QSize& size);
 
     // Preferences (kept in QSettings, applied at once; see preferences.h).
     const Preferences& preferences() const { return preferences_; }
@@ -109,11 +148,21 @@ signals:
 
 protected:
     void closeEvent(QCloseEvent* event) override;
+    void changeEvent(QEvent* event) override;
 
 private:
     void presentStudy();
+    void clearViews();
     void createViews();
     void createDocks();
+    // Makes a dock for `content` (wrapped in a scroll area when it is an editor, so a short
+    // panel scrolls instead of squeezing its controls over each other) and lists it in the View menu.
+    QDockWidget* addViewDock(const QString& name, const QString& title, QWidget* content, const QString& tip,
+                             bool scrolls = false);
+    void placeDocks();
+    void fitToScreen();
+    void refreshIcons();
+    void showHelpText(const QString& title, const QString& html);
     void createActions();
     void createMenus();
     void createToolBars();
@@ -134,15 +183,16 @@ private:
     void updateRecentMenu();
     void updateSamplesMenu();
     void setModified(bool modified);
+    void showBuildProblem(const std::exception& problem);
     void updateTitle();
 
     void rebuildObjective();
     void onLineupEdited();
+    void onHeldValuesEdited();
     void onPlotAxesChanged();
     void restart();
     RunRequest runRequest() const;
     void requestField();
-    Vector heldVector() const;
     analyze::Box homeBox() const;
     void showRuns(std::shared_ptr<const RunBatch> batch);
     void showField(std::shared_ptr<const widgets::FieldSnapshot> field);
@@ -161,7 +211,8 @@ private:
     // Document.
     study::Study study_;
     QString studyPath_;
-    QString baseDirectory_;
+    QString baseDirectory_;  // the study file's folder; empty for a new study not yet saved
+    QString copiedFrom_;     // the sample an untitled study was opened from
     bool modified_ = false;
     bool loading_ = false;
 
@@ -187,9 +238,12 @@ private:
     widgets::ProgressView* progress_ = nullptr;
     widgets::SliceView* slice_ = nullptr;
     widgets::StepsTable* steps_ = nullptr;
+    widgets::RunSummary* runSummary_ = nullptr;
+    DerivativesPane* derivatives_ = nullptr;
     ObjectiveEditor* objectiveEditor_ = nullptr;
     LineupEditor* lineupEditor_ = nullptr;
     std::map<QString, QDockWidget*> docks_;
+    QStringList dockOrder_;
     QByteArray defaultLayout_;
 
     // Actions, menus, status.

@@ -2,9 +2,11 @@
 #include "core/expr/expr.h"
 
 #include "app/window/objective_editor.h"
+#include "app/window/file_dialogs.h"
 #include "core/objective/table.h"
 #include "widgets/theme.h"
 
+#include <QCheckBox>
 #include <QComboBox>
 #include <QDir>
 #include <QDoubleSpinBox>
@@ -19,10 +21,9 @@
 #include <QLineEdit>
 #include <QPlainTextEdit>
 #include <QPushButton>
-#include <QSplitter>
+#include <QRegularExpression>
 #include <QTabWidget>
 #include <QTableWidget>
-#include <QTextBlock>
 #include <QVBoxLayout>
 #include <cmath>
 
@@ -31,36 +32,57 @@ namespace sw::window {
 namespace {
 
 enum VariableColumn { NameColumn, StartColumn, LowerColumn, UpperColumn, VariableColumnCount };
+enum HeldColumn { HeldName, HeldValue, HeldColumnCount };
 
+// Numbers as the tables show them. The exact value rides along in the item (Qt::UserRole), so
+// a value the user did not retype keeps every bit (a dragged start, a value read from a file).
 QString numberText(double v) { return QString::number(v, 'g', 10); }
 
-// Derivative formulas get long; the panes show at most this much of each.
-constexpr int kMaxShownFormula = 4000;
+QTableWidgetItem* numberItem(double value) {
+    auto* item = new QTableWidgetItem(numberText(value));
+    item->setData(Qt::UserRole, value);
+    return item;
+}
 
-QString clipped(const std::string& text) {
-    QString s = QString::fromStdString(text);
-    if (s.size() > kMaxShownFormula) s = s.left(kMaxShownFormula) + QObject::tr(" … (%1 characters)").arg(text.size());
-    return s;
+// The number in a cell: the exact value behind it when its text is still the value's own,
+// else the text read as a number (ok = false when it does not read as one).
+double cellNumber(const QTableWidgetItem* item, bool* ok) {
+    *ok = false;
+    if (!item) return std::nan("");
+    const QString text = item->text().trimmed();
+    const QVariant exact = item->data(Qt::UserRole);
+    if (exact.isValid() && exact.canConvert<double>() && numberText(exact.toDouble()) == text) {
+        *ok = true;
+        return exact.toDouble();
+    }
+    const double value = text.toDouble(ok);  // C locale: the decimal point is '.'
+    return *ok ? value : std::nan("");
 }
 
 QPlainTextEdit* makeFormulaEdit(QWidget* parent, const QString& placeholder, const QString& tip) {
     auto* edit = new QPlainTextEdit(parent);
     edit->setPlaceholderText(placeholder);
     edit->setToolTip(tip);
-    QFont mono = QFontDatabase::systemFont(QFontDatabase::FixedFont);
-    edit->setFont(mono);
+    edit->setFont(QFontDatabase::systemFont(QFontDatabase::FixedFont));
     edit->setTabChangesFocus(true);
-    edit->setMaximumHeight(edit->fontMetrics().lineSpacing() * 5 + 12);
+    const int line = edit->fontMetrics().lineSpacing();
+    edit->setMinimumHeight(line * 2 + 12);
+    edit->setMaximumHeight(line * 4 + 12);
+    edit->setSizePolicy(QSizePolicy::Expanding, QSizePolicy::Preferred);
     return edit;
 }
 
-QPlainTextEdit* makeReadOnlyPane(QWidget* parent, const QString& tip) {
-    auto* pane = new QPlainTextEdit(parent);
-    pane->setReadOnly(true);
-    pane->setFont(QFontDatabase::systemFont(QFontDatabase::FixedFont));
-    pane->setToolTip(tip);
-    pane->setLineWrapMode(QPlainTextEdit::WidgetWidth);
-    return pane;
+// A table that asks for `rows` rows of height and may be squeezed to `fewest`.
+void sizeTableForRows(QTableWidget* table, int rows, int fewest) {
+    const int header = table->horizontalHeader()->isVisible() ? table->horizontalHeader()->sizeHint().height() : 0;
+    const int row = table->verticalHeader()->defaultSectionSize();
+    table->setMinimumHeight(header + fewest * row + 4);
+    table->setMaximumHeight(header + rows * row + 4);
+}
+
+bool isIdentifier(const QString& name) {
+    static const QRegularExpression identifier(QStringLiteral("^[A-Za-z_][A-Za-z0-9_]*$"));
+    return identifier.match(name).hasMatch();
 }
 
 }  // namespace
@@ -82,16 +104,18 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     message_->setTextInteractionFlags(Qt::TextSelectableByMouse);
     message_->setToolTip(tr("What is wrong with the objective as typed; the last good one stays on screen"));
     message_->setVisible(false);
+    fix_ = new QPushButton(this);
+    fix_->setToolTip(tr("Fix the problem above in one step"));
+    fix_->setVisible(false);
+    connect(fix_, &QPushButton::clicked, this, &ObjectiveEditor::applyFix);
 
     variables_ = new QTableWidget(0, VariableColumnCount, this);
     variables_->setHorizontalHeaderLabels({tr("Name"), tr("Start"), tr("Plot from"), tr("Plot to")});
     variables_->horizontalHeader()->setSectionResizeMode(QHeaderView::Stretch);
     variables_->verticalHeader()->setVisible(false);
-    // Room for four variables before scrolling.
-    variables_->setMinimumHeight(variables_->horizontalHeader()->sizeHint().height() +
-                                 4 * variables_->verticalHeader()->defaultSectionSize() + 4);
+    sizeTableForRows(variables_, 6, 2);
+    variables_->setSizePolicy(QSizePolicy::Expanding, QSizePolicy::MinimumExpanding);
     variables_->setToolTip(tr("Variables (or fit parameters): name, start value and the range shown on the plots"));
-    variables_->horizontalHeaderItem(NameColumn)->setToolTip(tr("Name used in the formula"));
     variables_->horizontalHeaderItem(StartColumn)->setToolTip(tr("Where every method starts"));
     variables_->horizontalHeaderItem(LowerColumn)->setToolTip(tr("Lower end of the plotted range"));
     variables_->horizontalHeaderItem(UpperColumn)->setToolTip(tr("Upper end of the plotted range"));
@@ -107,24 +131,52 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     plotX_->setToolTip(tr("Variable along the horizontal axis of the landscape"));
     plotY_ = new QComboBox(this);
     plotY_->setToolTip(tr("Variable along the vertical axis of the landscape"));
-    held_ = new QLabel(this);
-    held_->setWordWrap(true);
-    held_->setToolTip(tr("With more than two variables, the others are held at the selected iterate"));
     auto axisChanged = [this] {
-        if (!loading_) emit plotAxesChanged();
+        if (loading_) return;
+        refreshHeldRows();
+        refreshNotices();
+        emit changed();
+        emit plotAxesChanged();
     };
     connect(plotX_, &QComboBox::currentIndexChanged, this, axisChanged);
     connect(plotY_, &QComboBox::currentIndexChanged, this, axisChanged);
 
-    gradient_ = makeReadOnlyPane(this, tr("The exact gradient, as formulas"));
-    hessian_ = makeReadOnlyPane(this, tr("The exact Hessian (upper triangle), as formulas"));
-    auto* derivatives = new QTabWidget(this);
-    derivatives->addTab(gradient_, tr("Gradient"));
-    derivatives->addTab(hessian_, tr("Hessian"));
-    derivatives->setToolTip(tr("Exact derivatives, derived symbolically from the formula"));
+    notice_ = new QLabel(this);
+    notice_->setWordWrap(true);
+    notice_->setToolTip(tr("Things worth knowing about the values above (not errors)"));
+    notice_->setVisible(false);
+
+    // Held values of the variables that are not plotted (n > 2).
+    heldBox_ = new QWidget(this);
+    follow_ = new QCheckBox(tr("Hold the others at the selected iterate"), heldBox_);
+    follow_->setChecked(true);
+    follow_->setToolTip(tr("The landscape is a slice through the other variables: at the selected iterate, "
+                           "or at the values typed below"));
+    held_ = new QTableWidget(0, HeldColumnCount, heldBox_);
+    held_->setHorizontalHeaderLabels({tr("Held variable"), tr("Value")});
+    held_->horizontalHeader()->setSectionResizeMode(QHeaderView::Stretch);
+    held_->verticalHeader()->setVisible(false);
+    sizeTableForRows(held_, 3, 1);
+    held_->setToolTip(tr("Values of the variables that are not plotted; type a value to hold it there"));
+    connect(follow_, &QCheckBox::toggled, this, [this] {
+        if (!loading_) emit heldValuesEdited();
+    });
+    connect(held_, &QTableWidget::itemChanged, this, [this](QTableWidgetItem* item) {
+        if (loading_ || !item || item->column() != HeldValue) return;
+        loading_ = true;
+        follow_->setChecked(false);  // a typed value holds still
+        loading_ = false;
+        emit heldValuesEdited();
+    });
+    auto* heldLayout = new QVBoxLayout(heldBox_);
+    heldLayout->setContentsMargins(0, 0, 0, 0);
+    heldLayout->addWidget(follow_);
+    heldLayout->addWidget(held_);
+    heldBox_->setVisible(false);
 
     auto* buttons = new QHBoxLayout;
-    buttons->addWidget(new QLabel(tr("Variables"), this));
+    variablesLabel_ = new QLabel(tr("Variables"), this);
+    buttons->addWidget(variablesLabel_);
     buttons->addStretch(1);
     buttons->addWidget(add);
     buttons->addWidget(remove);
@@ -137,25 +189,21 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     against->setToolTip(plotY_->toolTip());
     axes->addWidget(against);
     axes->addWidget(plotY_, 1);
+    auto* problem = new QHBoxLayout;
+    problem->addWidget(message_, 1);
+    problem->addWidget(fix_, 0, Qt::AlignTop);
 
-    auto* top = new QWidget(this);
-    auto* topLayout = new QVBoxLayout(top);
-    topLayout->setContentsMargins(0, 0, 0, 0);
     modes_->setSizePolicy(QSizePolicy::Preferred, QSizePolicy::Maximum);
-    topLayout->addWidget(modes_);
-    topLayout->addWidget(message_);
-    topLayout->addLayout(buttons);
-    topLayout->addWidget(variables_, 1);
-    topLayout->addLayout(axes);
-    topLayout->addWidget(held_);
-    auto* splitter = new QSplitter(Qt::Vertical, this);
-    splitter->addWidget(top);
-    splitter->addWidget(derivatives);
-    splitter->setStretchFactor(0, 3);
-    splitter->setStretchFactor(1, 1);
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(4, 4, 4, 4);
-    layout->addWidget(splitter);
+    layout->addWidget(modes_);
+    layout->addLayout(problem);
+    layout->addLayout(buttons);
+    layout->addWidget(variables_);
+    layout->addLayout(axes);
+    layout->addWidget(notice_);
+    layout->addWidget(heldBox_);
+    layout->addStretch(1);
 
     debounce_.setSingleShot(true);
     debounce_.setInterval(250);
@@ -171,8 +219,10 @@ ObjectiveEditor::ObjectiveEditor(QWidget* parent) : QWidget(parent) {
     fitPages();
     connect(modes_, &QTabWidget::currentChanged, this, [this, fitPages] {
         fitPages();
-        scheduleEdited();
+        refreshLabels();
+        userEdit();
     });
+    refreshLabels();
 }
 
 ObjectiveEditor::~ObjectiveEditor() = default;
@@ -180,12 +230,12 @@ ObjectiveEditor::~ObjectiveEditor() = default;
 void ObjectiveEditor::buildFormulaPage(QWidget* page) {
     formula_ = makeFormulaEdit(page, tr("e.g. (1 - a)^2 + 40*(b - a^2)^2"),
                                tr("The objective as a formula; + - * / ^, functions such as exp, log, sin, sqrt, "
-                                  "min, max and c ? a : b are allowed. Errors are marked as you type."));
-    connect(formula_, &QPlainTextEdit::textChanged, this, [this] { scheduleEdited(); });
+                                  "min, max and c ? a : b are allowed (Help ▸ Formula syntax). Errors are marked "
+                                  "as you type."));
+    connect(formula_, &QPlainTextEdit::textChanged, this, [this] { userEdit(); });
     auto* layout = new QVBoxLayout(page);
     layout->setContentsMargins(4, 4, 4, 4);
     layout->addWidget(formula_);
-    layout->addStretch(1);
 }
 
 void ObjectiveEditor::buildFitPage(QWidget* page) {
@@ -198,11 +248,22 @@ void ObjectiveEditor::buildFitPage(QWidget* page) {
     connect(browse_, &QPushButton::clicked, this, &ObjectiveEditor::chooseDataFile);
     tableInfo_ = new QLabel(page);
     tableInfo_->setWordWrap(true);
+    tableInfo_->setTextInteractionFlags(Qt::TextSelectableByMouse);
     tableInfo_->setToolTip(tr("Rows, columns and the separator found in the table"));
     preview_ = new QTableWidget(page);
     preview_->setEditTriggers(QAbstractItemView::NoEditTriggers);
     preview_->setToolTip(tr("The first rows of the table, as read"));
-    preview_->setMaximumHeight(140);
+    preview_->verticalHeader()->setDefaultSectionSize(preview_->fontMetrics().height() + 6);
+    sizeTableForRows(preview_, 5, 2);
+    separator_ = new QComboBox(page);
+    for (const auto& [id, text] : {std::pair{"auto", QT_TR_NOOP("found in the header")},
+                                   std::pair{"comma", QT_TR_NOOP("comma")}, std::pair{"semicolon", QT_TR_NOOP("semicolon")},
+                                   std::pair{"tab", QT_TR_NOOP("tab")}})
+        separator_->addItem(tr(text), QString::fromLatin1(id));
+    separator_->setToolTip(tr("How the table's cells are separated; by default the header row tells"));
+    dropIncomplete_ = new QCheckBox(tr("skip rows with missing values"), page);
+    dropIncomplete_->setToolTip(tr("Leave out rows with empty or NA cells (the count is shown); otherwise such a "
+                                   "row is an error naming its line"));
     response_ = new QComboBox(page);
     response_->setToolTip(tr("The column the model should reproduce"));
     model_ = makeFormulaEdit(page, tr("e.g. a + b*exp(-t/c)"),
@@ -233,124 +294,187 @@ void ObjectiveEditor::buildFitPage(QWidget* page) {
     weightsKind_->addItem(tr("standard deviations"), "sigma");
     weightsKind_->setToolTip(tr("Whether the column holds weights w, or standard deviations σ (w = 1/σ²)"));
 
-    for (QObject* w : {static_cast<QObject*>(response_), static_cast<QObject*>(loss_),
-                       static_cast<QObject*>(weights_), static_cast<QObject*>(weightsKind_)})
-        connect(qobject_cast<QComboBox*>(w), &QComboBox::currentIndexChanged, this, [this] { scheduleEdited(); });
-    connect(lossScale_, &QDoubleSpinBox::valueChanged, this, [this] { scheduleEdited(); });
+    for (QComboBox* box : {response_, loss_, weights_, weightsKind_})
+        connect(box, &QComboBox::currentIndexChanged, this, [this] { userEdit(); });
+    connect(lossScale_, &QDoubleSpinBox::valueChanged, this, [this] { userEdit(); });
+    // Reading options change what the table is: read it again.
+    auto reread = [this] {
+        if (loading_) return;
+        loading_ = true;
+        loadTablePreview();
+        loading_ = false;
+        userEdit();
+    };
+    connect(separator_, &QComboBox::currentIndexChanged, this, reread);
+    connect(dropIncomplete_, &QCheckBox::toggled, this, reread);
     // Controls that do nothing in the current choice are greyed out rather than left to puzzle.
     auto greyOutUnused = [this] {
-        const QString loss = loss_->currentData().toString().isEmpty() ? loss_->currentText() : loss_->currentData().toString();
-        lossScale_->setEnabled(loss.contains("huber", Qt::CaseInsensitive) || loss.contains("cauchy", Qt::CaseInsensitive));
+        const QString loss = loss_->currentData().toString();
+        lossScale_->setEnabled(loss == QLatin1String("huber") || loss == QLatin1String("cauchy"));
         weightsKind_->setEnabled(weights_->currentIndex() > 0);
     };
     connect(loss_, &QComboBox::currentIndexChanged, this, greyOutUnused);
     connect(weights_, &QComboBox::currentIndexChanged, this, greyOutUnused);
     greyOutUnused();
-    connect(model_, &QPlainTextEdit::textChanged, this, [this] { scheduleEdited(); });
+    connect(model_, &QPlainTextEdit::textChanged, this, [this] { userEdit(); });
 
+    // One control per row, so the page stays narrow enough for a side panel.
     auto* file = new QHBoxLayout;
     file->addWidget(dataPath_, 1);
     file->addWidget(browse_);
+    for (QComboBox* box : {separator_, response_, loss_, weights_, weightsKind_}) {
+        box->setSizeAdjustPolicy(QComboBox::AdjustToMinimumContentsLengthWithIcon);
+        box->setMinimumContentsLength(8);
+    }
     auto* form = new QFormLayout;
+    form->setContentsMargins(4, 4, 4, 4);
+    form->setRowWrapPolicy(QFormLayout::DontWrapRows);
+    form->setFieldGrowthPolicy(QFormLayout::AllNonFixedFieldsGrow);
     form->addRow(tr("Table"), file);
-    form->addRow(QString(), tableInfo_);
+    form->addRow(tableInfo_);
     form->addRow(preview_);
+    form->addRow(tr("Separator"), separator_);
+    form->addRow(QString(), dropIncomplete_);
     form->addRow(tr("Response"), response_);
     form->addRow(tr("Model"), model_);
     form->addRow(tr("Loss"), loss_);
-    form->addRow(tr("Loss scale"), lossScale_);
-    auto* weightRow = new QHBoxLayout;
-    weightRow->addWidget(weights_, 1);
-    weightRow->addWidget(weightsKind_);
-    form->addRow(tr("Weights"), weightRow);
+    auto* scaleLabel = new QLabel(tr("Loss scale"), page);
+    scaleLabel->setToolTip(lossScale_->toolTip());
+    form->addRow(scaleLabel, lossScale_);
+    form->addRow(tr("Weights"), weights_);
+    form->addRow(tr("Weights are"), weightsKind_);
     page->setLayout(form);
 }
 
-void ObjectiveEditor::scheduleEdited() {
+void ObjectiveEditor::userEdit() {
     if (loading_) return;
+    emit changed();
     debounce_.start();
 }
 
 bool ObjectiveEditor::fitMode() const { return modes_->currentIndex() == 1; }
 
+void ObjectiveEditor::setFitMode(bool fit) { modes_->setCurrentIndex(fit ? 1 : 0); }
+
 QPlainTextEdit* ObjectiveEditor::activeFormulaEdit() const { return fitMode() ? model_ : formula_; }
+
+void ObjectiveEditor::refreshLabels() {
+    const bool fit = fitMode();
+    variablesLabel_->setText(fit ? tr("Parameters") : tr("Variables"));
+    variables_->horizontalHeaderItem(NameColumn)->setText(fit ? tr("Parameter") : tr("Variable"));
+    variables_->horizontalHeaderItem(NameColumn)
+        ->setToolTip(fit ? tr("Parameter of the model, estimated by the fit") : tr("Name used in the formula"));
+}
 
 void ObjectiveEditor::setStudy(const study::Study& study, const QString& baseDirectory) {
     loading_ = true;
+    debounce_.stop();
     baseDirectory_ = baseDirectory;
     fit_ = study.fit;
     formula_->setPlainText(QString::fromStdString(study.formula));
     variables_->setRowCount(0);
-    for (const auto& v : study.variables) {
+    for (std::size_t k = 0; k < study.variables.size(); ++k) {
+        const study::Variable& v = study.variables[k];
         const int row = variables_->rowCount();
         variables_->insertRow(row);
         variables_->setItem(row, NameColumn, new QTableWidgetItem(QString::fromStdString(v.name)));
-        variables_->setItem(row, StartColumn, new QTableWidgetItem(numberText(v.start)));
-        variables_->setItem(row, LowerColumn, new QTableWidgetItem(numberText(v.lower)));
-        variables_->setItem(row, UpperColumn, new QTableWidgetItem(numberText(v.upper)));
+        const std::string place = "variables[" + std::to_string(k) + "].";
+        auto cell = [&](const char* key, double value) {
+            const auto typed = study.unparsed.find(place + key);
+            return typed == study.unparsed.end() ? numberItem(value)
+                                                 : new QTableWidgetItem(QString::fromStdString(typed->second));
+        };
+        variables_->setItem(row, StartColumn, cell("start", v.start));
+        variables_->setItem(row, LowerColumn, cell("lower", v.lower));
+        variables_->setItem(row, UpperColumn, cell("upper", v.upper));
     }
+    // Every fit control is set (or cleared) on every study, so nothing of the last one stays.
+    const study::DataFit fit = study.fit.value_or(study::DataFit{});
+    modes_->setCurrentIndex(study.fit ? 1 : 0);
+    dataPath_->setText(QString::fromStdString(fit.dataPath));
+    model_->setPlainText(QString::fromStdString(fit.model));
+    loss_->setCurrentIndex(std::max(0, loss_->findData(QString::fromStdString(fit.loss))));
+    lossScale_->setValue(std::isfinite(fit.lossScale) && fit.lossScale > 0 ? fit.lossScale : 1.0);
+    weightsKind_->setCurrentIndex(std::max(0, weightsKind_->findData(QString::fromStdString(fit.weightsKind))));
+    separator_->setCurrentIndex(std::max(0, separator_->findData(QString::fromStdString(fit.separator))));
+    dropIncomplete_->setChecked(fit.dropIncompleteRows);
+    response_->clear();
+    weights_->clear();
+    loadTablePreview();
     if (study.fit) {
-        modes_->setCurrentIndex(1);
-        dataPath_->setText(QString::fromStdString(study.fit->dataPath));
-        model_->setPlainText(QString::fromStdString(study.fit->model));
-        loss_->setCurrentIndex(std::max(0, loss_->findData(QString::fromStdString(study.fit->loss))));
-        lossScale_->setValue(study.fit->lossScale);
-        weightsKind_->setCurrentIndex(std::max(0, weightsKind_->findData(QString::fromStdString(study.fit->weightsKind))));
-        loadTablePreview();
-        response_->setCurrentIndex(std::max(0, response_->findText(QString::fromStdString(study.fit->response))));
-        weights_->setCurrentIndex(std::max(0, weights_->findText(QString::fromStdString(study.fit->weights))));
-    } else {
-        modes_->setCurrentIndex(0);
-        dataPath_->clear();
-        model_->clear();
-        table_.reset();
-        preview_->clear();
-        preview_->setRowCount(0);
-        tableInfo_->clear();
+        const int response = response_->findText(QString::fromStdString(fit.response));
+        if (response >= 0) response_->setCurrentIndex(response);
+        weights_->setCurrentIndex(std::max(0, weights_->findText(QString::fromStdString(fit.weights))));
     }
     refreshAxisChoices();
     plotX_->setCurrentIndex(std::min(study.view.plotX, plotX_->count() - 1));
     plotY_->setCurrentIndex(std::min(study.view.plotY, plotY_->count() - 1));
+    follow_->setChecked(true);
+    refreshHeldRows();
+    refreshLabels();
     clearProblem();
+    refreshNotices();
     loading_ = false;
 }
 
-std::vector<study::Variable> ObjectiveEditor::variablesFromTable() const {
+QString ObjectiveEditor::dataPathFor(const QString& absolutePath) const {
+    if (baseDirectory_.isEmpty()) return QDir::cleanPath(absolutePath);
+    return QDir(baseDirectory_).relativeFilePath(absolutePath);
+}
+
+void ObjectiveEditor::setBaseDirectory(const QString& baseDirectory) {
+    if (baseDirectory == baseDirectory_) return;
+    const QString data = dataPath_->text();
+    if (!data.isEmpty()) {
+        const QString absolute = QDir(baseDirectory_).absoluteFilePath(data);
+        const bool wasLoading = loading_;
+        loading_ = true;
+        baseDirectory_ = baseDirectory;
+        dataPath_->setText(dataPathFor(absolute));
+        loading_ = wasLoading;
+    }
+    baseDirectory_ = baseDirectory;
+}
+
+std::vector<study::Variable> ObjectiveEditor::variablesFromTable(std::map<std::string, std::string>* unparsed) const {
     std::vector<study::Variable> out;
     for (int row = 0; row < variables_->rowCount(); ++row) {
-        auto text = [&](int column) {
-            const QTableWidgetItem* item = variables_->item(row, column);
-            return item ? item->text().trimmed() : QString();
-        };
+        const QTableWidgetItem* nameItem = variables_->item(row, NameColumn);
         study::Variable v;
-        v.name = text(NameColumn).toStdString();
-        // Unreadable numbers become NaN so the study's validation names the cell.
-        auto number = [&](int column) {
+        v.name = nameItem ? nameItem->text().trimmed().toStdString() : std::string();
+        // Text that does not read as a number is kept as typed (for Save) and the value is NaN
+        // (so the window's check names the cell).
+        auto number = [&](int column, const char* key) {
+            const QTableWidgetItem* item = variables_->item(row, column);
             bool ok = false;
-            const double value = text(column).toDouble(&ok);
-            return ok ? value : std::nan("");
+            const double value = cellNumber(item, &ok);
+            if (!ok && unparsed)
+                (*unparsed)["variables[" + std::to_string(row) + "]." + key] =
+                    item ? item->text().trimmed().toStdString() : std::string();
+            return value;
         };
-        v.start = number(StartColumn);
-        v.lower = number(LowerColumn);
-        v.upper = number(UpperColumn);
+        v.start = number(StartColumn, "start");
+        v.lower = number(LowerColumn, "lower");
+        v.upper = number(UpperColumn, "upper");
         out.push_back(v);
     }
     return out;
 }
 
 void ObjectiveEditor::apply(study::Study& study) const {
-    study.variables = variablesFromTable();
+    study.unparsed.clear();
+    study.variables = variablesFromTable(&study.unparsed);
     if (fitMode()) {
         study::DataFit fit = fit_.value_or(study::DataFit{});
-        const std::string path = dataPath_->text().toStdString();
-        if (path != fit.dataPath) fit.checksum.clear();
-        fit.dataPath = path;
+        fit.dataPath = dataPath_->text().toStdString();
         fit.model = model_->toPlainText().toStdString();
         fit.response = response_->currentText().toStdString();
         fit.loss = loss_->currentData().toString().toStdString();
         fit.lossScale = lossScale_->value();
         fit.weights = weights_->currentIndex() <= 0 ? std::string() : weights_->currentText().toStdString();
         fit.weightsKind = weightsKind_->currentData().toString().toStdString();
+        fit.separator = separator_->currentData().toString().toStdString();
+        fit.dropIncompleteRows = dropIncomplete_->isChecked();
         study.fit = fit;
         study.formula.clear();
     } else {
@@ -371,26 +495,55 @@ void ObjectiveEditor::markError(QPlainTextEdit* edit, int position) {
         cursor.setPosition(at);
         cursor.setPosition(at + 1, QTextCursor::KeepAnchor);
         mark.cursor = cursor;
+        const QColor problem = widgets::problemTextColour(palette());
         mark.format.setUnderlineStyle(QTextCharFormat::WaveUnderline);
-        mark.format.setUnderlineColor(QColor(0xd0, 0x10, 0x10));
-        mark.format.setBackground(QColor(0xff, 0x40, 0x40, 60));
+        mark.format.setUnderlineColor(problem);
+        QColor background = problem;
+        background.setAlpha(60);
+        mark.format.setBackground(background);
         marks.append(mark);
     }
     edit->setExtraSelections(marks);
 }
 
-void ObjectiveEditor::showFormulaError(const QString& message, int position) {
+void ObjectiveEditor::offerFix(const QString& text, std::function<void()> fix) {
+    fixAction_ = std::move(fix);
+    fix_->setText(text);
+    fix_->setVisible(!text.isEmpty() && fixAction_ != nullptr);
+}
+
+QString ObjectiveEditor::fixText() const { return fix_->isVisible() ? fix_->text() : QString(); }
+
+void ObjectiveEditor::applyFix() {
+    if (!fixAction_) return;
+    const auto fix = fixAction_;  // the fix may clear the problem and with it fixAction_
+    fix();
+}
+
+void ObjectiveEditor::showFormulaError(const QString& message, int position, const QStringList& unknownNames) {
     markedPosition_ = position;
     markError(activeFormulaEdit(), position);
     markError(fitMode() ? formula_ : model_, -1);
     showProblem(position >= 0 ? tr("Column %1: %2").arg(position + 1).arg(message) : message);
+    QStringList names;
+    for (const QString& name : unknownNames)
+        if (isIdentifier(name)) names << name;
+    if (!names.isEmpty()) {
+        const QString list = names.join(QStringLiteral(", "));
+        offerFix(fitMode() ? tr("Add %1 as parameter(s)", nullptr, static_cast<int>(names.size())).arg(list)
+                           : tr("Add %1 as variable(s)", nullptr, static_cast<int>(names.size())).arg(list),
+                 [this, names] { addVariablesNamed(names); });
+    }
     markedPosition_ = position;
 }
 
-void ObjectiveEditor::showProblem(const QString& message) {
+void ObjectiveEditor::showProblem(const QString& message, const QString& place) {
     message_->setText(message);
     message_->setStyleSheet(widgets::problemTextStyle(palette()));
     message_->setVisible(!message.isEmpty());
+    offerFix({}, nullptr);
+    if (place == QLatin1String("objective.checksum") && fitMode())
+        offerFix(tr("Use the table as it is now"), [this] { acceptDataAsItIsNow(); });
 }
 
 void ObjectiveEditor::clearProblem() {
@@ -399,6 +552,7 @@ void ObjectiveEditor::clearProblem() {
     markError(model_, -1);
     message_->clear();
     message_->setVisible(false);
+    offerFix({}, nullptr);
 }
 
 QString ObjectiveEditor::problemText() const { return message_->text(); }
@@ -415,78 +569,116 @@ void ObjectiveEditor::parseActiveFormula(const study::Study& study) const {
     (void)expr::Expression::parse(study.fit->model, symbols);
 }
 
-void ObjectiveEditor::showDerivatives(const study::Study& study) {
-    QString gradientText, hessianText;
-    try {
-        std::vector<std::string> names;
-        for (const auto& v : study.variables) names.push_back(v.name);
-        if (!study.fit) {
-            expr::DerivativeSet set(study.formula, names, 2);
-            const int n = set.dimension();
-            for (int i = 0; i < n; ++i)
-                gradientText += QStringLiteral("∂f/∂%1 = %2\n").arg(QString::fromStdString(names[static_cast<std::size_t>(i)]),
-                                                                     clipped(set.gradient()[static_cast<std::size_t>(i)].toText()));
-            for (int i = 0; i < n; ++i)
-                for (int j = i; j < n; ++j)
-                    hessianText += QStringLiteral("∂²f/∂%1∂%2 = %3\n")
-                                       .arg(QString::fromStdString(names[static_cast<std::size_t>(i)]),
-                                            QString::fromStdString(names[static_cast<std::size_t>(j)]),
-                                            clipped(set.hessianUpper()[expr::DerivativeSet::hessianIndex(i, j, n)].toText()));
-        } else {
-            // The fit's objective sums over rows; what reads well is the model's own derivatives.
-            std::vector<std::string> symbols = names;
-            if (table_)
-                for (const auto& c : table_->columnNames) symbols.push_back(c);
-            const auto model = expr::Expression::parse(study.fit->model, symbols);
-            std::vector<int> wrt;
-            for (int i = 0; i < static_cast<int>(names.size()); ++i) wrt.push_back(i);
-            const auto g = expr::gradient(model, wrt);
-            const auto h = expr::hessianUpper(model, wrt);
-            const int n = static_cast<int>(names.size());
-            gradientText = tr("Derivatives of the model in its parameters:\n");
-            for (int i = 0; i < n; ++i)
-                gradientText += QStringLiteral("∂model/∂%1 = %2\n")
-                                    .arg(QString::fromStdString(names[static_cast<std::size_t>(i)]),
-                                         clipped(g[static_cast<std::size_t>(i)].toText()));
-            hessianText = tr("Second derivatives of the model:\n");
-            for (int i = 0; i < n; ++i)
-                for (int j = i; j < n; ++j)
-                    hessianText += QStringLiteral("∂²model/∂%1∂%2 = %3\n")
-                                       .arg(QString::fromStdString(names[static_cast<std::size_t>(i)]),
-                                            QString::fromStdString(names[static_cast<std::size_t>(j)]),
-                                            clipped(h[expr::DerivativeSet::hessianIndex(i, j, n)].toText()));
-        }
-    } catch (const std::exception& e) {
-        gradientText = tr("(not available: %1)").arg(QString::fromUtf8(e.what()));
-        hessianText = gradientText;
-    }
-    gradient_->setPlainText(gradientText.trimmed());
-    hessian_->setPlainText(hessianText.trimmed());
+std::vector<std::string> ObjectiveEditor::columnNames() const {
+    return table_ && fitMode() ? table_->columnNames : std::vector<std::string>{};
 }
-
-QString ObjectiveEditor::gradientText() const { return gradient_->toPlainText(); }
-QString ObjectiveEditor::hessianText() const { return hessian_->toPlainText(); }
 
 void ObjectiveEditor::setStart(const Vector& start) {
     const bool wasLoading = loading_;
     loading_ = true;
-    for (int row = 0; row < variables_->rowCount() && row < start.size(); ++row) {
-        QTableWidgetItem* item = variables_->item(row, StartColumn);
-        if (!item) variables_->setItem(row, StartColumn, item = new QTableWidgetItem);
-        item->setText(QString::number(start(row), 'g', 6));
+    for (int row = 0; row < variables_->rowCount() && row < start.size(); ++row)
+        variables_->setItem(row, StartColumn, numberItem(start(row)));
+    refreshNotices();
+    loading_ = wasLoading;
+}
+
+void ObjectiveEditor::refreshHeldRows() {
+    const bool wasLoading = loading_;
+    loading_ = true;
+    const int x = plotX_->currentIndex(), y = plotY_->currentIndex();
+    // Keep typed values by name across a change of the plotted pair.
+    std::map<QString, QString> typed;
+    for (int row = 0; row < held_->rowCount(); ++row)
+        if (held_->item(row, HeldName) && held_->item(row, HeldValue))
+            typed[held_->item(row, HeldName)->text()] = held_->item(row, HeldValue)->text();
+    held_->setRowCount(0);
+    for (int i = 0; i < variables_->rowCount(); ++i) {
+        if (i == x || i == y) continue;
+        const QTableWidgetItem* nameItem = variables_->item(i, NameColumn);
+        const QString name = nameItem ? nameItem->text() : QString();
+        const int row = held_->rowCount();
+        held_->insertRow(row);
+        auto* label = new QTableWidgetItem(name);
+        label->setFlags(label->flags() & ~Qt::ItemIsEditable);
+        label->setData(Qt::UserRole, i);
+        held_->setItem(row, HeldName, label);
+        const auto it = typed.find(name);
+        auto* value = new QTableWidgetItem(it != typed.end() ? it->second : QString());
+        if (it == typed.end())
+            if (const QTableWidgetItem* start = variables_->item(i, StartColumn)) value->setText(start->text());
+        held_->setItem(row, HeldValue, value);
+    }
+    heldBox_->setVisible(held_->rowCount() > 0);
+    loading_ = wasLoading;
+}
+
+void ObjectiveEditor::setHeldValues(const Vector& values) {
+    if (!follow_->isChecked()) return;
+    const bool wasLoading = loading_;
+    loading_ = true;
+    for (int row = 0; row < held_->rowCount(); ++row) {
+        const int i = held_->item(row, HeldName)->data(Qt::UserRole).toInt();
+        if (i < values.size()) {
+            QTableWidgetItem* item = numberItem(values(i));
+            item->setText(QString::number(values(i), 'g', 6));  // a readout; the exact value rides along
+            held_->setItem(row, HeldValue, item);
+        }
     }
     loading_ = wasLoading;
 }
 
-void ObjectiveEditor::setHeldText(const QString& text) {
-    held_->setText(text);
-    held_->setVisible(!text.isEmpty());
+bool ObjectiveEditor::heldFollowsSelection() const { return follow_->isChecked(); }
+
+Vector ObjectiveEditor::typedHeldValues() const {
+    Vector values = Vector::Constant(variables_->rowCount(), std::nan(""));
+    for (int row = 0; row < held_->rowCount(); ++row) {
+        const int i = held_->item(row, HeldName)->data(Qt::UserRole).toInt();
+        const QTableWidgetItem* item = held_->item(row, HeldValue);
+        if (!item || i >= values.size()) continue;
+        const QString text = item->text().trimmed();
+        const QVariant exact = item->data(Qt::UserRole);
+        if (exact.isValid() && QString::number(exact.toDouble(), 'g', 6) == text) {
+            values(i) = exact.toDouble();  // shown rounded; the exact value rides along
+            continue;
+        }
+        bool ok = false;
+        const double typed = text.toDouble(&ok);
+        values(i) = ok ? typed : std::nan("");
+    }
+    return values;
 }
+
+void ObjectiveEditor::refreshNotices() {
+    // A start outside its plot range is allowed, but the path then starts off the landscape.
+    QStringList outside;
+    for (int row = 0; row < variables_->rowCount(); ++row) {
+        bool okStart = false, okLower = false, okUpper = false;
+        const double start = cellNumber(variables_->item(row, StartColumn), &okStart);
+        const double lower = cellNumber(variables_->item(row, LowerColumn), &okLower);
+        const double upper = cellNumber(variables_->item(row, UpperColumn), &okUpper);
+        if (!(okStart && okLower && okUpper) || !(lower < upper)) continue;
+        if (start < lower || start > upper) {
+            const QTableWidgetItem* name = variables_->item(row, NameColumn);
+            outside << tr("%1 starts at %2, outside its plot range %3 … %4")
+                           .arg(name ? name->text() : QString(), numberText(start), numberText(lower), numberText(upper));
+        }
+    }
+    const QString text = outside.isEmpty() ? QString()
+                                            : tr("Note: %1; the paths start off the landscape (widen the range to see "
+                                                 "them).")
+                                                  .arg(outside.join(QStringLiteral("; ")));
+    notice_->setText(text);
+    notice_->setVisible(!text.isEmpty());
+}
+
+QString ObjectiveEditor::noticeText() const { return notice_->isVisible() ? notice_->text() : QString(); }
 
 void ObjectiveEditor::onVariablesChanged() {
     if (loading_) return;
     refreshAxisChoices();
-    scheduleEdited();
+    refreshHeldRows();
+    refreshNotices();
+    userEdit();
 }
 
 void ObjectiveEditor::refreshAxisChoices() {
@@ -507,17 +699,30 @@ void ObjectiveEditor::refreshAxisChoices() {
     loading_ = wasLoading;
 }
 
-void ObjectiveEditor::addVariable() {
-    const int row = variables_->rowCount();
+void ObjectiveEditor::addVariablesNamed(const QStringList& names) {
     loading_ = true;
-    variables_->insertRow(row);
-    QString name = fitMode() ? QStringLiteral("p%1").arg(row + 1) : QStringLiteral("x%1").arg(row + 1);
-    variables_->setItem(row, NameColumn, new QTableWidgetItem(name));
-    variables_->setItem(row, StartColumn, new QTableWidgetItem("0"));
-    variables_->setItem(row, LowerColumn, new QTableWidgetItem("-2"));
-    variables_->setItem(row, UpperColumn, new QTableWidgetItem("2"));
+    const bool fit = fitMode();
+    for (const QString& name : names) {
+        const int row = variables_->rowCount();
+        variables_->insertRow(row);
+        variables_->setItem(row, NameColumn, new QTableWidgetItem(name));
+        // A parameter starts at 1 (0 would divide by zero in a rate or a scale); a variable at 0.
+        variables_->setItem(row, StartColumn, numberItem(fit ? 1.0 : 0.0));
+        variables_->setItem(row, LowerColumn, numberItem(fit ? 0.0 : -2.0));
+        variables_->setItem(row, UpperColumn, numberItem(2.0));
+    }
     loading_ = false;
     onVariablesChanged();
+}
+
+void ObjectiveEditor::addVariable() {
+    const QString stem = fitMode() ? QStringLiteral("p") : QStringLiteral("x");
+    QStringList taken;
+    for (int row = 0; row < variables_->rowCount(); ++row)
+        if (const QTableWidgetItem* item = variables_->item(row, NameColumn)) taken << item->text();
+    int k = variables_->rowCount() + 1;
+    while (taken.contains(stem + QString::number(k))) ++k;
+    addVariablesNamed({stem + QString::number(k)});
 }
 
 void ObjectiveEditor::removeVariable() {
@@ -528,16 +733,37 @@ void ObjectiveEditor::removeVariable() {
 }
 
 void ObjectiveEditor::chooseDataFile() {
-    const QString file = QFileDialog::getOpenFileName(this, tr("Choose a data table"), baseDirectory_,
+    const QString file = QFileDialog::getOpenFileName(this, tr("Choose a data table"), lastUsedFolder(),
                                                       tr("CSV tables (*.csv *.txt *.tsv);;All files (*)"));
     if (file.isEmpty()) return;
-    const QString relative = baseDirectory_.isEmpty() ? file : QDir(baseDirectory_).relativeFilePath(file);
-    dataPath_->setText(relative);
-    if (fit_) fit_->checksum.clear();
+    rememberFolder(file);
+    setDataFile(file);
+}
+
+bool ObjectiveEditor::setDataFile(const QString& path) {
+    const QString absolute = QDir(baseDirectory_).absoluteFilePath(path);
+    if (!fit_) fit_ = study::DataFit{};
+    try {
+        fit_->checksum = study::fileChecksum(absolute.toStdString());
+    } catch (const std::exception& e) {
+        fit_->checksum.clear();
+        showProblem(tr("Cannot use %1: %2").arg(absolute, QString::fromUtf8(e.what())));
+        return false;
+    }
     loading_ = true;
+    modes_->setCurrentIndex(1);
+    dataPath_->setText(dataPathFor(absolute));
+    response_->clear();  // a new table: its own response (the last column unless chosen)
     loadTablePreview();
     loading_ = false;
-    scheduleEdited();
+    refreshLabels();
+    userEdit();
+    return table_ != nullptr;
+}
+
+void ObjectiveEditor::acceptDataAsItIsNow() {
+    if (dataPath_->text().isEmpty()) return;
+    setDataFile(QDir(baseDirectory_).absoluteFilePath(dataPath_->text()));
 }
 
 void ObjectiveEditor::loadTablePreview() {
@@ -549,15 +775,18 @@ void ObjectiveEditor::loadTablePreview() {
     response_->clear();
     weights_->clear();
     weights_->addItem(tr("(none)"));
-    if (dataPath_->text().isEmpty()) {
-        tableInfo_->clear();
-        return;
-    }
+    tableInfo_->clear();
+    tableInfo_->setStyleSheet(QString());
+    if (dataPath_->text().isEmpty()) return;
     const QString path = QDir(baseDirectory_).absoluteFilePath(dataPath_->text());
+    TableReadOptions options;
+    parseSeparator(separator_->currentData().toString().toStdString(), options.separator);
+    options.dropIncompleteRows = dropIncomplete_->isChecked();
     try {
-        table_ = std::make_shared<Table>(readTable(path.toStdString()));
+        table_ = std::make_shared<Table>(readTable(path.toStdString(), options));
     } catch (const std::exception& e) {
         tableInfo_->setText(QString::fromUtf8(e.what()));
+        tableInfo_->setStyleSheet(widgets::problemTextStyle(palette()));
         return;
     }
     tableInfo_->setText(QString::fromStdString(table_->summary()));
@@ -574,7 +803,11 @@ void ObjectiveEditor::loadTablePreview() {
                                                                                    [static_cast<std::size_t>(r)], 'g', 8)));
     response_->addItems(headers);
     weights_->addItems(headers);
-    if (response_->findText(keepResponse) >= 0) response_->setCurrentText(keepResponse);
+    // The response is usually the last column (inputs first, the measured outcome last).
+    if (response_->findText(keepResponse) >= 0)
+        response_->setCurrentText(keepResponse);
+    else
+        response_->setCurrentIndex(response_->count() - 1);
     if (weights_->findText(keepWeights) >= 0) weights_->setCurrentText(keepWeights);
 }
 
