@@ -52,8 +52,8 @@ const char* kHelp =
     "  --json                 one JSON object\n"
     "\n"
     "Example:\n"
-    "  saddlewise fit --data samples/sensor-warmup.csv --model 'a - b*exp(-t/tau)' --response temp \\\n"
-    "                 --start a=20,b=5,tau=10\n"
+    "  saddlewise fit --data samples/sensor-warmup.csv --model 'a - b*exp(-minutes/tau)' --response temp \\\n"
+    "                 --start a=40,b=20,tau=5\n"
     "\n"
     "Exit codes: 0 the fit ran (converged or at a limit; see the warnings), 1 the run broke down,\n"
     "2 bad usage or input.\n";

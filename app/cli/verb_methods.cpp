@@ -15,7 +15,10 @@ const char* kHelp =
     "\n"
     "Lists every optimization method: its id (for --method), its family, a one-line\n"
     "description, what it needs from the objective (gradient, Hessian, residuals), and its\n"
-    "options with defaults and valid ranges (for --option NAME=VALUE).\n";
+    "options with defaults and valid ranges (for --option NAME=VALUE).\n"
+    "\n"
+    "Example:\n"
+    "  saddlewise methods --json\n";
 
 const char* typeName(solve::OptionSpec::Type t) {
     switch (t) {

@@ -32,6 +32,9 @@ const char* kHelp =
     "                       label, options, summary, end point and full per-iteration trace\n"
     "  --max-iterations N   override the study's iteration limit (1 to 1000000)\n"
     "\n"
+    "Example:\n"
+    "  saddlewise run samples/two-valve-saddles.json\n"
+    "\n"
     "Exit codes: 0 every method ran (converged or stopped at a limit), 1 a run broke down\n"
     "(non-finite values or a method failure), 2 bad usage or a bad study.\n";
 
