@@ -123,6 +123,31 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
     const double sMin = s.singularValues.size() == p ? s.singularValues[p - 1] : 0.0;
     s.scaledCondition = sMin > 0 ? sMax / sMin : std::numeric_limits<double>::infinity();
 
+    // The null space of the scaled design: singular vectors with singular values at or below
+    // the rank tolerance, and every direction beyond min(m, p) when there are fewer rows.
+    const Matrix& fullV = svd.matrixV();
+    std::vector<Eigen::Index> nullColumns;
+    for (Eigen::Index k = 0; k < p; ++k)
+        if (k >= s.singularValues.size() || !(s.singularValues[k] > rankTol)) nullColumns.push_back(k);
+    // A zero column (the model does not depend on that parameter here) is a null direction too.
+    Matrix nullBasis(p, static_cast<Eigen::Index>(nullColumns.size()));
+    for (std::size_t k = 0; k < nullColumns.size(); ++k) nullBasis.col(static_cast<Eigen::Index>(k)) = fullV.col(nullColumns[k]);
+    s.notDetermined.assign(static_cast<std::size_t>(p), false);
+    std::vector<Eigen::Index> undetermined;
+    for (int j = 0; j < p; ++j) {
+        const bool zeroColumn = !(columnNorm[j] > 0);
+        if (zeroColumn || (nullBasis.cols() > 0 && nullBasis.row(j).norm() > kNullSpaceShare)) {
+            s.notDetermined[static_cast<std::size_t>(j)] = true;
+            undetermined.push_back(j);
+        }
+    }
+
+    // Residual degrees of freedom: rows minus the parameters the data determine (the rank of
+    // the scaled design), as for a rank-deficient linear model (common practice, e.g. R's lm:
+    // n - rank). With every parameter determined this is rows - parameters, as before.
+    s.degreesOfFreedom = m - (p - static_cast<int>(nullColumns.size()));
+    s.residualStandardDeviation = s.degreesOfFreedom > 0 ? std::sqrt(rss / s.degreesOfFreedom) : kNaN;
+
     if (def.loss == Loss::LeastSquares || def.loss == Loss::Weighted) {
         s.covarianceMethod = "s^2 (J'J)^-1";
         // (J'J)^+ = D^-1 V S^-2 V' D^-1 with J D^-1 = U S V' (column-scaled, so the pseudo-inverse
@@ -151,25 +176,6 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
             const Matrix meat = scores.transpose() * scores;
             const double correction = s.degreesOfFreedom > 0 ? static_cast<double>(m) / s.degreesOfFreedom : kNaN;
             s.covariance = correction * (hInv * meat * hInv);
-        }
-    }
-
-    // The null space of the scaled design: singular vectors with singular values at or below
-    // the rank tolerance, and every direction beyond min(m, p) when there are fewer rows.
-    const Matrix& fullV = svd.matrixV();
-    std::vector<Eigen::Index> nullColumns;
-    for (Eigen::Index k = 0; k < p; ++k)
-        if (k >= s.singularValues.size() || !(s.singularValues[k] > rankTol)) nullColumns.push_back(k);
-    // A zero column (the model does not depend on that parameter here) is a null direction too.
-    Matrix nullBasis(p, static_cast<Eigen::Index>(nullColumns.size()));
-    for (std::size_t k = 0; k < nullColumns.size(); ++k) nullBasis.col(static_cast<Eigen::Index>(k)) = fullV.col(nullColumns[k]);
-    s.notDetermined.assign(static_cast<std::size_t>(p), false);
-    std::vector<Eigen::Index> undetermined;
-    for (int j = 0; j < p; ++j) {
-        const bool zeroColumn = !(columnNorm[j] > 0);
-        if (zeroColumn || (nullBasis.cols() > 0 && nullBasis.row(j).norm() > kNullSpaceShare)) {
-            s.notDetermined[static_cast<std::size_t>(j)] = true;
-            undetermined.push_back(j);
         }
     }
 

@@ -44,7 +44,7 @@ struct FitStatistics {
 
     int rows = 0;
     int parameters = 0;
-    int degreesOfFreedom = 0;  // rows - parameters
+    int degreesOfFreedom = 0;  // rows - parameters the data determine (rows - parameters unless some are not determined)
     double objectiveValue = 0;
     double residualSumOfSquares = 0;         // sum w r^2 (all losses)
     double residualStandardDeviation = 0;    // sqrt(RSS / dof) (NaN when dof <= 0)

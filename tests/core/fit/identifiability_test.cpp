@@ -57,6 +57,7 @@ TEST(Identifiability, APlusBIsDeterminedButNeitherAlone) {
         EXPECT_TRUE(std::isnan(st.correlation(0, 2)));
         // c is determined, exactly as in the reparameterised model.
         EXPECT_NEAR(st.estimates[2], reduced.statistics.estimates[1], 1e-9);
+        EXPECT_EQ(st.degreesOfFreedom, reduced.statistics.degreesOfFreedom);  // rows - rank
         EXPECT_NEAR(st.standardErrors[2], reduced.statistics.standardErrors[1], 1e-9);
         ASSERT_EQ(st.determinedCombinations.size(), 1u);
         const fit::DeterminedCombination& c = st.determinedCombinations[0];
