@@ -160,9 +160,10 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
     table.print(out);
     if (run.droppedRecords > 0)
         out << "(" << run.droppedRecords << " of " << run.iterations() + 1
-            << " records were thinned out to keep the trace within its memory limit: shown are the first, the last "
-            << solve::kTraceKeptTail << ", every " << run.recordStride
-            << "th iteration and the notable ones - rejected steps, changes of step kind, non-finite values)\n";
+            << " records were thinned out to keep the trace within its memory limit: shown are the first, the most "
+               "recent (at least the last "
+            << solve::kTraceKeptTail << "), every iteration that is a multiple of " << run.recordStride
+            << " and the notable ones - rejected steps, changes of step kind, non-finite values)\n";
 }
 
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {

@@ -30,7 +30,7 @@ const char* kHelp =
     "  --gradient-tolerance X   converged when the gradient norm is <= X (default 1e-8)\n"
     "  --summary                leave out the per-iteration table (and the JSON trace)\n"
     "\n"
-    "The per-iteration records of a run take at most about 64 MiB (256 KiB with --summary);\n"
+    "The per-iteration records of a run take at most about 16 MiB (256 KiB with --summary);\n"
     "past that, records in the middle are thinned out (the first, the last 50, every k-th and\n"
     "the notable ones stay) and the output says how many were dropped.\n"
     "  --json                   one JSON object (several methods: {\"runs\": [...]})\n"

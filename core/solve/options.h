@@ -52,7 +52,7 @@ struct StoppingRules {
     // the trace is thinned (Run::droppedRecords), so a run of any length stays within about
     // this much. At least kMinTraceMemory; callers that print no trace may pass that minimum.
     std::size_t traceMemoryLimit = kDefaultTraceMemory;
-    static constexpr std::size_t kDefaultTraceMemory = std::size_t{64} << 20;  // 64 MiB
+    static constexpr std::size_t kDefaultTraceMemory = std::size_t{16} << 20;  // 16 MiB
     static constexpr std::size_t kMinTraceMemory = std::size_t{256} << 10;     // 256 KiB
     // Upper bound of the iteration limit (the records' iteration counter is an int; memory is
     // bounded by traceMemoryLimit whatever the limit).

@@ -199,8 +199,9 @@ struct Run {
     // Thinning: when the records would pass the stopping rules' traceMemoryLimit, records in the
     // middle of the trace are dropped. Always kept: the first record, the last
     // kTraceKeptTail records, notable records (IterationRecord::notable; when even they
-    // outgrow the limit, every other one), and ordinary records whose iteration is a multiple
-    // of recordStride. A record's own `iteration` field says which iterate it is.
+    // outgrow the limit, every other one), ordinary records whose iteration is a multiple of
+    // recordStride, and the records added since the last thinning. A record's own `iteration`
+    // field says which iterate it is.
     long droppedRecords = 0;          // 0: the trace is complete
     long recordStride = 1;            // ordinary records kept: every recordStride-th iteration
     long droppedNotableRecords = 0;   // of droppedRecords, how many were notable
