@@ -55,6 +55,7 @@ QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, doubl
         return QCPScatterStyle(QCPScatterStyle::ssCrossSquare, pen, QBrush(pale), size);
     case solve::PointKind::Maximum: return QCPScatterStyle(QCPScatterStyle::ssTriangle, pen, QBrush(pale), size);
     case solve::PointKind::Degenerate: return QCPScatterStyle(QCPScatterStyle::ssDiamond, pen, Qt::NoBrush, size);
+    case solve::PointKind::NotCritical:
     case solve::PointKind::Unknown: break;
     }
     return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size);
@@ -75,6 +76,7 @@ QString endPointLabel(solve::PointKind kind) {
     case solve::PointKind::Saddle: return QStringLiteral("ends at a saddle");
     case solve::PointKind::Maximum: return QStringLiteral("ends at a maximum");
     case solve::PointKind::Degenerate: return QStringLiteral("ends at a degenerate point");
+    case solve::PointKind::NotCritical: return QStringLiteral("ends where the gradient is not zero");
     case solve::PointKind::Unknown: break;
     }
     return QStringLiteral("stopped before converging");

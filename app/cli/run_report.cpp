@@ -97,7 +97,8 @@ json recordToJson(const solve::IterationRecord& r) {
             {"jacobian_rank", r.jacobianRank},
             {"jacobian_condition", number(r.jacobianCondition)},
             {"evaluations", countsJson(r.evaluations)},
-            {"note", r.note.text()}};
+            {"note", r.note.text()},
+            {"notable", r.notable}};
 }
 
 json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
@@ -116,9 +117,15 @@ json runToJson(const solve::Run& run, const std::vector<std::string>& names, boo
                {{"kind", solve::toString(run.endPoint.kind)},
                 {"index", run.endPoint.index},
                 {"critical", run.endPoint.critical},
+                {"curvature", solve::toString(run.endPoint.curvature)},
                 {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
                 {"tolerance", number(run.endPoint.tolerance)},
-                {"description", run.endPoint.description}}}};
+                {"stationary_distance", number(run.endPoint.stationaryDistance)},
+                {"stationary_bound", number(run.endPoint.stationaryBound)},
+                {"reason", run.endPoint.reason},
+                {"description", run.endPoint.description}}},
+              {"dropped_records", run.droppedRecords},
+              {"record_stride", run.recordStride}};
     if (withTrace) {
         json trace = json::array();
         for (const solve::IterationRecord& r : run.trace) trace.push_back(recordToJson(r));
@@ -151,6 +158,12 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
         table.add(row);
     }
     table.print(out);
+    if (run.droppedRecords > 0)
+        out << "(" << run.droppedRecords << " of " << run.iterations() + 1
+            << " records were thinned out to keep the trace within its memory limit: shown are the first, the most "
+               "recent (at least the last "
+            << solve::kTraceKeptTail << "), every iteration that is a multiple of " << run.recordStride
+            << " and the notable ones - rejected steps, changes of step kind, non-finite values)\n";
 }
 
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {
@@ -172,7 +185,8 @@ void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
     for (const solve::Run& r : runs) {
         std::string end = solve::toString(r.endPoint.kind);
         if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
-        if (!r.endPoint.critical && r.endPoint.kind != solve::PointKind::Unknown) end = "not stationary; curvature: " + end;
+        if (r.endPoint.kind == solve::PointKind::NotCritical)
+            end = "not critical (curvature: " + std::string(solve::toString(r.endPoint.curvature)) + ")";
         table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),
                    num(r.gradientNorm, 3), solve::toString(r.termination), end});
     }

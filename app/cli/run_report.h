@@ -14,9 +14,14 @@
 namespace sw::cli {
 
 // One run as JSON: method, label, termination, message, variables, x, value, gradient_norm,
-// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, eigenvalues,
-// tolerance, description}, and (withTrace) trace: one object per record with all its fields.
-// Non-finite numbers become null.
+// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, critical,
+// curvature, eigenvalues, tolerance, stationary_distance, stationary_bound, reason,
+// description}, dropped_records and record_stride (trace thinning, see solve::Run), and
+// (withTrace) trace: one object per record with all its fields. Non-finite numbers become null.
+// end_point.kind is "minimum", "saddle", "maximum", "degenerate" only where critical is true;
+// "not-critical" where the stationarity test failed (curvature then says what the Hessian
+// looks like there, reason why it is not critical); "unknown" where nothing could be tested
+// (a non-finite end, no Hessian, too many variables; reason says which).
 nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
 nlohmann::json recordToJson(const solve::IterationRecord& record);
 

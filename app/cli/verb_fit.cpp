@@ -123,7 +123,9 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
     if (parsed.has("option")) request.options = distributeOptions({method}, parsed.all("option")).front();
     if (parsed.has("max-iterations"))
         request.rules.maxIterations =
-            static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+            static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0,
+                                          solve::StoppingRules::kMaxIterationLimit));
+    if (parsed.has("summary")) request.rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     if (parsed.has("confidence")) {
         request.confidenceLevel = parseNumber(parsed.get("confidence"), "--confidence");
         if (!(request.confidenceLevel > 0 && request.confidenceLevel < 1))
@@ -168,6 +170,24 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
             intervals[names[k]] = {number(st.lower[i]), number(st.upper[i])};
         }
         j["parameters"] = parameters;
+        // Parameters the data cannot separate have null errors and intervals; the combinations
+        // the data do determine are listed (core/fit/fit_statistics.h).
+        nlohmann::json undetermined = nlohmann::json::array(), combinations = nlohmann::json::array();
+        for (std::size_t k = 0; k < names.size(); ++k)
+            if (k < st.notDetermined.size() && st.notDetermined[k]) undetermined.push_back(names[k]);
+        for (const fit::DeterminedCombination& c : st.determinedCombinations) {
+            nlohmann::json coefficients = nlohmann::json::object();
+            for (std::size_t k = 0; k < names.size(); ++k)
+                if (c.coefficients[static_cast<Eigen::Index>(k)] != 0)
+                    coefficients[names[k]] = c.coefficients[static_cast<Eigen::Index>(k)];
+            combinations.push_back({{"text", c.text},
+                                    {"coefficients", coefficients},
+                                    {"estimate", number(c.estimate)},
+                                    {"standard_error", number(c.standardError)},
+                                    {"confidence_interval", {number(c.lower), number(c.upper)}}});
+        }
+        j["not_determined"] = undetermined;
+        j["determined_combinations"] = combinations;
         j["standard_errors"] = errors;
         j["confidence_intervals"] = intervals;
         j["confidence_level"] = st.confidenceLevel;
@@ -189,7 +209,7 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
                          {"scaled_singular_values", singular}};
         j["warnings"] = result.warnings;
         j["converged"] = result.converged();
-        out << j.dump(2) << '\n';
+        out << j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return exitCodeFor({run});
     }
 
@@ -217,9 +237,18 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
         << "   " << intervalHead.str() << '\n';
     for (std::size_t k = 0; k < names.size(); ++k) {
         const auto i = static_cast<Eigen::Index>(k);
+        if (k < st.notDetermined.size() && st.notDetermined[k]) {
+            out << padded(names[k], nameWidth) << cell(st.estimates[i], 16, 10) << std::setw(14) << "-"
+                << "   not determined by the data\n";
+            continue;
+        }
         out << padded(names[k], nameWidth) << cell(st.estimates[i], 16, 10) << cell(st.standardErrors[i], 14)
             << "   [" << formatNumber(st.lower[i], 6) << ", " << formatNumber(st.upper[i], 6) << "]\n";
     }
+    for (const fit::DeterminedCombination& c : st.determinedCombinations)
+        out << "Determined by the data: " << c.text << " = " << formatNumber(c.estimate, 10) << ", std. error "
+            << formatNumber(c.standardError, 6) << ", [" << formatNumber(c.lower, 6) << ", "
+            << formatNumber(c.upper, 6) << "]\n";
     out << "\nCorrelation of the estimates (" << st.covarianceMethod << "):\n";
     out << padded("", nameWidth);
     for (const auto& n : names) out << std::setw(10) << n;

@@ -25,10 +25,14 @@ const char* kHelp =
     "  --option NAME=VALUE      a method option; applies to every chosen method that has it.\n"
     "                           Qualify it as METHOD.NAME=VALUE for one method only\n"
     "  --constants a=1,b=2      further names in the formula held fixed\n"
-    "  --max-iterations N       iteration limit per run (default 200)\n"
+    "  --max-iterations N       iteration limit per run (default 200, at most 100000000)\n"
     "  --max-evaluations N      value + gradient + Hessian evaluations per run (default 100000)\n"
     "  --gradient-tolerance X   converged when the gradient norm is <= X (default 1e-8)\n"
     "  --summary                leave out the per-iteration table (and the JSON trace)\n"
+    "\n"
+    "The per-iteration records of a run take at most about 16 MiB (256 KiB with --summary);\n"
+    "past that, records in the middle are thinned out (the first, the last 50, every k-th and\n"
+    "the notable ones stay) and the output says how many were dropped.\n"
     "  --json                   one JSON object (several methods: {\"runs\": [...]})\n"
     "\n"
     "Example:\n"
@@ -67,7 +71,10 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
 
     solve::StoppingRules rules;
     if (parsed.has("max-iterations"))
-        rules.maxIterations = static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+        rules.maxIterations = static_cast<int>(
+            parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, solve::StoppingRules::kMaxIterationLimit));
+    // Records that are not printed are thinned to the smallest trace (first, last 50, notable).
+    if (parsed.has("summary")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     if (parsed.has("max-evaluations"))
         rules.maxEvaluations = parseInteger(parsed.get("max-evaluations"), "--max-evaluations", 1, 1000000000000L);
     if (parsed.has("gradient-tolerance")) {
@@ -87,11 +94,11 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
     const bool withTrace = !parsed.has("summary");
     if (parsed.has("json")) {
         if (runs.size() == 1) {
-            out << runToJson(runs[0], names, withTrace).dump(2) << '\n';
+            out << runToJson(runs[0], names, withTrace).dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         } else {
             nlohmann::json all = nlohmann::json::array();
             for (const solve::Run& r : runs) all.push_back(runToJson(r, names, withTrace));
-            out << nlohmann::json{{"runs", all}}.dump(2) << '\n';
+            out << nlohmann::json{{"runs", all}}.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         }
         return exitCodeFor(runs);
     }

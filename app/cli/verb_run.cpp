@@ -61,6 +61,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     if (lineup.empty())
         throw UsageError(path + ": the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
 
+    // Without --json no record is printed: keep only the smallest trace.
+    if (!parsed.has("json")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     const Vector start = study.start();
     const std::vector<std::string> names = study.variableNames();
     std::vector<solve::Run> runs;
@@ -90,7 +92,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
             run["options"] = lineup[k]->options;
             runList.push_back(std::move(run));
         }
-        out << Json({{"study", studyJson}, {"runs", runList}}).dump(2) << '\n';
+        out << Json({{"study", studyJson}, {"runs", runList}}).dump(2, ' ', false, Json::error_handler_t::replace) << '\n';
         return exitCodeFor(runs);
     }
 

@@ -59,6 +59,9 @@ struct State {
     Matrix hessian;
     bool hasHessian = false;
     int iteration = 0;
+    // Absolute floor for "within rounding of f" tests: min(1, |f(x0)|), so a problem of
+    // ordinary size keeps the floor 1 and f scaled by 1e-150 gets a floor of its own size.
+    double valueFloor = 1.0;
 };
 
 struct StepOutcome {

@@ -2,6 +2,7 @@
 // Method options as the command line, the window and study files see them: named values
 // checked against a spec. Each method turns them into its own typed struct.
 
+#include <cstddef>
 #include <map>
 #include <string>
 #include <vector>
@@ -47,6 +48,15 @@ struct StoppingRules {
     // number when n <= this (computed without counting toward the method's evaluations;
     // 0 = never, which keeps benchmarks honest about the method's own cost).
     int spectrumMaxDimension = 50;
+    // Memory for the per-iteration records of one run, in bytes (not a stopping rule). Past it
+    // the trace is thinned (Run::droppedRecords), so a run of any length stays within about
+    // this much. At least kMinTraceMemory; callers that print no trace may pass that minimum.
+    std::size_t traceMemoryLimit = kDefaultTraceMemory;
+    static constexpr std::size_t kDefaultTraceMemory = std::size_t{16} << 20;  // 16 MiB
+    static constexpr std::size_t kMinTraceMemory = std::size_t{256} << 10;     // 256 KiB
+    // Upper bound of the iteration limit (the records' iteration counter is an int; memory is
+    // bounded by traceMemoryLimit whatever the limit).
+    static constexpr int kMaxIterationLimit = 100000000;
     std::string check() const;           // "" or a sentence
 };
 

@@ -125,6 +125,9 @@ struct IterationRecord {
 
     EvaluationCounts evaluations;    // cumulative, including this iteration's work
     Note note;                       // short, readable ("BFGS update skipped: y's <= 0"); note.text()
+    // Kept through thinning (see Run::droppedRecords): a rejected step, a change of step kind
+    // from the record before, or a non-finite value, gradient or trial.
+    bool notable = false;
 };
 
 enum class Termination {
@@ -143,21 +146,44 @@ enum class Termination {
 const char* toString(Termination t);  // kebab-case, e.g. "gradient-tolerance"
 bool isConvergence(Termination t);    // gradient, step or function tolerance
 
-enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate };
-const char* toString(PointKind k);    // "minimum", "saddle", ...
+// NotCritical: the end point failed the stationarity test (see classifyEndPoint), so no class
+// is claimed; EndPoint::curvature still says what the Hessian looks like there.
+enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate, NotCritical };
+const char* toString(PointKind k);    // "minimum", "saddle", ..., "not-critical"
 
 struct EndPoint {
     PointKind kind = PointKind::Unknown;
     int index = 0;                    // number of negative eigenvalues
     Vector eigenvalues;               // ascending
     double tolerance = kNaN;          // |lambda| below this counts as zero
-    bool critical = true;             // false when the gradient there is not small: kind is then only the curvature
+    // True only when the point passed the stationarity test with finite numbers; kind is then
+    // the class of the critical point. False: kind is NotCritical (or Unknown when nothing
+    // could be tested) and reason says why.
+    bool critical = false;
+    PointKind curvature = PointKind::Unknown;  // the Hessian's own class, critical or not
+    // The stationarity measure: the distance from the point to the stationary point of its
+    // local quadratic model, |H^+ g| (eigenvalues below 1e-8 max|lambda| count as that floor);
+    // unchanged when f is multiplied by a constant. NaN when not computed.
+    double stationaryDistance = kNaN;
+    double stationaryBound = kNaN;    // the test: stationaryDistance <= this = 1e-3 (1 + |x|)
+    std::string reason;               // why not critical ("" when critical)
     std::string description;          // e.g. "saddle of index 1 (eigenvalues -2, 2)"
 };
 
-// Classifies a critical point by the eigenvalues of the symmetric Hessian.
-// An eigenvalue counts as zero when |lambda| <= relativeTolerance * max(1, max|lambda|).
+// Classifies a point by the eigenvalues of the symmetric Hessian, as if it were critical
+// (kind = curvature; critical is left false: only classifyEndPoint tests stationarity).
+// An eigenvalue counts as zero when |lambda| <= relativeTolerance * max|lambda| (relative to
+// the Hessian itself, so multiplying f by a constant does not change the class).
 EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance = 1e-8);
+
+// The relative distance below which an end point counts as stationary (see EndPoint).
+inline constexpr double kStationaryRelativeDistance = 1e-3;
+
+// Classifies a run's end point x (value f, gradient g, exact Hessian H). A class is given only
+// when f, g and H are finite and the point is stationary by a test that does not scale with f:
+// |H^+ g| <= 1e-3 (1 + |x|) (the local model's stationary point is that close). Otherwise the
+// kind is NotCritical (or Unknown when something is not finite) with the reason.
+EndPoint classifyEndPoint(const Matrix& hessian, const Vector& x, double value, const Vector& gradient);
 
 struct Run {
     std::string methodId;
@@ -170,8 +196,20 @@ struct Run {
     double gradientNorm = kNaN;
     EvaluationCounts evaluations;
     EndPoint endPoint;
-    int iterations() const { return trace.empty() ? 0 : static_cast<int>(trace.size()) - 1; }
+    // Thinning: when the records would pass the stopping rules' traceMemoryLimit, records in the
+    // middle of the trace are dropped. Always kept: the first record, the last
+    // kTraceKeptTail records, notable records (IterationRecord::notable; when even they
+    // outgrow the limit, every other one), ordinary records whose iteration is a multiple of
+    // recordStride, and the records added since the last thinning. A record's own `iteration`
+    // field says which iterate it is.
+    long droppedRecords = 0;          // 0: the trace is complete
+    long recordStride = 1;            // ordinary records kept: every recordStride-th iteration
+    long droppedNotableRecords = 0;   // of droppedRecords, how many were notable
+    int iterations() const { return trace.empty() ? 0 : trace.back().iteration; }
     bool finished() const { return termination != Termination::Running; }
 };
+
+// Records at the end of a trace never dropped by thinning.
+inline constexpr std::size_t kTraceKeptTail = 50;
 
 }  // namespace sw::solve

@@ -44,6 +44,9 @@ public:
         // iteration limit instead would ask for megabytes per run.
         run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 128)) + 1);
         evaluatePoint();
+        // The absolute floor of "within rounding of f" tests: |f(x0)|, at most 1. A problem of
+        // ordinary size keeps the floor 1; f scaled by 1e-150 gets a floor of its own size.
+        state_.valueFloor = std::isfinite(state_.value) ? std::min(1.0, std::abs(state_.value)) : 1.0;
         if (eval_.sawNonFinite()) {
             appendPointRecord();
             finish(Termination::NonFinite, "not finite at the start point: " + eval_.nonFinite() + " at " +
@@ -130,6 +133,16 @@ private:
 
     // Appends the record of the current point, built in place (a record is a few hundred bytes).
     void appendPointRecord() {
+        if (!run_.trace.empty()) {
+            // The step fields of the previous record are final now: is it one findings need?
+            IterationRecord& last = run_.trace.back();
+            const bool kindChanged = run_.trace.size() >= 2 && run_.trace[run_.trace.size() - 2].stepKind != last.stepKind;
+            bool nonFinite = !std::isfinite(last.value) || !last.gradient.allFinite();
+            for (const LineSearchTrial& t : last.trials) nonFinite = nonFinite || !std::isfinite(t.value);
+            last.notable = last.notable || !last.accepted || kindChanged || nonFinite;
+            traceBytes_ += recordBytes(last);
+            if (traceBytes_ > rules_.traceMemoryLimit) thinTrace();
+        }
         IterationRecord& r = run_.trace.emplace_back();
         r.iteration = state_.iteration;
         r.x = state_.x;
@@ -146,6 +159,64 @@ private:
                 objective_.valueGradientHessian(state_.x, g, h);  // diagnostics only: not counted
                 spectrum(h, r.hessianEigenvalues, r.conditionNumber);
             }
+        }
+    }
+
+    // Heap and inline bytes of one record, for the trace memory limit.
+    static std::size_t recordBytes(const IterationRecord& r) {
+        constexpr std::size_t kBlock = 16;  // allocator overhead per heap block
+        auto vectorBytes = [](const Vector& v) {
+            return v.size() ? static_cast<std::size_t>(v.size()) * sizeof(double) + kBlock : std::size_t{0};
+        };
+        std::size_t bytes = sizeof(IterationRecord) + vectorBytes(r.x) + vectorBytes(r.gradient) + vectorBytes(r.step) +
+                            vectorBytes(r.hessianEigenvalues);
+        if (r.trials.capacity()) bytes += r.trials.capacity() * sizeof(LineSearchTrial) + kBlock;
+        if (r.dampingName.capacity() > 15) bytes += r.dampingName.capacity() + kBlock;
+        return bytes;
+    }
+
+    // Drops records from the middle of the trace until it takes at most half the memory limit
+    // (so thinning runs once per half-limit of new records: amortised constant work per step).
+    // Kept: record 0, the last kTraceKeptTail records, notable records, and ordinary records
+    // whose iteration is a multiple of the stride. The first pass uses the stride as it is
+    // (records added since the last thinning that are off it go); the stride doubles only
+    // while that is not enough. When notable records alone outgrow a quarter of the limit,
+    // every other one of them goes too.
+    void thinTrace() {
+        std::vector<IterationRecord>& trace = run_.trace;
+        const std::size_t target = rules_.traceMemoryLimit / 2;
+        bool firstPass = true;
+        while (traceBytes_ > target && trace.size() > kTraceKeptTail + 2) {
+            const std::size_t end = trace.size() - kTraceKeptTail;  // records [1, end) may go
+            std::size_t ordinaryBytes = 0, notableBytes = 0;
+            for (std::size_t i = 1; i < end; ++i) (trace[i].notable ? notableBytes : ordinaryBytes) += recordBytes(trace[i]);
+            const bool thinNotable = notableBytes > rules_.traceMemoryLimit / 4 || ordinaryBytes == 0;
+            if (!thinNotable && !firstPass) {
+                if (run_.recordStride > (long{1} << 40)) break;  // beyond any iteration count
+                run_.recordStride *= 2;
+            }
+            firstPass = false;
+            std::size_t write = 1;
+            long notableOrdinal = 0;
+            for (std::size_t read = 1; read < trace.size(); ++read) {
+                IterationRecord& r = trace[read];
+                bool keep = read >= end;
+                if (!keep && r.notable) keep = !thinNotable || (notableOrdinal++ % 2 == 0);
+                else if (!keep) keep = r.iteration % run_.recordStride == 0;
+                if (!keep) {
+                    traceBytes_ -= std::min(traceBytes_, recordBytes(r));
+                    ++run_.droppedRecords;
+                    if (r.notable) ++run_.droppedNotableRecords;
+                    continue;
+                }
+                if (write != read) trace[write] = std::move(r);
+                ++write;
+            }
+            if (write == trace.size()) {
+                if (thinNotable) break;  // nothing could go
+                continue;                // the stride doubles on the next pass
+            }
+            trace.erase(trace.begin() + static_cast<std::ptrdiff_t>(write), trace.end());
         }
     }
 
@@ -221,43 +292,52 @@ private:
     }
 
     void finish(Termination kind, std::string message) {
+        // Convergence is claimed only for a stopping test that held with finite numbers.
+        if (isConvergence(kind) && !(std::isfinite(state_.value) && state_.x.allFinite() &&
+                                     (state_.gradient.size() != state_.x.size() || state_.gradient.allFinite()))) {
+            message = "failed: " + message + ", but the value or gradient there is not finite";
+            kind = Termination::Failed;
+        }
         run_.termination = kind;
         run_.message = std::move(message);
         run_.x = state_.x;
         run_.value = state_.value;
         run_.gradientNorm = run_.trace.empty() ? kNaN : run_.trace.back().gradientNorm;
         run_.evaluations = eval_.counts();
-        if (!run_.trace.empty()) run_.trace.back().evaluations = eval_.counts();
+        if (!run_.trace.empty()) {
+            IterationRecord& last = run_.trace.back();
+            last.evaluations = eval_.counts();
+            last.notable = last.notable || !std::isfinite(last.value) || !last.gradient.allFinite();
+        }
         classifyEndPoint();
+        // A stopping test can hold away from a critical point (an absolute gradient tolerance on
+        // a tiny objective, a step tolerance on a slow method): say so beside the claim.
+        if (isConvergence(run_.termination) && run_.endPoint.kind == PointKind::NotCritical)
+            run_.message += "; but the end point is not a critical point (" + run_.endPoint.reason + ")";
     }
 
     void classifyEndPoint() {
         const int n = static_cast<int>(state_.x.size());
         if (n > kClassifyMaxDimension) {
-            run_.endPoint.description = "not classified: " + std::to_string(n) + " variables is above the limit of " +
-                                        std::to_string(kClassifyMaxDimension) + " for an eigendecomposition";
+            run_.endPoint.reason = std::to_string(n) + " variables is above the limit of " +
+                                   std::to_string(kClassifyMaxDimension) + " for an eigendecomposition";
+            run_.endPoint.description = "not classified: " + run_.endPoint.reason;
             return;
         }
-        if (!state_.x.allFinite()) {
-            run_.endPoint.description = "not classified: the end point is not finite";
+        if (!state_.x.allFinite() || !std::isfinite(state_.value)) {
+            run_.endPoint = solve::classifyEndPoint(Matrix(), state_.x, state_.value, state_.gradient);
             return;
         }
         Matrix h;
+        Vector g = state_.gradient;
         if (state_.hasHessian && state_.hessian.rows() == n) {
             h = state_.hessian;
         } else {
-            Vector g;
             objective_.valueGradientHessian(state_.x, g, h);  // exact Hessian; not counted
         }
-        run_.endPoint = classifyPoint(h);
-        // Curvature alone does not make a critical point: say so when the gradient is not small.
-        const double gn = run_.gradientNorm;
-        if (run_.endPoint.kind != PointKind::Unknown && std::isfinite(gn) &&
-            gn > std::max(1e-4, std::sqrt(rules_.gradientTolerance)) * (1.0 + std::abs(run_.value))) {
-            run_.endPoint.critical = false;
-            run_.endPoint.description += "; not a critical point (gradient norm " + shortNumber(gn) +
-                                         "), so this is only the local curvature";
-        }
+        if (g.size() != n) objective_.valueGradient(state_.x, g);
+        // A class only where the point is stationary by a test that does not scale with f.
+        run_.endPoint = solve::classifyEndPoint(h, state_.x, state_.value, g);
     }
 
     const MethodInfo& info_;  // the registration's, which lives as long as the program
@@ -271,6 +351,7 @@ private:
     Run run_;
     bool begun_ = false;
     double initialGradientNorm_ = kNaN;
+    std::size_t traceBytes_ = 0;  // recordBytes of every record but the last
 };
 
 std::string firstNonFinite(const Vector& v, const std::vector<std::string>& names) {

@@ -17,6 +17,13 @@ namespace sw::study {
 inline constexpr const char* kFormatName = "saddlewise-study";
 inline constexpr int kFormatVersion = 1;
 
+// Stated limits (docs/robustness.md); a study over one is refused with the field, the value
+// and the limit. The file size limit is kMaxStudyBytes (core/objective/text_file.h, 16 MiB);
+// a data file must be a regular file of at most kMaxTableBytes (1 GiB).
+inline constexpr std::size_t kMaxStudyNesting = 32;    // levels of [ and { (a study needs 4)
+inline constexpr std::size_t kMaxMethodEntries = 1000;  // entries in "methods"
+inline constexpr std::size_t kMaxVariables = 1000;      // entries in "variables"
+
 // A problem in a study, with its place in the document, e.g.
 // "methods[2].options.initial_radius: must be > 0 (got -1)".
 class StudyError : public std::runtime_error {
