@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 #include <iomanip>
+#include <map>
 #include <ostream>
 #include <sstream>
 
@@ -182,9 +183,22 @@ void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
 std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string>& methodIds,
                                                    const std::vector<std::string>& optionTexts) {
     std::vector<solve::OptionValues> result(methodIds.size());
-    auto hasOption = [](const std::string& id, const std::string& option) {
+    // A former option name (docs/names.md) counts as the option; it is stored under the current name.
+    auto currentName = [](const std::string& id, const std::string& option) -> std::string {
         const solve::MethodInfo* info = solve::findMethod(id);
-        return info && solve::findOption(info->options, option) != nullptr;
+        const solve::OptionSpec* spec = info ? solve::findOptionOrFormer(info->options, option) : nullptr;
+        return spec ? spec->name : std::string();
+    };
+    auto hasOption = [&](const std::string& id, const std::string& option) { return !currentName(id, option).empty(); };
+    std::vector<std::map<std::string, std::string>> spelledAs(methodIds.size());  // current name -> as given
+    auto store = [&](std::size_t i, const std::string& key, const std::string& option, const std::string& value) {
+        const std::string name = currentName(methodIds[i], option);
+        const auto given = spelledAs[i].find(name);
+        if (given != spelledAs[i].end() && given->second != option)
+            throw UsageError("--option " + key + ": " + option + " and " + given->second +
+                             " name the same option (" + name + "); keep one");
+        spelledAs[i][name] = option;
+        result[i][name] = value;
     };
     for (const std::string& text : optionTexts) {
         const auto eq = text.find('=');
@@ -207,7 +221,7 @@ std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string
                         throw UsageError("--option " + key + ": method " + method + " has no option '" + option +
                                          "'" + (known.empty() ? " (it takes none)" : "; its options: " + known));
                     }
-                    result[i][option] = value;
+                    store(i, key, option, value);
                 }
             if (!chosen) throw UsageError("--option " + key + ": method '" + method + "' is not among the --method choices");
             continue;
@@ -215,7 +229,7 @@ std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string
         bool used = false;
         for (std::size_t i = 0; i < methodIds.size(); ++i)
             if (hasOption(methodIds[i], key)) {
-                result[i][key] = value;
+                store(i, key, key, value);
                 used = true;
             }
         if (!used) {

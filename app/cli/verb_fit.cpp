@@ -18,7 +18,7 @@ namespace {
 
 const char* kHelp =
     "Usage: saddlewise fit --data FILE.csv --model FORMULA --response COLUMN --start NAME=VALUE,...\n"
-    "                      [--loss least-squares|weighted|huber|cauchy|bernoulli-logit|poisson-log]\n"
+    "                      [--loss least-squares|weighted|huber|cauchy|logistic|poisson]\n"
     "                      [--weights COLUMN] [--sigma COLUMN] [--scale S] [--method ID]\n"
     "                      [--option NAME=VALUE ...] [--separator auto|comma|semicolon|tab]\n"
     "                      [--drop-incomplete] [--max-iterations N] [--confidence LEVEL]\n"
@@ -36,8 +36,9 @@ const char* kHelp =
     "  --loss NAME            least-squares (default): 1/2 sum r^2, r = y - model\n"
     "                         weighted: 1/2 sum w r^2 (needs --weights or --sigma)\n"
     "                         huber, cauchy: robust losses with scale --scale\n"
-    "                         bernoulli-logit: logistic regression; model = linear predictor, y in {0,1}\n"
-    "                         poisson-log: counts with mean exp(model)\n"
+    "                         logistic: y in {0,1} with P(y = 1) = 1/(1 + exp(-model)); the model\n"
+    "                         is the log-odds (former id bernoulli-logit, still read)\n"
+    "                         poisson: counts y with mean exp(model) (former id poisson-log, still read)\n"
     "  --weights COLUMN       row weights (>= 0); any loss\n"
     "  --sigma COLUMN         standard deviations of y (> 0); weights 1/sigma^2\n"
     "  --scale S              the Huber / Cauchy scale, in the response's units (default 1)\n"

@@ -74,7 +74,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         Json variables = Json::array();
         Json startPoint = Json::object();
         for (const study::Variable& v : study.variables) {
-            variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+            variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
             startPoint[v.name] = v.start;
         }
         Json studyJson = {{"file", path},

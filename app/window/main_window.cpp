@@ -714,8 +714,7 @@ RunRequest MainWindow::runRequest() const {
     RunRequest request;
     request.objective = objective_;
     request.start = start();
-    request.rules.maxIterations = study_.maxIterations;
-    request.rules.gradientTolerance = study_.gradientTolerance;
+    request.rules = study_.stoppingRules();  // every stopping rule of the study, as the run verb uses them
     int index = 0;
     for (const auto& e : study_.methods) {
         const int slot = index++;

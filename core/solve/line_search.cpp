@@ -378,7 +378,7 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
         const double promised = -settings.initialStep * state.gradient.dot(direction);
         const double rounding = 1e-15 * (1.0 + std::abs(state.value));
         if (promised >= 0 && promised <= rounding)
-            return {Termination::FunctionTolerance,
+            return {Termination::RoundingLimit,
                     "converged: the line search cannot decrease f beyond rounding in iteration " +
                         std::to_string(state.iteration) + " (first trial promises " + shortNumber(promised) +
                         " <= 1e-15 (1 + |f|))"};

@@ -119,15 +119,16 @@ public:
         return {};
     }
 
-    bool ownConvergence(std::string* why) const override {
+    Termination ownConvergence(std::string* why) const override {
         const double size = size_, spread = spread_;
         if (size <= options_.simplexTolerance && spread <= options_.valueTolerance) {
             if (why)
-                *why = "converged: simplex size " + shortNumber(size) + " <= " + shortNumber(options_.simplexTolerance) +
-                       " and value spread " + shortNumber(spread) + " <= " + shortNumber(options_.valueTolerance);
-            return true;
+                *why = "converged: simplex size " + shortNumber(size) + " <= simplex_size_below " +
+                       shortNumber(options_.simplexTolerance) + " and value spread " + shortNumber(spread) +
+                       " <= value_spread_below " + shortNumber(options_.valueTolerance);
+            return Termination::SimplexSizeBelow;
         }
-        return false;
+        return Termination::Running;
     }
 
 private:
@@ -227,11 +228,16 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
                      {"relative", "absolute"}, 0),
         realOption("zero_size", "relative start simplex: the edge along a coordinate that is 0 in x0", 0.00025, 0,
                    kUnbounded, true, false),
-        flagOption("adaptive", "dimension-dependent expansion/contraction/shrink (Gao & Han 2012)", false),
-        realOption("simplex_tolerance", "converged when all vertices are this close to the best (max norm)", 1e-8, 0,
-                   kUnbounded, false, false),
-        realOption("value_tolerance", "... and all their values this close to the best value", 1e-12, 0, kUnbounded,
-                   false, false),
+        formerlyNamed(flagOption("dimension_scaled_moves",
+                                 "expansion, contraction and shrink depend on the dimension n (Gao & Han 2012)", false),
+                      "adaptive"),
+        formerlyNamed(realOption("simplex_size_below",
+                                 "converged when every vertex is at most this far from the best (max norm)...", 1e-8,
+                                 0, kUnbounded, false, false),
+                      "simplex_tolerance"),
+        formerlyNamed(realOption("value_spread_below", "... and every vertex's value at most this far from the best",
+                                 1e-12, 0, kUnbounded, false, false),
+                      "value_tolerance"),
     };
     const std::vector<OptionSpec> specs = info.options;
     return {{info,
@@ -241,9 +247,9 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
                  o.startSimplex = optionChoice(specs, v, "start_simplex") == "absolute" ? StartSimplex::Absolute
                                                                                         : StartSimplex::Relative;
                  o.zeroSize = optionNumber(specs, v, "zero_size");
-                 o.adaptive = optionFlag(specs, v, "adaptive");
-                 o.simplexTolerance = optionNumber(specs, v, "simplex_tolerance");
-                 o.valueTolerance = optionNumber(specs, v, "value_tolerance");
+                 o.adaptive = optionFlag(specs, v, "dimension_scaled_moves");
+                 o.simplexTolerance = optionNumber(specs, v, "simplex_size_below");
+                 o.valueTolerance = optionNumber(specs, v, "value_spread_below");
                  return std::make_unique<NelderMead>(o);
              },
              {}}};

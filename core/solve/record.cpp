@@ -37,9 +37,16 @@ const char* toString(StepKind kind) {
 const char* toString(Termination t) {
     switch (t) {
         case Termination::Running: return "running";
-        case Termination::GradientTolerance: return "gradient-tolerance";
-        case Termination::StepTolerance: return "step-tolerance";
-        case Termination::FunctionTolerance: return "function-tolerance";
+        case Termination::GradientTolerance: return "gradient-norm-below";
+        case Termination::StepTolerance: return "relative-step-below";
+        case Termination::FunctionTolerance: return "relative-change-below";
+        case Termination::GradientRatioBelow: return "gradient-ratio-below";
+        case Termination::ReductionBelow: return "reduction-below";
+        case Termination::ScaledRadiusBelow: return "scaled-radius-below";
+        case Termination::ColumnCosineBelow: return "column-cosine-below";
+        case Termination::ZeroResiduals: return "zero-residuals";
+        case Termination::RoundingLimit: return "rounding-limit";
+        case Termination::SimplexSizeBelow: return "simplex-size-below";
         case Termination::IterationLimit: return "iteration-limit";
         case Termination::EvaluationLimit: return "evaluation-limit";
         case Termination::LineSearchFailed: return "line-search-failed";
@@ -52,8 +59,19 @@ const char* toString(Termination t) {
 }
 
 bool isConvergence(Termination t) {
-    return t == Termination::GradientTolerance || t == Termination::StepTolerance ||
-           t == Termination::FunctionTolerance;
+    switch (t) {
+        case Termination::GradientTolerance:
+        case Termination::StepTolerance:
+        case Termination::FunctionTolerance:
+        case Termination::GradientRatioBelow:
+        case Termination::ReductionBelow:
+        case Termination::ScaledRadiusBelow:
+        case Termination::ColumnCosineBelow:
+        case Termination::ZeroResiduals:
+        case Termination::RoundingLimit:
+        case Termination::SimplexSizeBelow: return true;
+        default: return false;
+    }
 }
 
 const char* toString(PointKind k) {

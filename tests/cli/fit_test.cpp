@@ -55,9 +55,10 @@ TEST(FitVerb, FitsTheSensorSampleAndPrintsJsonWithEveryKey) {
 
 TEST(FitVerb, FitsTheGerminationSampleWithTheLogisticLoss) {
     Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture + b2*chill_days", "--response",
-                     "germinated", "--loss", "bernoulli-logit", "--start", "b0=0,b1=0,b2=0", "--json", "--summary"});
+                     "germinated", "--loss", "logistic", "--start", "b0=0,b1=0,b2=0", "--json", "--summary"});
     ASSERT_EQ(o.code, 0) << o.err;
     const auto j = nlohmann::json::parse(o.out);
+    EXPECT_EQ(j["loss"], "logistic");
     EXPECT_TRUE(j.contains("log_likelihood"));
     EXPECT_TRUE(j.contains("deviance"));
     EXPECT_FALSE(j.contains("trace"));
@@ -115,7 +116,7 @@ TEST(FitVerb, RejectsBadOptionsWithTheirValidChoices) {
     };
     Outcome loss = with({"--loss", "square"});
     EXPECT_EQ(loss.code, 2);
-    EXPECT_NE(loss.err.find("least-squares, weighted, huber, cauchy, bernoulli-logit, poisson-log"), std::string::npos);
+    EXPECT_NE(loss.err.find("least-squares, weighted, huber, cauchy, logistic, poisson"), std::string::npos);
     Outcome sep = with({"--separator", "pipe"});
     EXPECT_EQ(sep.code, 2);
     EXPECT_NE(sep.err.find("auto, comma, semicolon, tab"), std::string::npos);
@@ -137,5 +138,17 @@ TEST(FitVerb, DescribesItselfInHelp) {
     std::ostringstream out, err;
     EXPECT_EQ(sw::cli::runCommandLine({"fit", "--help"}, out, err), 0);
     EXPECT_NE(out.str().find("--drop-incomplete"), std::string::npos);
-    EXPECT_NE(out.str().find("bernoulli-logit"), std::string::npos);
+    EXPECT_NE(out.str().find("logistic"), std::string::npos);
+}
+
+// The former loss ids still work on the command line and are reported under the current ids.
+TEST(FitVerb, ReadsTheFormerLossIdsAndReportsTheCurrentOnes) {
+    for (const auto& [former, current] : {std::pair<std::string, std::string>{"bernoulli-logit", "logistic"},
+                                          {"poisson-log", "poisson"}}) {
+        const std::string response = current == "logistic" ? "germinated" : "chill_days";
+        Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture", "--response", response, "--loss",
+                         former, "--start", "b0=0,b1=0", "--json", "--summary"});
+        ASSERT_EQ(o.code, 0) << former << ": " << o.err;
+        EXPECT_EQ(nlohmann::json::parse(o.out)["loss"], current);
+    }
 }

@@ -1,6 +1,7 @@
 // Each method of this file's families on small problems whose answers are known by hand:
 // a convex quadratic (minimiser (0.2, 0.4), f* = -0.3; common practice, no published source)
 // and Rosenbrock's function (minimiser (1, 1), f* = 0; Rosenbrock 1960, value from memory).
+#include "core/objective/formula_objective.h"
 #include "core/solve/method.h"
 #include "core/solve/line_search.h"
 #include "core/solve/quasi_newton.h"
@@ -77,7 +78,7 @@ TEST(NelderMead, FindsTheQuadraticsMinimiserFromValuesAlone) {
     StoppingRules rules;
     rules.maxIterations = 1000;
     solve::Run run = solve("nelder-mead", f, point(2, -1), {}, rules);
-    EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
+    EXPECT_EQ(run.termination, Termination::SimplexSizeBelow) << run.message;
     EXPECT_NE(run.message.find("simplex size"), std::string::npos);
     EXPECT_NEAR(run.x[0], 0.2, 1e-6);
     EXPECT_NEAR(run.x[1], 0.4, 1e-6);
@@ -111,16 +112,36 @@ TEST(NelderMead, EveryRecordShowsTheGradientAtItsOwnPoint) {
     EXPECT_EQ(run.evaluations.gradient, 0);
 }
 
-TEST(NelderMead, AdaptiveParametersAlsoSolveRosenbrock) {
+TEST(NelderMead, DimensionScaledMovesAlsoSolveRosenbrock) {
     const FunctionObjective f = problems::rosenbrock();
     StoppingRules rules;
     rules.maxIterations = 2000;
-    for (const char* adaptive : {"false", "true"}) {
-        solve::Run run = solve("nelder-mead", f, point(-1.2, 1), {{"adaptive", adaptive}}, rules);
-        EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
-        EXPECT_NEAR(run.x[0], 1, 1e-6) << adaptive;
-        EXPECT_NEAR(run.x[1], 1, 1e-6) << adaptive;
+    for (const char* scaled : {"false", "true"}) {
+        solve::Run run = solve("nelder-mead", f, point(-1.2, 1), {{"dimension_scaled_moves", scaled}}, rules);
+        EXPECT_EQ(run.termination, Termination::SimplexSizeBelow) << run.message;
+        EXPECT_EQ(std::string(toString(run.termination)), "simplex-size-below");
+        EXPECT_NEAR(run.x[0], 1, 1e-6) << scaled;
+        EXPECT_NEAR(run.x[1], 1, 1e-6) << scaled;
     }
+}
+
+// The option's former name (docs/names.md) is read as the current one: the same run, step for step.
+// Four variables: for n = 2 the dimension-scaled moves equal the classic ones (Gao & Han 2012).
+TEST(NelderMead, ReadsTheFormerNameOfDimensionScaledMoves) {
+    const FormulaObjective f("(a - 1)^2 + 2*(b + 1)^2 + 3*(c - 2)^2 + (d - a)^2 + 0.5*(b - c)^2", {"a", "b", "c", "d"});
+    const Vector start = (Vector(4) << 1.5, 0.5, -1, 2).finished();
+    StoppingRules rules;
+    rules.maxIterations = 2000;
+    const solve::Run current = solve("nelder-mead", f, start, {{"dimension_scaled_moves", "true"}}, rules);
+    const solve::Run former = solve("nelder-mead", f, start, {{"adaptive", "true"}}, rules);
+    const solve::Run plain = solve("nelder-mead", f, start, {}, rules);
+    ASSERT_EQ(former.iterations(), current.iterations()) << former.message;
+    EXPECT_EQ(former.x, current.x);
+    EXPECT_NE(plain.iterations(), current.iterations());  // the option does change the run
+    const solve::Run both =
+        solve("nelder-mead", f, start, {{"adaptive", "true"}, {"dimension_scaled_moves", "true"}}, rules);
+    EXPECT_EQ(both.termination, Termination::Failed);
+    EXPECT_NE(both.message.find("former name adaptive"), std::string::npos) << both.message;
 }
 
 class RobustMethodsOnRosenbrock : public ::testing::TestWithParam<const char*> {};
