@@ -213,9 +213,9 @@ struct LevenbergMarquardtOptions {
     // which keeps the first steps from far starts on the data's scale (NIST StRD BoxBOD from
     // start 1 jumps onto a plateau with 100 and converges with 1).
     double initialRadiusFactor = 1;
-    double functionTolerance = 1e-15;   // relative reduction of |r|^2, actual and predicted
-    double stepTolerance = 1e-15;       // radius <= this * |D x|
-    double orthogonalityTolerance = 0;  // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
+    double reductionBelow = 1e-15;      // relative reduction of |r|^2, actual and predicted
+    double scaledRadiusBelow = 1e-15;   // radius <= this * |D x|
+    double columnCosineBelow = 0;       // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
     double acceptRatio = 1e-4;          // rho above which a step is accepted
     double radiusTolerance = 0.1;       // |D p| within (1 +- this) radius
     // D from the column norms of J (Moré 1978; MINPACK mode 1), or D = I (MINPACK mode 2 with
@@ -248,13 +248,13 @@ public:
             record.note = "all residuals are zero";
             return {Termination::ZeroResiduals, "converged: every residual is exactly zero"};
         }
-        if (options_.orthogonalityTolerance > 0) {
+        if (options_.columnCosineBelow > 0) {
             const double cosine = maxColumnCosine();
-            if (cosine <= options_.orthogonalityTolerance)
+            if (cosine <= options_.columnCosineBelow)
                 return {Termination::ColumnCosineBelow,
                         "converged: residuals orthogonal to the Jacobian's columns (largest cosine " +
                             shortNumber(cosine) + " <= column_cosine_below " +
-                            shortNumber(options_.orthogonalityTolerance) + ")"};
+                            shortNumber(options_.columnCosineBelow) + ")"};
         }
 
         double lambda = 0;
@@ -322,17 +322,17 @@ public:
 
         // Convergence tests of MINPACK lmder (info 1, 2, 6, 7), in Moré's scaled norms.
         const double xScaledNorm = (scale_.asDiagonal() * state.x).norm();
-        const bool smallReduction = std::fabs(actual) <= options_.functionTolerance &&
-                                    predicted <= options_.functionTolerance && 0.5 * rho <= 1.0;
+        const bool smallReduction = std::fabs(actual) <= options_.reductionBelow &&
+                                    predicted <= options_.reductionBelow && 0.5 * rho <= 1.0;
         if (smallReduction)
             return {Termination::ReductionBelow,
                     "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
                         ", predicted " + shortNumber(predicted) + ") <= reduction_below " +
-                        shortNumber(options_.functionTolerance)};
-        if (radius_ <= options_.stepTolerance * xScaledNorm)
+                        shortNumber(options_.reductionBelow)};
+        if (radius_ <= options_.scaledRadiusBelow * xScaledNorm)
             return {Termination::ScaledRadiusBelow, "converged: trust radius " + shortNumber(radius_) +
                                                         " <= scaled_radius_below x |D x| = " +
-                                                        shortNumber(options_.stepTolerance * xScaledNorm)};
+                                                        shortNumber(options_.scaledRadiusBelow * xScaledNorm)};
         if (std::fabs(actual) <= kEps && predicted <= kEps && 0.5 * rho <= 1.0)
             return {Termination::RoundingLimit,
                     "converged: no further reduction of the sum of squares is possible in double precision"};
@@ -377,8 +377,8 @@ private:
 
 class GaussNewton final : public MethodState {
 public:
-    explicit GaussNewton(LineSearchSettings settings, double functionTolerance)
-        : settings_(settings), functionTolerance_(functionTolerance) {}
+    explicit GaussNewton(LineSearchSettings settings, double reductionBelow)
+        : settings_(settings), reductionBelow_(reductionBelow) {}
 
     void start(Evaluator& eval, State& state) override { evaluateWithJacobian(eval, state); }
 
@@ -408,11 +408,11 @@ public:
         evaluateWithJacobian(eval, state);
         record.damping = kNaN;
         const double actual = before > 0 ? (before - state.value) / before : 0.0;
-        if (functionTolerance_ > 0 && std::fabs(actual) <= functionTolerance_ && predicted <= functionTolerance_)
+        if (reductionBelow_ > 0 && std::fabs(actual) <= reductionBelow_ && predicted <= reductionBelow_)
             return {Termination::ReductionBelow,
                     "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
                         ", predicted " + shortNumber(predicted) + ") <= reduction_below " +
-                        shortNumber(functionTolerance_)};
+                        shortNumber(reductionBelow_)};
         return {};
     }
 
@@ -423,7 +423,7 @@ private:
     }
 
     LineSearchSettings settings_;
-    double functionTolerance_;
+    double reductionBelow_;
     Reduced point_;  // r at state.x, reduced
 };
 
@@ -463,9 +463,9 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         lm.make = [specs = lm.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
             LevenbergMarquardtOptions o;
             o.initialRadiusFactor = optionNumber(specs, values, "initial_radius_factor");
-            o.functionTolerance = optionNumber(specs, values, "reduction_below");
-            o.stepTolerance = optionNumber(specs, values, "scaled_radius_below");
-            o.orthogonalityTolerance = optionNumber(specs, values, "column_cosine_below");
+            o.reductionBelow = optionNumber(specs, values, "reduction_below");
+            o.scaledRadiusBelow = optionNumber(specs, values, "scaled_radius_below");
+            o.columnCosineBelow = optionNumber(specs, values, "column_cosine_below");
             o.acceptRatio = optionNumber(specs, values, "accept_ratio");
             o.columnScaling = optionChoice(specs, values, "scaling") == "jacobian";
             return std::make_unique<LevenbergMarquardt>(o);

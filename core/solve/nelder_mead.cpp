@@ -25,9 +25,9 @@ struct NelderMeadOptions {
     double initialSize = 0.05;       // edge of the start simplex (see StartSimplex)
     StartSimplex startSimplex = StartSimplex::Relative;
     double zeroSize = 0.00025;       // Relative: the edge along a coordinate that is 0 in x0
-    bool adaptive = false;           // Gao & Han (2012) parameters
-    double simplexTolerance = 1e-8;  // converged when every vertex is this close to the best (max norm)...
-    double valueTolerance = 1e-12;   // ...and every value is this close to the best
+    bool dimensionScaledMoves = false;  // Gao & Han (2012) parameters
+    double simplexSizeBelow = 1e-8;     // converged when every vertex is this close to the best (max norm)...
+    double valueSpreadBelow = 1e-12;    // ...and every value is this close to the best
 };
 
 // What each move adds to the record's note (the numbers are formatted only when it is read).
@@ -47,9 +47,9 @@ public:
         // Lagarias et al. (1998): reflection 1, expansion 2, contraction 1/2, shrink 1/2.
         // Gao & Han (2012): 1, 1 + 2/n, 3/4 - 1/(2n), 1 - 1/n.
         reflection_ = 1;
-        expansion_ = options_.adaptive ? 1 + 2 / dn : 2;
-        contraction_ = options_.adaptive ? 0.75 - 1 / (2 * dn) : 0.5;
-        shrink_ = options_.adaptive && n > 1 ? 1 - 1 / dn : 0.5;
+        expansion_ = options_.dimensionScaledMoves ? 1 + 2 / dn : 2;
+        contraction_ = options_.dimensionScaledMoves ? 0.75 - 1 / (2 * dn) : 0.5;
+        shrink_ = options_.dimensionScaledMoves && n > 1 ? 1 - 1 / dn : 0.5;
         simplex_ = state.x.replicate(1, n + 1);
         values_.assign(static_cast<std::size_t>(n + 1), state.value);
         order_.resize(static_cast<std::size_t>(n + 1));
@@ -121,11 +121,11 @@ public:
 
     Termination ownConvergence(std::string* why) const override {
         const double size = size_, spread = spread_;
-        if (size <= options_.simplexTolerance && spread <= options_.valueTolerance) {
+        if (size <= options_.simplexSizeBelow && spread <= options_.valueSpreadBelow) {
             if (why)
                 *why = "converged: simplex size " + shortNumber(size) + " <= simplex_size_below " +
-                       shortNumber(options_.simplexTolerance) + " and value spread " + shortNumber(spread) +
-                       " <= value_spread_below " + shortNumber(options_.valueTolerance);
+                       shortNumber(options_.simplexSizeBelow) + " and value spread " + shortNumber(spread) +
+                       " <= value_spread_below " + shortNumber(options_.valueSpreadBelow);
             return Termination::SimplexSizeBelow;
         }
         return Termination::Running;
@@ -247,9 +247,9 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
                  o.startSimplex = optionChoice(specs, v, "start_simplex") == "absolute" ? StartSimplex::Absolute
                                                                                         : StartSimplex::Relative;
                  o.zeroSize = optionNumber(specs, v, "zero_size");
-                 o.adaptive = optionFlag(specs, v, "dimension_scaled_moves");
-                 o.simplexTolerance = optionNumber(specs, v, "simplex_size_below");
-                 o.valueTolerance = optionNumber(specs, v, "value_spread_below");
+                 o.dimensionScaledMoves = optionFlag(specs, v, "dimension_scaled_moves");
+                 o.simplexSizeBelow = optionNumber(specs, v, "simplex_size_below");
+                 o.valueSpreadBelow = optionNumber(specs, v, "value_spread_below");
                  return std::make_unique<NelderMead>(o);
              },
              {}}};
