@@ -97,7 +97,8 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     readout_->setText(tr("Move the cursor over the landscape to read f, |∇f| and the Hessian eigenvalues."));
     readout_->setWordWrap(true);
     logBox_ = new QCheckBox(tr("Log colour"), this);
-    logBox_->setToolTip(tr("Colour by log10(f − f_min) so both the valley floor and the walls show"));
+    logBox_->setToolTip(tr("Colour by log10 of f minus the lowest f on this plane, so both the valley floor and "
+                           "the walls show"));
     resetButton_ = new QToolButton(this);
     resetButton_->setText(tr("Reset view"));
     resetButton_->setToolTip(tr("Return to the plotted variables' ranges"));
@@ -256,7 +257,8 @@ void LandscapeView::rebuildField() {
         }
     }
     const bool anyFinite = lo <= hi;
-    // Log colour: log10(f - f_min + offset); the small offset keeps the minimum cell finite.
+    // Log colour: log10(f - lo + offset), lo the lowest f on the plane; the small offset keeps
+    // the lowest cell finite.
     const double span = anyFinite ? hi - lo : 0.0;
     const double offset = span > 0 ? span * 1e-5 : 1.0;
     auto colourOf = [&](double v) {
@@ -305,7 +307,7 @@ void LandscapeView::rebuildField() {
                 for (int k = k0; k <= k1; ++k) values.push_back(std::pow(10.0, k));
                 return values;
             })));
-        scaleAxis->setLabel(tr("f − f_min (log scale), f_min = %1").arg(formatNumber(lo)));
+        scaleAxis->setLabel(tr("f − %1, log scale (%1: lowest f on this plane)").arg(formatNumber(lo)));
     } else {
         scaleAxis->setTicker(QSharedPointer<QCPAxisTicker>(new QCPAxisTicker));
         scaleAxis->setLabel(tr("f"));

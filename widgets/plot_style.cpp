@@ -1,5 +1,7 @@
 #include "widgets/plot_style.h"
 
+#include "core/solve/solver.h"
+
 #include <QEvent>
 #include <QFileInfo>
 #include <QGuiApplication>
@@ -71,13 +73,36 @@ void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size)
 
 QString endPointLabel(solve::PointKind kind) {
     switch (kind) {
-    case solve::PointKind::Minimum: return QStringLiteral("ends at a minimum");
+    case solve::PointKind::Minimum: return QStringLiteral("ends at a local minimum");
     case solve::PointKind::Saddle: return QStringLiteral("ends at a saddle");
-    case solve::PointKind::Maximum: return QStringLiteral("ends at a maximum");
+    case solve::PointKind::Maximum: return QStringLiteral("ends at a local maximum");
     case solve::PointKind::Degenerate: return QStringLiteral("ends at a degenerate point");
     case solve::PointKind::Unknown: break;
     }
     return QStringLiteral("stopped before converging");
+}
+
+QString stepDescription(const std::string& methodId, const solve::IterationRecord& record) {
+    using solve::StepKind;
+    const StepKind kind = record.stepKind;
+    if (kind == StepKind::None) return {};
+    if (kind == StepKind::Simplex) {  // the note starts with the move: "reflect; simplex size ..."
+        const std::string note = record.note.text();
+        return QString::fromStdString(note.substr(0, note.find(';')));
+    }
+    if (kind == StepKind::LevenbergMarquardt) return record.damping > 0 ? QStringLiteral("damped") : QStringLiteral("undamped");
+    const solve::MethodInfo* info = solve::findMethod(methodId);
+    const std::string family = info ? info->family : std::string();
+    const bool restates = methodId == solve::toString(kind) ||
+                          (kind == StepKind::Gradient && methodId == "gradient-descent") ||
+                          (kind == StepKind::Momentum && (methodId == "momentum" || methodId == "nesterov")) ||
+                          (kind == StepKind::Adaptive && methodId == "adam") ||
+                          (kind == StepKind::Newton && methodId == "damped-newton") ||
+                          (kind == StepKind::QuasiNewton && family == "quasi-newton") ||
+                          (kind == StepKind::ConjugateGradient && family == "conjugate-gradient");
+    if (restates) return {};
+    if (kind == StepKind::Gradient) return QStringLiteral("steepest-descent fallback");
+    return QString::fromLatin1(solve::toString(kind));
 }
 
 bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }

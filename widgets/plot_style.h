@@ -32,6 +32,10 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size = 
 // triangle, degenerate = hollow diamond, unknown (also: stopped before converging) = hollow circle.
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size = 13.0);
 QString endPointLabel(solve::PointKind kind);
+// What a step did, in words, when its kind says more than the method's name: "boundary",
+// "steepest-descent fallback", a simplex move ("reflect"), "damped" or "undamped" for
+// Levenberg-Marquardt. "" when the kind only restates the method (a BFGS step of bfgs).
+QString stepDescription(const std::string& methodId, const solve::IterationRecord& record);
 // Turns a graph into the ring that marks the selected iterate: markers only, in the palette's
 // highlight colour, out of the legend and not selectable.
 void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size = 16.0);

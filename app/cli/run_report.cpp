@@ -40,6 +40,13 @@ std::string countsText(const solve::EvaluationCounts& c) {
     return std::to_string(c.value) + "/" + std::to_string(c.gradient) + "/" + std::to_string(c.hessian);
 }
 
+// Columns on a terminal: UTF-8 text (|∇f|, names) counts one column per character.
+std::size_t columns(const std::string& text) {
+    std::size_t n = 0;
+    for (unsigned char c : text) n += (c & 0xC0) != 0x80;
+    return n;
+}
+
 // A plain text table: columns padded to their widest cell, numbers right-aligned.
 class Table {
 public:
@@ -48,13 +55,14 @@ public:
     void print(std::ostream& out, std::size_t lastColumnUnpadded = 1) const {
         std::vector<std::size_t> width(rows_[0].size(), 0);
         for (const auto& row : rows_)
-            for (std::size_t c = 0; c < row.size() && c < width.size(); ++c) width[c] = std::max(width[c], row[c].size());
+            for (std::size_t c = 0; c < row.size() && c < width.size(); ++c)
+                width[c] = std::max(width[c], columns(row[c]));
         for (const auto& row : rows_) {
             std::string line;
             for (std::size_t c = 0; c < row.size(); ++c) {
                 const bool last = c + lastColumnUnpadded >= row.size();
                 line += c ? "  " : "";
-                line += last ? row[c] : row[c] + std::string(width[c] - row[c].size(), ' ');
+                line += last ? row[c] : row[c] + std::string(width[c] - columns(row[c]), ' ');
             }
             while (!line.empty() && line.back() == ' ') line.pop_back();
             out << line << '\n';
@@ -134,7 +142,8 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
     std::vector<std::string> header = {"k"};
     if (showX)
         for (Eigen::Index i = 0; i < n; ++i) header.push_back(name(names, i));
-    for (const char* h : {"f", "|g|", "step", "alpha", "|step|", "evals v/g/h", "note"}) header.push_back(h);
+    // |∇f| as in the window; the program's text is UTF-8 throughout (method summaries, names).
+    for (const char* h : {"f", "|∇f|", "step", "alpha", "|step|", "evals v/g/h", "note"}) header.push_back(h);
     Table table(header);
     for (const solve::IterationRecord& r : run.trace) {
         std::vector<std::string> row = {std::to_string(r.iteration)};
@@ -169,9 +178,9 @@ void printSummary(std::ostream& out, const solve::Run& run, const std::vector<st
 }
 
 void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
-    Table table({"method", "iterations", "evals v/g/h", "final value", "|g|", "termination", "end point"});
+    Table table({"method", "iterations", "evals v/g/h", "final value", "|∇f|", "termination", "end point"});
     for (const solve::Run& r : runs) {
-        std::string end = solve::toString(r.endPoint.kind);
+        std::string end = solve::describe(r.endPoint.kind);
         if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
         if (!r.endPoint.critical && r.endPoint.kind != solve::PointKind::Unknown) end = "not stationary; curvature: " + end;
         table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),

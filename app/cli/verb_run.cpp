@@ -21,7 +21,7 @@ const char* kHelp =
     "Runs every enabled method of the study's lineup from the study's start point, with the\n"
     "study's stopping rules, and prints one row per method: iterations, evaluations (value,\n"
     "gradient, Hessian), final value, gradient norm, how the run ended, and what kind of point\n"
-    "it ended on (minimum, saddle of index k, maximum, degenerate).\n"
+    "it ended on (local minimum, saddle of index k, local maximum, degenerate).\n"
     "\n"
     "The study is checked in full first; a problem is reported with its place in the file,\n"
     "e.g. 'methods[2].options.initial_radius: must be > 0 (got -1)'. For a data-fit study the\n"

@@ -74,6 +74,17 @@ bool isConvergence(Termination t) {
     }
 }
 
+const char* describe(PointKind k) {
+    switch (k) {
+        case PointKind::Unknown: return "not classified";
+        case PointKind::Minimum: return "local minimum";
+        case PointKind::Saddle: return "saddle";
+        case PointKind::Maximum: return "local maximum";
+        case PointKind::Degenerate: return "degenerate point";
+    }
+    return "not classified";
+}
+
 const char* toString(PointKind k) {
     switch (k) {
         case PointKind::Unknown: return "unknown";
@@ -228,10 +239,10 @@ EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance) {
                           " within " + shortNumber(end.tolerance) + " of zero (" + eig + ")";
     } else if (negative == 0) {
         end.kind = PointKind::Minimum;
-        end.description = "minimum (" + eig + ")";
+        end.description = "local minimum (" + eig + ")";
     } else if (positive == 0) {
         end.kind = PointKind::Maximum;
-        end.description = "maximum (" + eig + ")";
+        end.description = "local maximum (" + eig + ")";
     } else {
         end.kind = PointKind::Saddle;
         end.description = "saddle of index " + std::to_string(negative) + " (" + eig + ")";

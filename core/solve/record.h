@@ -155,7 +155,10 @@ const char* toString(Termination t);  // kebab-case, e.g. "gradient-norm-below"
 bool isConvergence(Termination t);    // any of the convergence tests above
 
 enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate };
-const char* toString(PointKind k);    // "minimum", "saddle", ...
+const char* toString(PointKind k);    // id for JSON: "minimum", "saddle", ...
+// For people: "local minimum", "saddle", "local maximum", "degenerate point" ("not classified").
+// The Hessian test at an end point is local, and the words say so.
+const char* describe(PointKind k);
 
 struct EndPoint {
     PointKind kind = PointKind::Unknown;
