@@ -109,6 +109,19 @@ json recordToJson(const solve::IterationRecord& r) {
             {"note", r.note.text()}};
 }
 
+json provenanceJson(const study::Provenance& p) {
+    json j = {{"program", "Saddlewise"}, {"version", p.version}};
+    if (!p.title.empty()) j["study_title"] = p.title;
+    if (!p.formula.empty()) j["formula"] = p.formula;
+    if (!p.model.empty()) {
+        j["model"] = p.model;
+        j["loss"] = p.loss;
+        j["data"] = p.data;
+    }
+    j["caution"] = study::cautionText();
+    return j;
+}
+
 json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
     json j = {{"method", run.methodId},
               {"label", run.label},

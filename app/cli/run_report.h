@@ -4,6 +4,7 @@
 // comparison of several runs from the same start.
 
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 
 #include <nlohmann/json.hpp>
 
@@ -19,6 +20,10 @@ namespace sw::cli {
 // Non-finite numbers become null.
 nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
 nlohmann::json recordToJson(const solve::IterationRecord& record);
+
+// Where a result came from, and the caution, for the top of a JSON document: {program,
+// version, study_title (when there is a study), formula | model, loss, data, caution}.
+nlohmann::json provenanceJson(const study::Provenance& provenance);
 
 // Per-iteration table: k, f, |∇f|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.

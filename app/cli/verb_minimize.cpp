@@ -91,12 +91,16 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
 
     const bool withTrace = !parsed.has("summary");
     if (parsed.has("json")) {
+        study::Provenance provenance;
+        provenance.formula = parsed.positional[0];
         if (runs.size() == 1) {
-            out << runToJson(runs[0], names, withTrace).dump(2) << '\n';
+            nlohmann::json one = nlohmann::json{{"provenance", provenanceJson(provenance)}};
+            one.update(runToJson(runs[0], names, withTrace));
+            out << one.dump(2) << '\n';
         } else {
             nlohmann::json all = nlohmann::json::array();
             for (const solve::Run& r : runs) all.push_back(runToJson(r, names, withTrace));
-            out << nlohmann::json{{"runs", all}}.dump(2) << '\n';
+            out << nlohmann::json{{"provenance", provenanceJson(provenance)}, {"runs", all}}.dump(2) << '\n';
         }
         return exitCodeFor(runs);
     }

@@ -90,7 +90,9 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
             run["options"] = lineup[k]->options;
             runList.push_back(std::move(run));
         }
-        out << Json({{"study", studyJson}, {"runs", runList}}).dump(2) << '\n';
+        out << Json({{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}})
+                   .dump(2)
+            << '\n';
         return exitCodeFor(runs);
     }
 
@@ -104,6 +106,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     out << '\n';
     for (std::size_t k = 0; k < runs.size(); ++k)
         out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+    out << '\n' << wrapText(study::cautionLine(), 100);
     return exitCodeFor(runs);
 }
 
