@@ -222,7 +222,8 @@ void LandscapeView::rebuild() {
         }
     }
     // The field and its contours change only with a new field or colour scale, not with runs.
-    if (builtField_ != field_.get() || builtLogColour_ != logColour_) rebuildField();
+    if (builtField_ != field_.get() || builtLogColour_ != logColour_ || builtDark_ != isDarkPalette(palette()))
+        rebuildField();
     rebuildPaths();
     updateStartMarker();
     updateHighlight();
@@ -237,6 +238,8 @@ void LandscapeView::selectionChanged() {
 void LandscapeView::rebuildField() {
     builtField_ = field_.get();
     builtLogColour_ = logColour_;
+    builtDark_ = isDarkPalette(palette());
+    colourScale_->setGradient(fieldGradient(builtDark_));  // the scale passes it on to the map
     for (QCPCurve* curve : contourCurves_) plot_->removePlottable(curve);
     contourCurves_.clear();
     const analyze::Field* field = field_ ? &field_->field : nullptr;
@@ -318,7 +321,7 @@ void LandscapeView::rebuildField() {
     // Contour lines, dark on the light end of the gradient and light on the dark end.
     for (const analyze::ContourSet& set : field_->contours) {
         const double position = (colourOf(set.level) - range.lower) / (range.upper - range.lower);
-        const bool lightFill = fieldGradientLightness(position) > 0.55;
+        const bool lightFill = fieldGradientLightness(position, builtDark_) > 0.6;
         const QColor ink = lightFill ? QColor(20, 20, 30, 130) : QColor(255, 255, 255, 120);
         // Contours carry most of the plot's points: a cosmetic pen takes the raster engine's
         // fast line path (a stroked pen cost several ms per redraw at 600 x 600), widened by

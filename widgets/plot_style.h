@@ -46,12 +46,13 @@ void styleAxisRect(QCPAxisRect* rect, const QPalette& palette);
 // True when the palette's window colour is dark.
 bool isDarkPalette(const QPalette& palette);
 
-// The landscape's colour gradient: sequential, lightness rising monotonically from a deep
-// blue-violet (low f) to a pale straw (high f); stops chosen for this project.
-QCPColorGradient fieldGradient();
-// Relative lightness (0 dark .. 1 light) of the gradient at position t in [0,1]; used to pick
+// The landscape's colour scale (our own; see plot_style.cpp): sequential, CIE lightness rising
+// evenly from a deep evergreen (low f) through teal, blue and lilac to a pale blush (high f).
+// `dark`: the variant for a dark window, whose light end is dimmer.
+QCPColorGradient fieldGradient(bool dark = false);
+// CIE lightness L* / 100 (0 dark .. 1 light) of the scale at position t in [0,1]; used to pick
 // contour-line colours that stay visible on the fill.
-double fieldGradientLightness(double t);
+double fieldGradientLightness(double t, bool dark = false);
 
 // Compact number for labels and readouts: 4 significant digits, exponent when needed.
 QString formatNumber(double value, int significantDigits = 4);
