@@ -103,7 +103,7 @@ TEST(FitVerb, HumanReportShowsTheEquationTheEstimatesAndEndsWithTheCaution) {
 
 // A likelihood fit is judged by its deviance, not by squared differences from the linear predictor.
 TEST(FitVerb, LogisticAndPoissonReportsGiveTheDevianceNotASumOfSquares) {
-    for (const std::string& loss : {"logistic", "poisson"}) {
+    for (const std::string loss : {"logistic", "poisson"}) {
         SCOPED_TRACE(loss);
         const std::string response = loss == "logistic" ? "germinated" : "chill_days";
         Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture", "--response", response, "--loss", loss,

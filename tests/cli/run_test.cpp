@@ -103,8 +103,12 @@ TEST(RunVerb, SampleLabelsMatchTheirMethodsAndNotesStateTheExpectedResult) {
         for (const Json& entry : study["methods"]) {
             std::string label = entry.value("label", entry["method"].get<std::string>());
             std::string lower;
-            for (char c : label) lower += c == ' ' ? '-' : static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-            if (lower.find("newton") != std::string::npos) EXPECT_EQ(lower, entry["method"]) << label;
+            for (char c : label) {
+                lower += c == ' ' ? '-' : static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+            }
+            if (lower.find("newton") != std::string::npos) {
+                EXPECT_EQ(lower, entry["method"]) << label;
+            }
         }
         const std::string notes = study["notes"];
         EXPECT_NE(notes.find("Expected result:"), std::string::npos);
