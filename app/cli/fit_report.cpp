@@ -146,7 +146,7 @@ void printFitReport(std::ostream& out, const Table& table, const FitDefinition& 
         // sum of squared differences from the linear predictor would mean nothing.
         fitRows.push_back({"deviance", num(st.deviance, 8)});
         fitRows.push_back({"log-likelihood", num(st.logLikelihood, 8)});
-        fitRows.push_back({"AIC (2 parameters - 2 log-likelihood)", num(2.0 * st.parameters - 2.0 * st.logLikelihood, 8)});
+        fitRows.push_back({"AIC (2 x parameters - 2 x log-likelihood)", num(2.0 * st.parameters - 2.0 * st.logLikelihood, 8)});
         if (def.loss == Loss::PoissonLog && st.degreesOfFreedom > 0)
             fitRows.push_back({"deviance / degrees of freedom (near 1 for Poisson counts)",
                                num(st.deviance / st.degreesOfFreedom, 4)});
@@ -160,7 +160,7 @@ void printFitReport(std::ostream& out, const Table& table, const FitDefinition& 
                            num(st.residualStandardDeviation, 6)});
     }
     printAligned(out, fitRows, "  ");
-    out << "  " << (st.likelihood ? "square root of the information" : "Jacobian")
+    out << "  " << (st.likelihood ? "square root of the Fisher information" : "Jacobian")
         << " with unit-norm columns: rank " << st.rank << " of " << st.parameters << ", condition number "
         << num(st.scaledCondition, 4) << '\n';
 
