@@ -104,7 +104,7 @@ private slots:
 
     // The landscape scale as drawn: QCPColorGradient's own colours at 101 positions.
     static std::vector<QColor> scale(bool dark, int count = 101) {
-        const QCPColorGradient gradient = sw::widgets::fieldGradient(dark);
+        QCPColorGradient gradient = sw::widgets::fieldGradient(dark);  // color() is not const
         std::vector<QColor> colours;
         for (int i = 0; i < count; ++i)
             colours.push_back(QColor::fromRgb(
