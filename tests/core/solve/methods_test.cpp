@@ -95,10 +95,11 @@ TEST(NelderMead, EveryRecordShowsTheGradientAtItsOwnPoint) {
     const FunctionObjective f = problems::rosenbrock();
     StoppingRules rules;
     rules.maxIterations = 200;
-    // From (1.5, 2) the relative start simplex's vertex (1.5, 2.1) is better than the start.
-    solve::Run run = solve("nelder-mead", f, point(1.5, 2), {}, rules);
+    // From (1.5, 1.8) the relative start simplex's vertex (1.5, 2.34) is better than the start
+    // (f = 1.06 against 20.5).
+    solve::Run run = solve("nelder-mead", f, point(1.5, 1.8), {}, rules);
     ASSERT_GE(run.trace.size(), 50u);
-    EXPECT_NE(run.trace.front().x, point(1.5, 2));
+    EXPECT_NE(run.trace.front().x, point(1.5, 1.8));
     int kept = 0;
     for (std::size_t k = 0; k < run.trace.size(); ++k) {
         const IterationRecord& r = run.trace[k];
@@ -452,18 +453,22 @@ TEST(NelderMead, RelativeStartSimplexScalesEachCoordinate) {
     const FunctionObjective f = problems::convexQuadratic();
     StoppingRules rules;
     rules.maxIterations = 1;
+    const MethodInfo* info = findMethod("nelder-mead");
+    ASSERT_NE(info, nullptr);
+    const double size = findOption(info->options, "initial_size")->defaultValue;
+    const double zero = findOption(info->options, "zero_size")->defaultValue;
     for (const Vector& start : {point(2, -1), point(0, 3)}) {
         solve::Run relative = solve("nelder-mead", f, start, {}, rules);
         const double fStart = f.value(start);
         Vector a = start, b = start;
-        a[0] = start[0] != 0 ? 1.05 * start[0] : 0.00025;
-        b[1] = start[1] != 0 ? 1.05 * start[1] : 0.00025;
+        a[0] = start[0] != 0 ? (1 + size) * start[0] : zero;
+        b[1] = start[1] != 0 ? (1 + size) * start[1] : zero;
         const double best = std::min({fStart, f.value(a), f.value(b)});
         EXPECT_DOUBLE_EQ(relative.trace[0].value, best);
         solve::Run absolute = solve("nelder-mead", f, start, {{"start_simplex", "absolute"}}, rules);
         a = start, b = start;
-        a[0] += 0.05 * std::max(1.0, std::abs(start[0]));
-        b[1] += 0.05 * std::max(1.0, std::abs(start[1]));
+        a[0] += size * std::max(1.0, std::abs(start[0]));
+        b[1] += size * std::max(1.0, std::abs(start[1]));
         EXPECT_DOUBLE_EQ(absolute.trace[0].value, std::min({fStart, f.value(a), f.value(b)}));
     }
 }
