@@ -199,4 +199,24 @@ std::string formatNumber(double value, int significant) {
     return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
 }
 
+std::string wrapText(const std::string& text, std::size_t width) {
+    std::string out, line, word;
+    auto flushWord = [&] {
+        if (word.empty()) return;
+        if (!line.empty() && line.size() + 1 + word.size() > width) {
+            out += line + '\n';
+            line.clear();
+        }
+        line += (line.empty() ? "" : " ") + word;
+        word.clear();
+    };
+    for (char c : text) {
+        if (c == ' ' || c == '\n') flushWord();
+        else word += c;
+    }
+    flushWord();
+    if (!line.empty()) out += line + '\n';
+    return out;
+}
+
 }  // namespace sw::cli

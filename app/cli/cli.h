@@ -69,6 +69,8 @@ long parseInteger(const std::string& text, const std::string& what, long lo, lon
 // Numbers for people and for JSON: shortest text that round-trips (C locale), "nan"/"inf"
 // in tables; JSON writers turn non-finite numbers into null.
 std::string formatNumber(double value, int significant = 17);
+// Words wrapped onto lines of at most `width` characters, each line ended with '\n'.
+std::string wrapText(const std::string& text, std::size_t width);
 
 // Each verb lives in its own file under app/cli/ and describes itself (name, summary,
 // help, entry point); verbs.cpp lists them in the order `--help` shows.

@@ -4,6 +4,7 @@
 // comparison of several runs from the same start.
 
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 
 #include <nlohmann/json.hpp>
 
@@ -25,12 +26,17 @@ namespace sw::cli {
 nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
 nlohmann::json recordToJson(const solve::IterationRecord& record);
 
-// Per-iteration table: k, f, |g|, step kind, alpha, |step|, cumulative evaluations, note;
+// Where a result came from, and the caution, for the top of a JSON document: {program,
+// version, study_title (when there is a study), formula | model, loss, data, caution}.
+nlohmann::json provenanceJson(const study::Provenance& provenance);
+
+// Per-iteration table: k, f, |∇f|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.
 void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// Termination and message, iterations, evaluations, x, f, |g|, end point.
+// Termination and message, iterations, evaluations, x, f, |∇f|, end point.
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// One row per run: label, iterations, evaluations, final value, |g|, termination, end-point kind.
+// One row per run: label, iterations, evaluations, final value, |∇f|, termination, end point
+// ("local minimum", "saddle (index 1)", ...).
 void printComparison(std::ostream& out, const std::vector<solve::Run>& runs);
 
 // Distributes --option texts over the chosen methods. "name=value" applies to every chosen

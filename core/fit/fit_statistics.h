@@ -7,7 +7,7 @@
 //     residual Jacobian, computed from the SVD of J (never forming J'J);
 //   huber, cauchy: the sandwich H^-1 B H^-1 m/(m-p), H the exact Hessian of the loss,
 //     B = sum (w loss'(m_i))^2 dm_i dm_i' (Huber 1967; common practice for M-estimators);
-//   bernoulli-logit, poisson-log: the inverse observed information H^-1, H the exact
+//   logistic, poisson: the inverse observed information H^-1, H the exact
 //     Hessian of the negative log-likelihood.
 // Confidence intervals: estimate +- t(1 - (1 - level)/2, m - p) SE for least squares and the
 // robust losses, +- z(1 - (1 - level)/2) SE for likelihoods (Wald intervals).

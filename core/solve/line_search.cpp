@@ -379,7 +379,7 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
         // The floor is min(1, |f(x0)|) rather than 1, so f scaled by 1e-150 is not "flat to rounding".
         const double rounding = 1e-15 * (state.valueFloor + std::abs(state.value));
         if (promised >= 0 && promised <= rounding)
-            return {Termination::FunctionTolerance,
+            return {Termination::RoundingLimit,
                     "converged: the line search cannot decrease f beyond rounding in iteration " +
                         std::to_string(state.iteration) + " (first trial promises " + shortNumber(promised) +
                         " <= 1e-15 (" + (state.valueFloor == 1.0 ? std::string("1") : shortNumber(state.valueFloor)) +

@@ -90,9 +90,32 @@ const OptionSpec* findOption(const std::vector<OptionSpec>& specs, const std::st
     return nullptr;
 }
 
+const OptionSpec* findOptionOrFormer(const std::vector<OptionSpec>& specs, const std::string& name) {
+    if (const OptionSpec* spec = findOption(specs, name)) return spec;
+    for (const OptionSpec& s : specs)
+        for (const std::string& former : s.formerNames)
+            if (former == name) return &s;
+    return nullptr;
+}
+
+std::string renameFormerOptions(const std::vector<OptionSpec>& specs, OptionValues& values) {
+    for (const OptionSpec& spec : specs)
+        for (const std::string& former : spec.formerNames) {
+            const auto it = values.find(former);
+            if (it == values.end()) continue;
+            if (values.count(spec.name))
+                return "option " + spec.name + " is given twice, also under its former name " + former +
+                       "; keep one";
+            std::string text = std::move(it->second);
+            values.erase(it);
+            values.emplace(spec.name, std::move(text));
+        }
+    return "";
+}
+
 std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValues& values) {
     for (const auto& [name, text] : values) {
-        const OptionSpec* spec = findOption(specs, name);
+        const OptionSpec* spec = findOptionOrFormer(specs, name);
         if (!spec) {
             if (specs.empty()) return "unknown option '" + name + "'; this method takes no options";
             std::string known;
@@ -170,13 +193,13 @@ std::string StoppingRules::check() const {
                std::to_string(traceMemoryLimit) + ")";
     if (maxEvaluations < 1) return "max_evaluations must be >= 1 (got " + std::to_string(maxEvaluations) + ")";
     if (!(gradientTolerance >= 0) || !std::isfinite(gradientTolerance))
-        return "gradient_tolerance must be a finite number >= 0 (got " + numberText(gradientTolerance) + ")";
+        return "gradient_norm_below must be a finite number >= 0 (got " + numberText(gradientTolerance) + ")";
     if (!(relativeGradientTolerance >= 0) || !(relativeGradientTolerance < 1))
-        return "relative_gradient_tolerance must be in [0, 1) (got " + numberText(relativeGradientTolerance) + ")";
+        return "gradient_ratio_below must be in [0, 1) (got " + numberText(relativeGradientTolerance) + ")";
     if (!(stepTolerance >= 0) || !std::isfinite(stepTolerance))
-        return "step_tolerance must be a finite number >= 0 (got " + numberText(stepTolerance) + ")";
+        return "relative_step_below must be a finite number >= 0 (got " + numberText(stepTolerance) + ")";
     if (!(functionTolerance >= 0) || !std::isfinite(functionTolerance))
-        return "function_tolerance must be a finite number >= 0 (got " + numberText(functionTolerance) + ")";
+        return "relative_change_below must be a finite number >= 0 (got " + numberText(functionTolerance) + ")";
     if (spectrumMaxDimension < 0)
         return "spectrum_max_dimension must be >= 0 (got " + std::to_string(spectrumMaxDimension) + ")";
     return "";

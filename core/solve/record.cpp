@@ -38,9 +38,16 @@ const char* toString(StepKind kind) {
 const char* toString(Termination t) {
     switch (t) {
         case Termination::Running: return "running";
-        case Termination::GradientTolerance: return "gradient-tolerance";
-        case Termination::StepTolerance: return "step-tolerance";
-        case Termination::FunctionTolerance: return "function-tolerance";
+        case Termination::GradientTolerance: return "gradient-norm-below";
+        case Termination::StepTolerance: return "relative-step-below";
+        case Termination::FunctionTolerance: return "relative-change-below";
+        case Termination::GradientRatioBelow: return "gradient-ratio-below";
+        case Termination::ReductionBelow: return "reduction-below";
+        case Termination::ScaledRadiusBelow: return "scaled-radius-below";
+        case Termination::ColumnCosineBelow: return "column-cosine-below";
+        case Termination::ZeroResiduals: return "zero-residuals";
+        case Termination::RoundingLimit: return "rounding-limit";
+        case Termination::SimplexSizeBelow: return "simplex-size-below";
         case Termination::IterationLimit: return "iteration-limit";
         case Termination::EvaluationLimit: return "evaluation-limit";
         case Termination::LineSearchFailed: return "line-search-failed";
@@ -53,8 +60,31 @@ const char* toString(Termination t) {
 }
 
 bool isConvergence(Termination t) {
-    return t == Termination::GradientTolerance || t == Termination::StepTolerance ||
-           t == Termination::FunctionTolerance;
+    switch (t) {
+        case Termination::GradientTolerance:
+        case Termination::StepTolerance:
+        case Termination::FunctionTolerance:
+        case Termination::GradientRatioBelow:
+        case Termination::ReductionBelow:
+        case Termination::ScaledRadiusBelow:
+        case Termination::ColumnCosineBelow:
+        case Termination::ZeroResiduals:
+        case Termination::RoundingLimit:
+        case Termination::SimplexSizeBelow: return true;
+        default: return false;
+    }
+}
+
+const char* describe(PointKind k) {
+    switch (k) {
+        case PointKind::Unknown: return "not classified";
+        case PointKind::Minimum: return "local minimum";
+        case PointKind::Saddle: return "saddle";
+        case PointKind::Maximum: return "local maximum";
+        case PointKind::Degenerate: return "degenerate point";
+        case PointKind::NotCritical: return "not a critical point";
+    }
+    return "not classified";
 }
 
 const char* toString(PointKind k) {
@@ -213,10 +243,10 @@ EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance) {
                           " within " + shortNumber(end.tolerance) + " of zero (" + eig + ")";
     } else if (negative == 0) {
         end.kind = PointKind::Minimum;
-        end.description = "minimum (" + eig + ")";
+        end.description = "local minimum (" + eig + ")";
     } else if (positive == 0) {
         end.kind = PointKind::Maximum;
-        end.description = "maximum (" + eig + ")";
+        end.description = "local maximum (" + eig + ")";
     } else {
         end.kind = PointKind::Saddle;
         end.description = "saddle of index " + std::to_string(negative) + " (" + eig + ")";

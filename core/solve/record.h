@@ -130,11 +130,22 @@ struct IterationRecord {
     bool notable = false;
 };
 
+// How a run ended. Each convergence test has its own kind and its own id, named after the
+// setting that fires it (docs/names.md lists the former ids).
 enum class Termination {
     Running,
-    GradientTolerance,   // |g| <= gtol, or |g| <= rtol * |g0|
-    StepTolerance,
-    FunctionTolerance,
+    GradientTolerance,   // "gradient-norm-below": |g| <= stopping.gradient_norm_below
+    StepTolerance,       // "relative-step-below": |x_{k+1} - x_k| <= stopping.relative_step_below (1 + |x_k|)
+    FunctionTolerance,   // "relative-change-below": |f_{k+1} - f_k| <= stopping.relative_change_below (1 + |f_k|)
+    GradientRatioBelow,  // "gradient-ratio-below": |g| <= stopping.gradient_ratio_below |g0|
+    ReductionBelow,      // "reduction-below": least squares, relative reduction of |r|^2 (actual and
+                         //   predicted) <= the method's reduction_below
+    ScaledRadiusBelow,   // "scaled-radius-below": Levenberg-Marquardt, radius <= scaled_radius_below |D x|
+    ColumnCosineBelow,   // "column-cosine-below": Levenberg-Marquardt, residuals orthogonal to J's columns
+    ZeroResiduals,       // "zero-residuals": every residual is exactly zero
+    RoundingLimit,       // "rounding-limit": no decrease of f (or improvement of x) is possible in
+                         //   double precision
+    SimplexSizeBelow,    // "simplex-size-below": Nelder-Mead's simplex and its value spread are small
     IterationLimit,
     EvaluationLimit,
     LineSearchFailed,
@@ -143,13 +154,16 @@ enum class Termination {
     StoppedByCaller,
     Failed,              // a method-specific breakdown (message says which)
 };
-const char* toString(Termination t);  // kebab-case, e.g. "gradient-tolerance"
-bool isConvergence(Termination t);    // gradient, step or function tolerance
+const char* toString(Termination t);  // kebab-case, e.g. "gradient-norm-below"
+bool isConvergence(Termination t);    // any of the convergence tests above
 
 // NotCritical: the end point failed the stationarity test (see classifyEndPoint), so no class
 // is claimed; EndPoint::curvature still says what the Hessian looks like there.
 enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate, NotCritical };
-const char* toString(PointKind k);    // "minimum", "saddle", ..., "not-critical"
+const char* toString(PointKind k);    // id for JSON: "minimum", "saddle", ..., "not-critical"
+// For people: "local minimum", "saddle", "local maximum", "degenerate point", "not a critical
+// point" ("not classified"). The Hessian test at an end point is local, and the words say so.
+const char* describe(PointKind k);
 
 struct EndPoint {
     PointKind kind = PointKind::Unknown;

@@ -224,10 +224,12 @@ private:
                                double valueChange = kNaN, double previousValue = kNaN) {
         std::string why;
         if (gradientSmallEnough(why)) return finish(Termination::GradientTolerance, why), true;
+        if (gradientReducedEnough(why)) return finish(Termination::GradientRatioBelow, why), true;
         if (accepted && stepTooSmall(stepNorm, previousX, why)) return finish(Termination::StepTolerance, why), true;
         if (accepted && functionChangeTooSmall(valueChange, previousValue, why))
             return finish(Termination::FunctionTolerance, why), true;
-        if (method_->ownConvergence(&why)) return finish(Termination::StepTolerance, why), true;
+        if (const Termination own = method_->ownConvergence(&why); own != Termination::Running)
+            return finish(own, why), true;
         if (iterationLimitReached(why)) return finish(Termination::IterationLimit, why), true;
         if (evaluationLimitReached(why)) return finish(Termination::EvaluationLimit, why), true;
         return false;
@@ -237,13 +239,19 @@ private:
         if (!info_.needsGradient) return false;  // derivative-free methods judge by their own measure
         const double norm = run_.trace.back().gradientNorm;
         if (norm <= rules_.gradientTolerance) {
-            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient tolerance " +
+            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient_norm_below " +
                   shortNumber(rules_.gradientTolerance);
             return true;
         }
-        if (rules_.relativeGradientTolerance > 0 && norm <= rules_.relativeGradientTolerance * initialGradientNorm_) {
-            why = "converged: gradient norm " + shortNumber(norm) + " <= relative tolerance " +
-                  shortNumber(rules_.relativeGradientTolerance) + " x initial gradient norm " +
+        return false;
+    }
+
+    bool gradientReducedEnough(std::string& why) const {
+        if (!info_.needsGradient || !(rules_.relativeGradientTolerance > 0)) return false;
+        const double norm = run_.trace.back().gradientNorm;
+        if (norm <= rules_.relativeGradientTolerance * initialGradientNorm_) {
+            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient_ratio_below " +
+                  shortNumber(rules_.relativeGradientTolerance) + " x the start's gradient norm " +
                   shortNumber(initialGradientNorm_);
             return true;
         }
@@ -257,7 +265,7 @@ private:
         if (stepNorm > rules_.stepTolerance * (1.0 + previousX.lpNorm<1>())) return false;
         const double scale = 1.0 + previousX.norm();
         if (stepNorm <= rules_.stepTolerance * scale) {
-            why = "converged on step: step norm " + shortNumber(stepNorm) + " <= step tolerance " +
+            why = "converged on step: step norm " + shortNumber(stepNorm) + " <= relative_step_below " +
                   shortNumber(rules_.stepTolerance) + " x (1 + |x|) = " + shortNumber(rules_.stepTolerance * scale);
             return true;
         }
@@ -268,7 +276,7 @@ private:
         if (!(rules_.functionTolerance > 0) || !(change >= 0)) return false;
         const double bound = rules_.functionTolerance * (1.0 + std::abs(previousValue));
         if (change <= bound) {
-            why = "converged on function change: |f change| " + shortNumber(change) + " <= function tolerance " +
+            why = "converged on function change: |f change| " + shortNumber(change) + " <= relative_change_below " +
                   shortNumber(rules_.functionTolerance) + " x (1 + |f|) = " + shortNumber(bound);
             return true;
         }
@@ -378,9 +386,23 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         result.error = "method " + methodId + ": " + why;
         return result;
     }
+    // Values under a former option name (docs/names.md) are read under the current one.
+    OptionValues renamed;
+    const OptionValues* current = &options;
+    for (const auto& entry : options)
+        if (!findOption(info.options, entry.first)) {
+            renamed = options;
+            if (std::string why = renameFormerOptions(info.options, renamed); !why.empty()) {
+                result.error = "method " + methodId + ": " + why;
+                return result;
+            }
+            current = &renamed;
+            break;
+        }
+    const OptionValues& chosen = *current;
     // Every method's defaults pass its own check (tested), so only chosen options need it.
-    if (registration->check && !options.empty()) {
-        if (std::string why = registration->check(options); !why.empty()) {
+    if (registration->check && !chosen.empty()) {
+        if (std::string why = registration->check(chosen); !why.empty()) {
             result.error = "method " + methodId + ": " + why;
             return result;
         }
@@ -431,7 +453,7 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
             return result;
         }
     }
-    std::unique_ptr<MethodState> method = registration->make(options);
+    std::unique_ptr<MethodState> method = registration->make(chosen);
     if (!method) {
         result.error = "method " + methodId + " could not be set up";
         return result;

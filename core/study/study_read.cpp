@@ -106,6 +106,13 @@ public:
 
     std::string at(const std::string& key) const { return place_.empty() ? key : place_ + "." + key; }
     bool has(const std::string& key) const { return value_.contains(key); }
+    // The key a value is given under: its name, or its former name (docs/names.md), which is
+    // read but never written. Both at once is an error.
+    std::string keyOrFormer(const std::string& key, const std::string& former) const {
+        if (has(key) && has(former))
+            fail(at(former), "is the former name of \"" + key + "\", which is also given; keep one");
+        return has(former) ? former : key;
+    }
     const Json& get(const std::string& key) const {
         if (!has(key)) fail(at(key), "missing (required)");
         return value_.at(key);
@@ -382,8 +389,9 @@ std::vector<Variable> readVariables(const Json& document) {
     std::vector<Variable> variables;
     for (std::size_t k = 0; k < list.size(); ++k) {
         const std::string place = item("variables", k);
-        ObjectReader in(list[k], place, {"name", "start", "lower", "upper"});
+        ObjectReader in(list[k], place, {"name", "start", "plot_from", "plot_to", "lower", "upper"});
         in.rejectUnknownKeys();
+        const std::string from = in.keyOrFormer("plot_from", "lower"), to = in.keyOrFormer("plot_to", "upper");
         Variable v;
         v.name = in.text("name", "", true);
         if (!isName(v.name))
@@ -391,11 +399,11 @@ std::vector<Variable> readVariables(const Json& document) {
                                "'" + v.name + "' is not a valid name (letters, digits, _; not starting with a digit)");
         if (!names.insert(v.name).second) ObjectReader::fail(in.at("name"), "'" + v.name + "' is named twice");
         v.start = in.number("start", 0, true);
-        v.lower = in.number("lower", 0, true);
-        v.upper = in.number("upper", 0, true);
+        v.lower = in.number(from, 0, true);
+        v.upper = in.number(to, 0, true);
         if (!(v.lower < v.upper))
-            ObjectReader::fail(in.at("lower"), "must be below upper (got lower " + numberText(v.lower) + ", upper " +
-                                                   numberText(v.upper) + ")");
+            ObjectReader::fail(in.at(from), "must be below " + to + " (got " + from + " " + numberText(v.lower) + ", " +
+                                                to + " " + numberText(v.upper) + ")");
         variables.push_back(v);
     }
     return variables;
@@ -485,9 +493,8 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
             ObjectReader options(in.get("options"), in.at("options"), {});
             for (const auto& option : in.get("options").items()) {
                 const std::string optionPlace = options.at(option.key());
-                const solve::OptionSpec* spec = nullptr;
-                for (const solve::OptionSpec& s : info->options)
-                    if (s.name == option.key()) spec = &s;
+                // A former option name (docs/names.md) is read, and kept under the current name.
+                const solve::OptionSpec* spec = solve::findOptionOrFormer(info->options, option.key());
                 if (!spec) {
                     std::vector<std::string> names;
                     for (const solve::OptionSpec& s : info->options) names.push_back(s.name);
@@ -496,9 +503,12 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                                            (names.empty() ? "; it takes no options" : "; its options: " + join(names)));
                 }
                 const std::string text = optionText(*spec, option.value(), optionPlace);
-                const std::string problem = solve::checkOptions(info->options, {{option.key(), text}});
-                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, option.key()));
-                entry.options[option.key()] = text;
+                const std::string problem = solve::checkOptions(info->options, {{spec->name, text}});
+                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, spec->name));
+                if (entry.options.count(spec->name))
+                    ObjectReader::fail(optionPlace, "is the same option as \"" + spec->name +
+                                                        "\" (its former or current name), which is also given; keep one");
+                entry.options[spec->name] = text;
             }
             for (const solve::MethodRegistration& registration : solve::registrations())
                 if (registration.info.id == entry.method && registration.check) {
@@ -521,9 +531,12 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
 
 void readStopping(const Json& document, Study& study) {
     if (!document.contains("stopping")) return;
+    // The tolerances are named after the test each sets (docs/names.md); the former names
+    // are read too.
     ObjectReader in(document.at("stopping"), "stopping",
-                    {"max_iterations", "max_evaluations", "gradient_tolerance", "relative_gradient_tolerance",
-                     "step_tolerance", "function_tolerance"});
+                    {"max_iterations", "max_evaluations", "gradient_norm_below", "gradient_ratio_below",
+                     "relative_step_below", "relative_change_below", "gradient_tolerance",
+                     "relative_gradient_tolerance", "step_tolerance", "function_tolerance"});
     in.rejectUnknownKeys();
     study.maxIterations = static_cast<int>(in.integer("max_iterations", study.maxIterations, 1, 1000000));
     study.maxEvaluations = in.integer("max_evaluations", study.maxEvaluations, 1, 1000000000);
@@ -537,10 +550,13 @@ void readStopping(const Json& document, Study& study) {
                                                " (got " + numberText(v) + ")");
         return v;
     };
-    study.gradientTolerance = nonNegative("gradient_tolerance", study.gradientTolerance, kNoLimit);
-    study.relativeGradientTolerance = nonNegative("relative_gradient_tolerance", study.relativeGradientTolerance, 1);
-    study.stepTolerance = nonNegative("step_tolerance", study.stepTolerance, kNoLimit);
-    study.functionTolerance = nonNegative("function_tolerance", study.functionTolerance, kNoLimit);
+    study.gradientTolerance =
+        nonNegative(in.keyOrFormer("gradient_norm_below", "gradient_tolerance"), study.gradientTolerance, kNoLimit);
+    study.relativeGradientTolerance = nonNegative(in.keyOrFormer("gradient_ratio_below", "relative_gradient_tolerance"),
+                                                  study.relativeGradientTolerance, 1);
+    study.stepTolerance = nonNegative(in.keyOrFormer("relative_step_below", "step_tolerance"), study.stepTolerance, kNoLimit);
+    study.functionTolerance =
+        nonNegative(in.keyOrFormer("relative_change_below", "function_tolerance"), study.functionTolerance, kNoLimit);
     const std::string problem = study.stoppingRules().check();
     if (!problem.empty()) ObjectReader::fail("stopping", problem);
 }
@@ -622,6 +638,7 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
         Loss loss;
         if (!parseLoss(fit.loss, loss))
             ObjectReader::fail(objective.at("loss"), "must be one of: " + lossList() + " (got \"" + fit.loss + "\")");
+        fit.loss = toString(loss);  // a former id (docs/names.md) is saved under the current one
         if (objective.has("weights") && objective.has("sigma"))
             ObjectReader::fail(objective.at("sigma"), "give either \"weights\" or \"sigma\", not both");
         if (objective.has("sigma")) {
