@@ -9,6 +9,7 @@
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
 #include "widgets/landscape_view.h"
 #include "widgets/local_model_view.h"
@@ -853,10 +854,9 @@ void MainWindow::showHelpText(const QString& title, const QString& html) {
 
 void MainWindow::about() {
     QMessageBox::about(this, tr("About Saddlewise"),
-                       tr("<b>Saddlewise</b> %1<p>%2</p><p>A fit is only as good as its model and its data: check "
-                          "results independently before relying on them, and where safety is involved defer to the "
-                          "applicable codes and licensed professional practice.</p>")
-                           .arg(QCoreApplication::applicationVersion(), aboutText().toHtmlEscaped()));
+                       tr("<b>Saddlewise</b> %1<p>%2</p><p><i>%3</i></p>")
+                           .arg(QCoreApplication::applicationVersion(), aboutText().toHtmlEscaped(),
+                                QString::fromUtf8(study::cautionText()).toHtmlEscaped()));
 }
 
 // ---------------------------------------------------------------- objective, lineup, runs
@@ -960,7 +960,7 @@ RunRequest MainWindow::runRequest() const {
     RunRequest request;
     request.objective = objective_;
     request.start = start();
-    request.rules = study_.stoppingRules();
+    request.rules = study_.stoppingRules();  // every stopping rule of the study, as the run verb uses them
     int index = 0;
     for (const auto& e : study_.methods) {
         const int slot = index++;
@@ -1325,7 +1325,11 @@ bool MainWindow::exportStepsCsv(const QString& path, QString* error) {
         if (error) *error = tr("there are no runs to export yet");
         return false;
     }
-    const QByteArray text = widgets::StepsModel::toCsv(*snapshot_).toUtf8();
+    // Where the numbers came from, and the caution, as comment lines above the header.
+    const QString preamble = QStringLiteral("# %1\n# %2\n").arg(
+        QString::fromStdString(study::provenanceLine(study::provenanceOf(study_))),
+        QString::fromStdString(study::cautionLine()));
+    const QByteArray text = (preamble + widgets::StepsModel::toCsv(*snapshot_)).toUtf8();
     QSaveFile file(path);
     if (!file.open(QIODevice::WriteOnly) || file.write(text) != text.size() || !file.commit()) {
         if (error) *error = tr("cannot write %1: %2").arg(path, file.errorString());

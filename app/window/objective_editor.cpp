@@ -275,8 +275,8 @@ void ObjectiveEditor::buildFitPage(QWidget* page) {
         {"weighted", QT_TR_NOOP("½ Σ w r² (weights or standard deviations from a column)")},
         {"huber", QT_TR_NOOP("Huber: quadratic near zero, linear beyond the scale")},
         {"cauchy", QT_TR_NOOP("Cauchy: grows like log(1 + (r/scale)²)")},
-        {"bernoulli-logit", QT_TR_NOOP("Logistic regression: the model is the log-odds; response 0/1")},
-        {"poisson-log", QT_TR_NOOP("Poisson counts: the model is the log of the mean")}};
+        {"logistic", QT_TR_NOOP("Logistic: the model is the log-odds of a 0/1 response")},
+        {"poisson", QT_TR_NOOP("Poisson: the model is the log of the mean count")}};
     for (const auto& [id, tip] : losses) {
         loss_->addItem(QString::fromLatin1(id), QString::fromLatin1(id));
         loss_->setItemData(loss_->count() - 1, tr(tip), Qt::ToolTipRole);
@@ -385,8 +385,8 @@ void ObjectiveEditor::setStudy(const study::Study& study, const QString& baseDir
                                                  : new QTableWidgetItem(QString::fromStdString(typed->second));
         };
         variables_->setItem(row, StartColumn, cell("start", v.start));
-        variables_->setItem(row, LowerColumn, cell("lower", v.lower));
-        variables_->setItem(row, UpperColumn, cell("upper", v.upper));
+        variables_->setItem(row, LowerColumn, cell("plot_from", v.lower));
+        variables_->setItem(row, UpperColumn, cell("plot_to", v.upper));
     }
     // Every fit control is set (or cleared) on every study, so nothing of the last one stays.
     const study::DataFit fit = study.fit.value_or(study::DataFit{});
@@ -454,8 +454,8 @@ std::vector<study::Variable> ObjectiveEditor::variablesFromTable(std::map<std::s
             return value;
         };
         v.start = number(StartColumn, "start");
-        v.lower = number(LowerColumn, "lower");
-        v.upper = number(UpperColumn, "upper");
+        v.lower = number(LowerColumn, "plot_from");
+        v.upper = number(UpperColumn, "plot_to");
         out.push_back(v);
     }
     return out;
