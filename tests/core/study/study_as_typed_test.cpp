@@ -79,7 +79,7 @@ TEST(StudyAsTyped, ContentProblemsAreKeptAndStructureProblemsAreStillRefused) {
     const std::vector<std::pair<std::string, std::string>> content = {
         {editedStudy([](Json& d) { d["variables"][0]["name"] = "2gain"; }), "variables[0].name"},
         {editedStudy([](Json& d) { d["variables"][1]["name"] = "gain"; }), "variables[1].name"},
-        {editedStudy([](Json& d) { d["variables"][0]["lower"] = 5; }), "variables[0].lower"},
+        {editedStudy([](Json& d) { d["variables"][0]["plot_from"] = 5; }), "variables[0].plot_from"},
         {editedStudy([](Json& d) { d["methods"][2]["options"]["initial_radius"] = -1; }), "methods[2].options.initial_radius"},
         {editedStudy([](Json& d) { d["methods"][2]["options"]["initial_radius"] = "0.5x"; }), "methods[2].options.initial_radius"},
         {editedStudy([](Json& d) { d["methods"][0]["method"] = "levenberg-marquardt"; d["methods"][0]["options"] = Json::object(); }),
@@ -157,7 +157,7 @@ TEST(StudyAsTyped, CheckVariablesNamesTheFirstProblem) {
     };
     Study s = study;
     s.variables[1].upper = -5;
-    EXPECT_EQ(problem(s), "variables[1].lower: must be below upper (got lower -1, upper -5)");
+    EXPECT_EQ(problem(s), "variables[1].plot_from: must be below plot_to (got plot_from -1, plot_to -5)");
     s = study;
     s.variables[0].name = "x y";
     EXPECT_EQ(problem(s).rfind("variables[0].name: 'x y' is not a valid name", 0), 0u);
