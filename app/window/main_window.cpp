@@ -5,6 +5,7 @@
 
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
+#include "app/window/fit_statistics_panel.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
@@ -91,6 +92,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     createMenus();
     createToolBars();
     createStatusBar();
+    fitStatistics_ = new FitStatisticsPanel(this, jobs_);
     defaultLayout_ = saveState();
 
     connect(jobs_, &JobRunner::runsReady, this, &MainWindow::showRuns);
@@ -631,7 +633,7 @@ void MainWindow::about() {
                           "on a saddle: exact gradients and Hessians of your formula or model, several methods run "
                           "side by side from the same start, and at every iterate the landscape, the local quadratic "
                           "model and the Hessian's eigenvalues.</p><p><i>%2</i></p>")
-                           .arg(QCoreApplication::applicationVersion(), QString::fromUtf8(study::cautionText())));
+                           .arg(QCoreApplication::applicationVersion(), QString::fromStdString(study::cautionLine())));
 }
 
 // ---------------------------------------------------------------- objective, lineup, runs
@@ -981,6 +983,7 @@ void MainWindow::showField(std::shared_ptr<const widgets::FieldSnapshot> field) 
 void MainWindow::setSelection(const widgets::Selection& selection) {
     if (selection == selection_) return;
     selection_ = selection;
+    emit selectionChanged(selection_);
     if (lazyViews_.isActive()) {
         lazyViews_.stop();
         updateOtherViews();
