@@ -54,20 +54,10 @@ FitStatisticsView::FitStatisticsView(QWidget* parent) : QWidget(parent) {
     browser_->setOpenLinks(false);
     browser_->setFrameShape(QFrame::NoFrame);
     browser_->setToolTip(tr("The selected run's fit statistics; select text to copy it"));
-    caution_ = new QLabel(this);
-    caution_->setObjectName("fit-caution");
-    caution_->setWordWrap(true);
-    caution_->setTextInteractionFlags(Qt::TextSelectableByMouse);
-    caution_->setText(QString::fromStdString(study::cautionLine()));
-    QFont small = caution_->font();
-    small.setPointSizeF(small.pointSizeF() * 0.9);
-    caution_->setFont(small);
-    caution_->setContentsMargins(6, 2, 6, 4);
     auto* layout = new QVBoxLayout(this);
     layout->setContentsMargins(0, 0, 0, 0);
     layout->setSpacing(0);
     layout->addWidget(browser_, 1);
-    layout->addWidget(caution_);
     message_ = tr("No run yet.");
     render();
 }
@@ -111,7 +101,7 @@ QStringList FitStatisticsView::parameterCells(int parameter) const {
 }
 
 QString FitStatisticsView::text() const { return browser_->toPlainText(); }
-QString FitStatisticsView::cautionText() const { return caution_->text(); }
+QString FitStatisticsView::cautionText() const { return QString::fromStdString(study::cautionLine()); }
 
 void FitStatisticsView::changeEvent(QEvent* event) {
     QWidget::changeEvent(event);
@@ -123,21 +113,24 @@ void FitStatisticsView::render() {
     const QString muted = mix(pal.color(QPalette::Text), pal.color(QPalette::Base), 0.4);
     const QString headerBackground = mix(pal.color(QPalette::Base), pal.color(QPalette::Text), 0.08);
     const QString warningColour = problemTextColour(pal).name();
-    caution_->setStyleSheet(QStringLiteral("color: %1;").arg(muted));
+    // The caution closes every page the panel shows (a fixed line under a short panel would
+    // leave no room for the numbers).
+    const QString caution = QStringLiteral("<p style=\"color: %1; margin-top: 8px;\"><i>%2</i></p>")
+                                .arg(muted, cautionText().toHtmlEscaped());
 
     QString html = QStringLiteral("<html><body style=\"margin: 4px;\">");
     auto th = [&](const QString& text, bool left = false) {
-        return QStringLiteral("<th align=\"%1\" style=\"background-color: %2; padding: 2px 6px;\">%3</th>")
+        return QStringLiteral("<th align=\"%1\" style=\"background-color: %2; padding: 2px 6px; white-space: nowrap;\">%3</th>")
             .arg(left ? QStringLiteral("left") : QStringLiteral("right"), headerBackground, text);
     };
     auto td = [](const QString& text, bool left = false, const QString& extra = {}) {
-        return QStringLiteral("<td align=\"%1\" style=\"padding: 2px 6px;%2\">%3</td>")
+        return QStringLiteral("<td align=\"%1\" style=\"padding: 2px 6px; white-space: nowrap;%2\">%3</td>")
             .arg(left ? QStringLiteral("left") : QStringLiteral("right"), extra, text);
     };
 
     if (!snapshot_) {
         html += QStringLiteral("<p style=\"color: %1;\">%2</p>").arg(muted, message_.toHtmlEscaped());
-        html += QStringLiteral("</body></html>");
+        html += caution + QStringLiteral("</body></html>");
         browser_->setHtml(html);
         return;
     }
@@ -161,8 +154,8 @@ void FitStatisticsView::render() {
                 .arg(tr("Equation: %1").arg(s.equation.toHtmlEscaped()), tr("Loss: %1").arg(s.lossText.toHtmlEscaped()));
 
     if (!s.problem.isEmpty()) {
-        html += QStringLiteral("<p style=\"color: %1;\">%2</p></body></html>")
-                    .arg(warningColour, tr("No statistics: %1").arg(s.problem.toHtmlEscaped()));
+        html += QStringLiteral("<p style=\"color: %1;\">%2</p>%3</body></html>")
+                    .arg(warningColour, tr("No statistics: %1").arg(s.problem.toHtmlEscaped()), caution);
         browser_->setHtml(html);
         return;
     }
@@ -264,7 +257,7 @@ void FitStatisticsView::render() {
     html += QStringLiteral("<table cellspacing=\"0\" cellpadding=\"0\" style=\"margin-top: 6px;\"><tr>"
                            "<td valign=\"top\" style=\"padding-right: 24px;\">%1</td><td valign=\"top\">%2</td></tr></table>")
                 .arg(quality, correlations);
-    html += QStringLiteral("</body></html>");
+    html += caution + QStringLiteral("</body></html>");
     const int scroll = browser_->verticalScrollBar() ? browser_->verticalScrollBar()->value() : 0;
     browser_->setHtml(html);
     if (browser_->verticalScrollBar()) browser_->verticalScrollBar()->setValue(scroll);

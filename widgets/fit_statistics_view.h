@@ -3,8 +3,8 @@
 // the estimates with their standard errors and confidence intervals, the combinations the data
 // determine when single parameters are not determined, the correlations between estimates, how
 // well the model fits in the terms of its loss (sums of squares, or deviance and
-// log-likelihood), the rows, parameters and degrees of freedom, and the fit's warnings — with
-// the caution that a fit is only as good as its model and data always in sight below.
+// log-likelihood), the rows, parameters and degrees of freedom, and the fit's warnings — and,
+// closing every page it shows, the caution that a fit is only as good as its model and data.
 //
 // It draws only from an immutable FitSnapshot (widgets/fit_snapshot.h); numbers are printed
 // with the command line's significant digits (estimates 10, intervals 6, standard errors 4),
@@ -16,7 +16,6 @@
 #include <QWidget>
 #include <memory>
 
-class QLabel;
 class QTextBrowser;
 
 namespace sw::widgets {
@@ -39,7 +38,7 @@ public:
     // error, relative error; a parameter the data do not determine has its estimate and then
     // the single cell "not determined by the data".
     QStringList parameterCells(int parameter) const;
-    // The shown document as plain text, and the caution line under it.
+    // The shown document as plain text, and the caution line that closes it.
     QString text() const;
     QString cautionText() const;
 
@@ -57,7 +56,6 @@ private:
     QString message_;
     bool busy_ = false;
     QTextBrowser* browser_ = nullptr;
-    QLabel* caution_ = nullptr;
 };
 
 }  // namespace sw::widgets

@@ -315,6 +315,7 @@ private slots:
         const QString caution = QString::fromStdString(sw::study::cautionLine());
         QVERIFY(caution.startsWith("Caution: "));
         QCOMPARE(window.fitStatistics()->view()->cautionText(), caution);
+        QVERIFY(window.fitStatistics()->view()->text().contains(caution));
         QString aboutText;
         QTimer::singleShot(0, &window, [&] {
             for (QWidget* w : QApplication::topLevelWidgets())
