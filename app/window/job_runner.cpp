@@ -1,5 +1,7 @@
 #include "app/window/job_runner.h"
 
+#include "core/fit/run_fit.h"
+
 #include <QCoreApplication>
 #include <QElapsedTimer>
 #include <QThread>
@@ -33,6 +35,7 @@ std::shared_ptr<const solve::Run> rejectedRun(const RunEntry& entry, const std::
 JobRunner::JobRunner(QObject* parent) : QObject(parent) {
     qRegisterMetaType<std::shared_ptr<const RunBatch>>();
     qRegisterMetaType<std::shared_ptr<const widgets::FieldSnapshot>>();
+    qRegisterMetaType<std::shared_ptr<const widgets::FitSnapshot>>();
     // Runs and fields may overlap; the field sampler spreads over every core itself.
     pool_.setMaxThreadCount(std::max(2, QThread::idealThreadCount()));
     for (auto& flag : cancel_) flag = std::make_shared<std::atomic<bool>>(false);
@@ -232,6 +235,49 @@ void JobRunner::sampleField(const FieldRequest& request) {
         std::shared_ptr<const widgets::FieldSnapshot> result = snapshot;
         finishOnGui(Field, generation, wasCancelled, [this, result, generation, wasCancelled] {
             if (!wasCancelled) emit fieldReady(result, generation);
+        });
+    });
+}
+
+void JobRunner::computeFitStatistics(const FitStatisticsRequest& request) {
+    quint64 generation = 0;
+    CancelFlag cancelled = startGeneration(Statistics, generation);
+    launch(Statistics, [this, request, generation, cancelled] {
+        if (cancelled->load()) {  // superseded while it waited for a thread
+            finishOnGui(Statistics, generation, true, {});
+            return;
+        }
+        QElapsedTimer clock;
+        clock.start();
+        auto snapshot = std::make_shared<widgets::FitSnapshot>();
+        const solve::Run& run = *request.run;
+        snapshot->runLabel = request.runLabel;
+        snapshot->methodId = run.methodId;
+        snapshot->termination = run.termination;
+        snapshot->terminationMessage = run.message;
+        snapshot->iteration = run.iterations();
+        snapshot->finished = run.finished();
+        snapshot->definition = request.objective->definition();
+        snapshot->equation = request.equation;
+        snapshot->lossText = request.lossText;
+        // A finished run's x is its end point; a stepped run's is its latest record.
+        const Vector x = run.finished() || run.trace.empty() ? run.x : run.trace.back().x;
+        if (x.size() != request.objective->dimension()) {
+            snapshot->problem = run.message.empty() ? QStringLiteral("the run has no iterate")
+                                                    : QString::fromStdString(run.message);
+        } else {
+            try {
+                snapshot->statistics = fit::computeStatistics(*request.objective, x, request.confidenceLevel);
+                snapshot->warnings = fit::fitWarnings(run, snapshot->statistics);
+            } catch (const std::exception& e) {
+                snapshot->problem = QString::fromUtf8(e.what());
+            }
+        }
+        snapshot->seconds = clock.nsecsElapsed() * 1e-9;
+        const bool wasCancelled = cancelled->load();
+        std::shared_ptr<const widgets::FitSnapshot> result = snapshot;
+        finishOnGui(Statistics, generation, wasCancelled, [this, result, wasCancelled] {
+            if (!wasCancelled) emit fitStatisticsReady(result);
         });
     });
 }

@@ -9,6 +9,7 @@
 
 #include "core/analyze/analyze.h"
 #include "core/solve/solver.h"
+#include "widgets/fit_snapshot.h"
 #include "widgets/snapshot.h"
 
 #include <QObject>
@@ -64,10 +65,20 @@ struct FieldRequest {
     bool logColour = false;
 };
 
+// The statistics of one run of a data fit (the fit view's job; widgets/fit_snapshot.h). The
+// run's end point (its current iterate while it is stepped) is where they are computed.
+struct FitStatisticsRequest {
+    std::shared_ptr<const FitObjective> objective;
+    std::shared_ptr<const solve::Run> run;
+    QString runLabel;
+    QString equation, lossText;  // the fit in words, as the command line's report writes them
+    double confidenceLevel = 0.95;
+};
+
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, KindCount = 2 };
+    enum Kind { Runs = 0, Field = 1, Statistics = 2, KindCount = 3 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -84,11 +95,14 @@ public:
     void endStepSession();
 
     void sampleField(const FieldRequest& request);
+    // One call into core/fit, which cannot be interrupted: a superseded or cancelled request
+    // that has not started is skipped, one that has started finishes and is dropped.
+    void computeFitStatistics(const FitStatisticsRequest& request);
 
     void cancel(Kind kind);
     void cancelAll();
     bool busy(Kind kind) const { return inFlight_[kind] > 0; }
-    bool anyBusy() const { return busy(Runs) || busy(Field); }
+    bool anyBusy() const { return busy(Runs) || busy(Field) || busy(Statistics); }
     quint64 generation(Kind kind) const { return generation_[kind]; }
     // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
     bool waitForIdle(int timeoutMs);
@@ -96,6 +110,7 @@ public:
 signals:
     void runsReady(std::shared_ptr<const sw::window::RunBatch> batch);
     void fieldReady(std::shared_ptr<const sw::widgets::FieldSnapshot> field, quint64 generation);
+    void fitStatisticsReady(std::shared_ptr<const sw::widgets::FitSnapshot> statistics);
     void progress(int kind, double fraction);
     void jobStarted(int kind);
     // After a result was delivered, dropped as stale, or the job was cancelled.
@@ -120,3 +135,4 @@ private:
 
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::RunBatch>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FieldSnapshot>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FitSnapshot>)

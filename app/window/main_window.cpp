@@ -8,6 +8,7 @@
 #include "app/window/icons.h"
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
+#include "app/window/fit_statistics_panel.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
@@ -109,6 +110,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     createMenus();
     createToolBars();
     createStatusBar();
+    fitStatistics_ = new FitStatisticsPanel(this, jobs_);
     defaultLayout_ = saveState();
 
     connect(jobs_, &JobRunner::runsReady, this, &MainWindow::showRuns);
@@ -856,7 +858,7 @@ void MainWindow::about() {
     QMessageBox::about(this, tr("About Saddlewise"),
                        tr("<b>Saddlewise</b> %1<p>%2</p><p><i>%3</i></p>")
                            .arg(QCoreApplication::applicationVersion(), aboutText().toHtmlEscaped(),
-                                QString::fromUtf8(study::cautionText()).toHtmlEscaped()));
+                                QString::fromStdString(study::cautionLine()).toHtmlEscaped()));
 }
 
 // ---------------------------------------------------------------- objective, lineup, runs
@@ -1229,6 +1231,7 @@ void MainWindow::showField(std::shared_ptr<const widgets::FieldSnapshot> field) 
 void MainWindow::setSelection(const widgets::Selection& selection) {
     if (selection == selection_) return;
     selection_ = selection;
+    emit selectionChanged(selection_);
     if (lazyViews_.isActive()) {
         lazyViews_.stop();
         updateOtherViews();

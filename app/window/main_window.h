@@ -41,6 +41,7 @@ class PlotView;
 
 namespace sw::window {
 
+class FitStatisticsPanel;
 class ObjectiveEditor;
 class LineupEditor;
 class DerivativesPane;
@@ -91,6 +92,7 @@ public:
     Vector start() const;
     QString lastSummary() const;
     JobRunner* jobs() const { return jobs_; }
+    FitStatisticsPanel* fitStatistics() const { return fitStatistics_; }
     widgets::LandscapeView* landscape() const { return landscape_; }
     widgets::LocalModelView* localModel() const { return localModel_; }
     widgets::CurvatureView* curvature() const { return curvature_; }
@@ -145,6 +147,7 @@ signals:
     // After each delivered batch of runs has reached the views.
     void runsShown();
     void fieldShown();
+    void selectionChanged(const sw::widgets::Selection& selection);
 
 protected:
     void closeEvent(QCloseEvent* event) override;
@@ -227,6 +230,7 @@ private:
     quint64 shownRunGeneration_ = 0;
 
     JobRunner* jobs_ = nullptr;
+    FitStatisticsPanel* fitStatistics_ = nullptr;  // the Fit dock; places itself (fit_statistics_panel.h)
     QTimer animation_;
     QTimer heldResample_;
     QTimer lazyViews_;  // views other than the landscape catch up when a drag pauses

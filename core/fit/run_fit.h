@@ -44,6 +44,11 @@ struct FitResult {
 // The method used when the request names none.
 std::string defaultFitMethod(Loss loss);
 
+// The warnings of a fit at the end (or, for a run still being stepped, the current iterate)
+// of `run`: one when the run did not converge or has not finished, then the statistics' own.
+// The command line and the window both report these, so they say the same.
+std::vector<std::string> fitWarnings(const solve::Run& run, const FitStatistics& statistics);
+
 // Throws FitError (bad definition, start values, unknown method, a method needing residuals
 // with a loss that has none) or expr::FormulaError (the model formula).
 FitResult runFit(std::shared_ptr<const Table> table, const FitRequest& request,
