@@ -1,4 +1,5 @@
-// saddlewise: no arguments or a study file opens the window; a verb runs headless.
+// saddlewise: no arguments or a study file opens the window; a verb runs headless; anything
+// else is reported in one line (exit 2) without touching the display.
 #include "app/cli/cli.h"
 
 #include <iostream>
@@ -11,8 +12,10 @@
 
 int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
-    bool headless = !args.empty() && (sw::cli::isVerb(args[0]) || args[0].rfind("-", 0) == 0 || args[0] == "help");
-    if (headless) return sw::cli::runCommandLine(args, std::cout, std::cerr);
+    const sw::cli::FirstArgument kind = sw::cli::classifyFirstArgument(args);
+    if (kind == sw::cli::FirstArgument::Headless) return sw::cli::runCommandLine(args, std::cout, std::cerr);
+    // An unknown verb or a study file that is not there: one line and exit 2, before any window.
+    if (kind != sw::cli::FirstArgument::Window) return sw::cli::reportFirstArgument(kind, args[0], std::cerr);
 #ifdef SW_HAVE_GUI
     return sw::window::launch(argc, argv);
 #else

@@ -36,6 +36,13 @@ bool isVerb(const std::string& word);
 // Runs argv[1..] (argv[0] excluded). Catches UsageError/Failure/FormulaError and prints them.
 int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std::ostream& err);
 
+// What argv[1..] asks for, decided before any window exists (first_argument.cpp): a verb or
+// option (Headless), the window (no argument, or a study file that exists), or a mistake.
+enum class FirstArgument { Headless, Window, UnknownVerb, MissingStudy, NotAStudy };
+FirstArgument classifyFirstArgument(const std::vector<std::string>& args);
+// For the mistakes: one line on err naming the word and the verbs; returns 2 (0 otherwise).
+int reportFirstArgument(FirstArgument kind, const std::string& first, std::ostream& err);
+
 // ---- argument helpers shared by the verbs (args.cpp) ----
 
 // Splits args into options (--name value / --name=value / --flag) and positionals.

@@ -9,6 +9,10 @@
 #include <QMessageBox>
 #include <QTimer>
 #include <cstdio>
+#include <cstdlib>
+#include <cstring>
+#include <string>
+#include <vector>
 
 namespace sw::window {
 
@@ -30,10 +34,88 @@ void scheduleScreenshot(MainWindow& window, const QString& path) {
     });
 }
 
+// ---- no display: one line and exit 2, never Qt's abort ----------------------------------
+
+const char* kHeadlessHint = "the headless verbs need none (saddlewise --help)";
+
+bool environmentSet(const char* name) {
+    const char* value = std::getenv(name);
+    return value && *value;
+}
+
+// The platforms Qt will try, in order: `-platform NAME` on the command line, else
+// QT_QPA_PLATFORM, else Qt's default (xcb on Debian; wayland first in a Wayland session).
+std::vector<std::string> platformCandidates(int argc, char** argv) {
+    std::string list;
+    for (int i = 1; i + 1 < argc; ++i)
+        if (std::strcmp(argv[i], "-platform") == 0) list = argv[i + 1];
+    if (list.empty() && environmentSet("QT_QPA_PLATFORM")) list = std::getenv("QT_QPA_PLATFORM");
+    if (list.empty()) list = environmentSet("WAYLAND_DISPLAY") ? "wayland;xcb" : "xcb";
+    std::vector<std::string> names;
+    std::size_t start = 0;
+    while (start <= list.size()) {
+        const std::size_t end = std::min(list.find(';', start), list.size());
+        std::string name = list.substr(start, end - start);
+        name = name.substr(0, name.find(':'));  // "xcb:option" -> "xcb"
+        if (!name.empty()) names.push_back(name);
+        start = end + 1;
+    }
+    return names;
+}
+
+// Empty when some platform Qt will try has a display to talk to; else the reason it has none.
+// (A display named but unreachable is caught by the message handler below.)
+std::string missingDisplay(int argc, char** argv) {
+    std::string reasons;
+    for (const std::string& name : platformCandidates(argc, argv)) {
+        std::string reason;
+        if (name == "xcb") {
+            if (!environmentSet("DISPLAY")) reason = "DISPLAY is not set";
+        } else if (name.rfind("wayland", 0) == 0) {
+            if (!environmentSet("WAYLAND_DISPLAY")) reason = "WAYLAND_DISPLAY is not set";
+        }
+        if (reason.empty()) return "";  // offscreen, minimal, vnc, eglfs, ... or a named display
+        reasons += (reasons.empty() ? "" : ", ") + reason;
+    }
+    return reasons.empty() ? "no Qt platform is named" : reasons;
+}
+
+// While QApplication starts, Qt's messages are held back; a fatal one (no platform plugin could
+// be initialised, e.g. DISPLAY names a display that does not answer) becomes our one line and
+// exit 2 instead of an abort. Once the application is up, the held messages are passed on.
+QtMessageHandler previousHandler = nullptr;
+std::vector<std::pair<QtMsgType, QString>> heldMessages;
+std::string firstWarning;  // the reason named in the line, e.g. "could not connect to display :7"
+
+void startupMessageHandler(QtMsgType type, const QMessageLogContext&, const QString& message) {
+    if (type == QtFatalMsg) {
+        const std::string reason = firstWarning.empty() ? message.section('\n', 0, 0).toStdString() : firstWarning;
+        std::fprintf(stderr, "saddlewise: cannot open the window: no display could be opened (%s); %s\n",
+                     reason.c_str(), kHeadlessHint);
+        std::fflush(stderr);
+        std::_Exit(2);
+    }
+    if (firstWarning.empty() && type == QtWarningMsg) firstWarning = message.section('\n', 0, 0).toStdString();
+    heldMessages.emplace_back(type, message);
+}
+
+void releaseHeldMessages() {
+    qInstallMessageHandler(previousHandler);
+    for (const auto& [type, message] : heldMessages)
+        if (type == QtWarningMsg || type == QtCriticalMsg) std::fprintf(stderr, "%s\n", qPrintable(message));
+    heldMessages.clear();
+}
+
 }  // namespace
 
 int launch(int argc, char** argv) {
+    if (const std::string reason = missingDisplay(argc, argv); !reason.empty()) {
+        std::fprintf(stderr, "saddlewise: cannot open the window: no display (%s); %s\n", reason.c_str(), kHeadlessHint);
+        return 2;
+    }
+    previousHandler = qInstallMessageHandler(startupMessageHandler);
     QApplication app(argc, argv);
+    releaseHeldMessages();
     QApplication::setApplicationName("Saddlewise");
     QApplication::setOrganizationName("Saddlewise");
     QApplication::setApplicationVersion(QString::fromLatin1(study::programVersion()));

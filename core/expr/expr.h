@@ -11,6 +11,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <stdexcept>
 #include <string>
@@ -185,5 +186,27 @@ struct GridSpec {
 };
 double evaluateGrid(const Program& program, const GridSpec& grid, std::vector<std::vector<double>>& outputs,
                     int threads = 0 /* 0 = hardware concurrency */);
+
+// Point i of n along [lo, hi], both ends included: lo + (hi - lo) i / (n - 1), exactly lo and hi
+// at the ends; when (hi - lo) i overflows (lo = -1e308, hi = 1e308) it is computed from the
+// halves of the ends instead, so every point of a box of finite ends is finite.
+double gridCoordinate(double lo, double hi, int i, int n);
+
+// The same grid without keeping it: each thread evaluates pieces of rows (at most chunkPoints
+// points each) into buffers of its own, calls consume with them, and reuses the buffers, so
+// memory is threads x outputs x chunkPoints doubles whatever the grid size. consume runs on
+// the worker threads at once (thread 0..T-1, T at most `threads` or, for 0, the hardware
+// threads, says which; keep per-thread state apart);
+// chunk.outputs[o] holds chunk.count values of output o at points (first .. first+count-1,
+// row), valid only during the call. Returns wall-clock seconds.
+struct GridChunk {
+    int thread = 0;
+    int row = 0;
+    std::size_t first = 0;
+    std::size_t count = 0;
+    const double* const* outputs = nullptr;
+};
+double streamGrid(const Program& program, const GridSpec& grid, std::size_t chunkPoints, int threads,
+                  const std::function<void(const GridChunk&)>& consume);
 
 }  // namespace sw::expr

@@ -1,12 +1,19 @@
 // See vector_math.h. This file is compiled for AVX2 (the pragma); its functions are only
 // called after the run-time check in available().
+#if !defined(__clang__)
 #pragma GCC target("avx2,fma")
+#endif
 #include "core/expr/vector_math.h"
 
 #include <immintrin.h>
 
 #include <cstdlib>
 #include <dlfcn.h>
+
+// Clang (the fuzz build, scripts/fuzz) ignores GCC's target pragma; its own form follows.
+#if defined(__clang__)
+#pragma clang attribute push(__attribute__((target("avx2,fma"))), apply_to = function)
+#endif
 
 namespace sw::expr::vecmath {
 
@@ -87,3 +94,7 @@ bool pow(double* d, const double* a, const double* b, std::size_t m) {
 }
 
 }  // namespace sw::expr::vecmath
+
+#if defined(__clang__)
+#pragma clang attribute pop
+#endif

@@ -10,8 +10,12 @@ namespace sw::streaming_qr {
 
 namespace {
 
+#if defined(__clang__)  // the fuzz build (scripts/fuzz): clang ignores GCC's target pragma
+#pragma clang attribute push(__attribute__((target("avx2,fma"))), apply_to = function)
+#else
 #pragma GCC push_options
 #pragma GCC target("avx2,fma")
+#endif
 
 double horizontalSum(__m256d v) {
     const __m128d low = _mm256_castpd256_pd128(v), high = _mm256_extractf128_pd(v, 1);
@@ -173,7 +177,11 @@ void avxAxpys(const double* x, double* const* y, const double* alpha, int count,
     }
 }
 
+#if defined(__clang__)
+#pragma clang attribute pop
+#else
 #pragma GCC pop_options
+#endif
 
 }  // namespace
 

@@ -86,6 +86,19 @@ struct Eigenbasis {
         for (Eigen::Index i = 0; i < lambda.size(); ++i) in[static_cast<std::size_t>(i)] = lambda(i) - lambda(0) <= tol;
         return in;
     }
+    // The unit direction in the smallest eigenspace along which the model's linear term falls:
+    // -(g's part in that space) normalised, when g has any part there (the nearly hard case,
+    // orthogonal only within the tolerance), else the first eigenvector. Moving along it never
+    // raises the model more than moving against it (m(a + tau z) - m(a) = tau z'g + tau^2
+    // lambda_1 / 2 when a has no part in the space), so the hard-case step takes it.
+    Vector descentInSmallest(const std::vector<bool>& in) const {
+        Vector coefficients = Vector::Zero(lambda.size());
+        for (Eigen::Index i = 0; i < lambda.size(); ++i)
+            if (in[static_cast<std::size_t>(i)]) coefficients(i) = -c(i);
+        const double size = coefficients.norm();
+        if (!(size > 0) || !std::isfinite(size)) return q.col(0);
+        return q * (coefficients / size);
+    }
     // True when g has (within rounding) no component in the smallest eigenspace.
     bool orthogonalToSmallest(const std::vector<bool>& in, double gnorm) const {
         const double tol = 1e-12 * std::max(gnorm, std::numeric_limits<double>::min());
@@ -356,7 +369,7 @@ static SubproblemResult exactUnscaled(const Vector& g, const Matrix& b, double r
                 result.kind = StepKind::Interior;
                 result.note = "model minimiser inside the region (B singular, lambda = 0)";
             } else {
-                const Vector z = eb.q.col(0);
+                const Vector z = eb.descentInSmallest(smallest);
                 const double tau = std::sqrt(std::max(0.0, radius * radius - partialNorm * partialNorm));
                 result.step = partial + tau * z;
                 result.kind = StepKind::NegativeCurvature;
@@ -411,7 +424,7 @@ static SubproblemResult cubicUnscaled(const Vector& g, const Matrix& b, double s
         const double partialNorm = partial.norm();
         if (partialNorm <= wanted) {
             const double tau = std::sqrt(std::max(0.0, wanted * wanted - partialNorm * partialNorm));
-            result.step = partial + tau * eb.q.col(0);
+            result.step = partial + tau * eb.descentInSmallest(smallest);
             result.hardCase = true;
             result.multiplier = lo;
             result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it", lambda1 * up);

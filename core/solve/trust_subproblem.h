@@ -52,7 +52,9 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
 // equation is evaluated in the eigenbasis of B (one symmetric eigendecomposition per call in
 // place of one Cholesky factorisation per Newton step; affordable for the n this program
 // draws). Hard case (g orthogonal to the eigenspace of the smallest eigenvalue lambda1 < 0
-// and |p(-lambda1)| <= radius): p = p(-lambda1) + tau z, z that eigenvector, |p| = radius.
+// and |p(-lambda1)| <= radius): p = p(-lambda1) + tau z, |p| = radius, z the unit vector of
+// that eigenspace along -(g's part in it) when g has a part there below the tolerance (so the
+// step lowers the model's linear term; never worse than -z), else the first eigenvector.
 // Kinds: Interior (lambda = 0, the Newton step), Boundary, NegativeCurvature (hard case).
 SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double radius);
 

@@ -7,6 +7,7 @@
 //   muparser  - muParser's own bulk evaluation of our printed derivative formulas;
 //   (NumPy on SymPy-lambdified derivatives runs in tests/bench/bench_expr_numpy.py.)
 #include "core/expr/expr.h"
+#include "tests/bench/bench_landscape_formula.h"
 
 #include <benchmark/benchmark.h>
 #include <muParser.h>
@@ -17,30 +18,13 @@
 
 namespace {
 
-// A quartic bowl with a tilted valley, plus a Gaussian bump modulated by sines and cosines.
-const char* kFormula = "0.1*x^4 + 0.1*y^4 - 0.5*x*y + 3*exp(-0.5*((x - 1)^2 + (y + 0.5)^2))*sin(2*x)*cos(3*y)";
+const char* kFormula = sw::bench::kLandscapeFormula;
 constexpr int kGrid = 1000;
 constexpr double kLo = -3, kHi = 3;
 
 double coordinate(int i) { return kLo + (kHi - kLo) * i / (kGrid - 1); }
 
-// Hand-written value, gradient and Hessian with the subexpressions shared by hand.
-// G = 3 exp(-(u^2 + v^2)/2), u = x - 1, v = y + 1/2; S = sin 2x, C = cos 3y.
-inline void handWritten(double x, double y, double* out) {
-    const double u = x - 1, v = y + 0.5;
-    const double G = 3 * std::exp(-0.5 * (u * u + v * v));
-    const double S = std::sin(2 * x), Sp = 2 * std::cos(2 * x), Spp = -4 * S;
-    const double C = std::cos(3 * y), Cp = -3 * std::sin(3 * y), Cpp = -9 * C;
-    const double Gx = -u * G, Gy = -v * G, Gxx = (u * u - 1) * G, Gyy = (v * v - 1) * G, Gxy = u * v * G;
-    const double x2 = x * x, y2 = y * y;
-    const double A = Gx * S + G * Sp;  // d(G S)/dx
-    out[0] = 0.1 * x2 * x2 + 0.1 * y2 * y2 - 0.5 * x * y + G * S * C;
-    out[1] = 0.4 * x2 * x - 0.5 * y + A * C;
-    out[2] = 0.4 * y2 * y - 0.5 * x + S * (Gy * C + G * Cp);
-    out[3] = 1.2 * x2 + (Gxx * S + 2 * Gx * Sp + G * Spp) * C;
-    out[4] = -0.5 + (Gxy * S + Gy * Sp) * C + A * Cp;
-    out[5] = 1.2 * y2 + S * (Gyy * C + 2 * Gy * Cp + G * Cpp);
-}
+inline void handWritten(double x, double y, double* out) { sw::bench::landscapeByHand(x, y, out); }
 
 void nativeGrid(std::vector<std::vector<double>>& outputs, int threads) {
     auto rows = [&](int first, int last) {
