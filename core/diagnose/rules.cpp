@@ -478,7 +478,9 @@ std::optional<Finding> ruleFlatDirection(const RunFacts& facts) {
     Eigen::Index scaledIndex = 0;
     const double scaledRatio = scaledTop > 0 ? c.scaledEigenvalues.cwiseAbs().minCoeff(&scaledIndex) / scaledTop : 0.0;
     if (!(top > 0)) return std::nullopt;
-    const bool plainFlat = plainRatio <= thresholds::kFlatRatio;
+    // (The plain test also asks the eigenvalue to be small in f's own units: a badly scaled
+    // variable, e.g. one near 1e6, has a small eigenvalue relative to the largest but is not flat.)
+    const bool plainFlat = plainRatio <= thresholds::kFlatRatio && top * plainRatio <= thresholds::kFlatRatio;
     const bool scaledFlat = scaledRatio <= thresholds::kFlatRatio;
     if (!plainFlat && !scaledFlat) return std::nullopt;
     const Run& run = *facts.run;
@@ -914,7 +916,10 @@ std::optional<Finding> ruleDivergence(const RunFacts& facts) {
         if (atEnd.valid && atStart.valid) {
             const double endCurvature = drift.dot(atEnd.hessian * drift);
             const double startCurvature = drift.dot(atStart.hessian * drift);
-            flatAlongDrift = std::abs(endCurvature) <= atEnd.tolerance ||
+            // Nil to rounding (relative to the largest curvature), or faded since the window began.
+            const double nil = 64 * std::numeric_limits<double>::epsilon() *
+                               std::max(1.0, atEnd.eigenvalues.cwiseAbs().maxCoeff());
+            flatAlongDrift = std::abs(endCurvature) <= nil ||
                              std::abs(endCurvature) <= thresholds::kDriftFading * std::abs(startCurvature);
             // Other variables may still oscillate across the drift: judge by the end Hessian's
             // eigenvector closest to it (|cos| >= 0.9).
@@ -922,7 +927,7 @@ std::optional<Finding> ruleDivergence(const RunFacts& facts) {
                 const Vector v = atEnd.eigenvectors.col(i);
                 if (std::abs(v.dot(drift)) < 0.9) continue;
                 const double there = std::abs(atEnd.eigenvalues[i]), before = std::abs(v.dot(atStart.hessian * v));
-                flatAlongDrift = there <= atEnd.tolerance || there <= thresholds::kDriftFading * before;
+                flatAlongDrift = there <= nil || there <= thresholds::kDriftFading * before;
             }
         }
     }

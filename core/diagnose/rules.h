@@ -29,9 +29,10 @@ inline constexpr int kMinWindow = 8;              // common practice, no publish
 // end-point classification's own tolerance (solve::classifyPoint), so the two never disagree.
 inline constexpr double kZeroEigenvalue = 1e-8;
 // flat-direction: the smallest eigenvalue of the Jacobi-scaled Hessian D H D (D = diag(H)^-1/2,
-// unit diagonal, so bad units alone never trigger it) is at most this fraction of the largest:
-// a direction is flat to about the square root of machine precision. Common practice (the
-// sqrt(eps) relative rank tolerance), no published source for the exact value.
+// unit diagonal, so bad units alone never trigger it) is at most this fraction of the largest,
+// or the Hessian's own smallest |eigenvalue| is at most this fraction of max(1, largest) and at
+// most this in f's units: a direction is flat to about the square root of machine precision.
+// Common practice (the sqrt(eps) relative rank tolerance), no published source for the value.
 inline constexpr double kFlatRatio = 1e-8;
 
 // narrow-valley: all three must hold over the window.
