@@ -3,6 +3,8 @@
 
 #include "app/window/main_window.h"
 
+#include "app/window/findings_controller.h"
+#include "app/window/findings_panel.h"
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
 #include "core/solve/solver.h"
@@ -98,6 +100,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     connect(jobs_, &JobRunner::progress, this, &MainWindow::onJobProgress);
     connect(jobs_, &JobRunner::jobStarted, this, &MainWindow::onJobStateChanged);
     connect(jobs_, &JobRunner::jobEnded, this, &MainWindow::onJobStateChanged);
+    findingsController_ = new FindingsController(this, findingsPanel_);
 
     animation_.setInterval(200);
     connect(&animation_, &QTimer::timeout, this, &MainWindow::animationTick);
@@ -125,6 +128,7 @@ void MainWindow::createViews() {
     steps_ = new widgets::StepsTable(this);
     objectiveEditor_ = new ObjectiveEditor(this);
     lineupEditor_ = new LineupEditor(this);
+    findingsPanel_ = new FindingsPanel(this);
 
     for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
                                     static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
@@ -170,6 +174,8 @@ void MainWindow::createDocks() {
     QDockWidget* slice = makeDock("slice", tr("Slice"), slice_,
                                   tr("The objective along the selected step, with the line-search trials"));
     QDockWidget* steps = makeDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
+    QDockWidget* findings = makeDock("findings", tr("Findings"), findingsPanel_,
+                                     tr("Why each run stalled, ended on a saddle or crawls, and the remedies tried"));
 
     // No central widget: every view is a dock the user may move, stack or float.
     setCentralWidget(nullptr);
@@ -182,6 +188,8 @@ void MainWindow::createDocks() {
     tabifyDockWidget(progress, curvature);
     tabifyDockWidget(curvature, slice);
     progress->raise();
+    tabifyDockWidget(steps, findings);
+    findings->raise();
     resizeDocks({objective, landscape, local}, {330, 640, 430}, Qt::Horizontal);
     resizeDocks({landscape, steps}, {600, 260}, Qt::Vertical);
     resizeDocks({objective, lineup}, {480, 380}, Qt::Vertical);
@@ -274,7 +282,7 @@ void MainWindow::createMenus() {
     for (const char* name : {"run-all", "step-all", "play", "reset", "cancel"}) run->addAction(action(name));
 
     viewMenu_ = menuBar()->addMenu(tr("&View"));
-    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps"})
+    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps", "findings"})
         viewMenu_->addAction(docks_[name]->toggleViewAction());
     viewMenu_->addSeparator();
     viewMenu_->addAction(action("reset-layout"));
@@ -993,6 +1001,7 @@ void MainWindow::setSelection(const widgets::Selection& selection) {
         updateHeldText();
         heldResample_.start();
     }
+    emit selectionChanged(selection_);
 }
 
 QString MainWindow::lastSummary() const { return summary_; }

@@ -37,6 +37,8 @@ namespace sw::window {
 
 class ObjectiveEditor;
 class LineupEditor;
+class FindingsPanel;
+class FindingsController;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -75,6 +77,8 @@ public:
     widgets::StepsTable* steps() const { return steps_; }
     ObjectiveEditor* objectiveEditor() const { return objectiveEditor_; }
     LineupEditor* lineupEditor() const { return lineupEditor_; }
+    FindingsPanel* findingsPanel() const { return findingsPanel_; }
+    FindingsController* findingsController() const { return findingsController_; }
     QAction* action(const QString& name) const;
     bool playing() const { return animation_.isActive(); }
     // Waits (processing events) until no job is in flight and the views are up to date.
@@ -106,6 +110,8 @@ signals:
     // After each delivered batch of runs has reached the views.
     void runsShown();
     void fieldShown();
+    // After setSelection changed the selected iterate.
+    void selectionChanged(sw::widgets::Selection selection);
 
 protected:
     void closeEvent(QCloseEvent* event) override;
@@ -189,6 +195,8 @@ private:
     widgets::StepsTable* steps_ = nullptr;
     ObjectiveEditor* objectiveEditor_ = nullptr;
     LineupEditor* lineupEditor_ = nullptr;
+    FindingsPanel* findingsPanel_ = nullptr;
+    FindingsController* findingsController_ = nullptr;
     std::map<QString, QDockWidget*> docks_;
     QByteArray defaultLayout_;
 

@@ -25,6 +25,15 @@ constexpr double kDegrees = 180.0 / 3.14159265358979323846;
 
 std::string num(double v, int digits = 3) { return solve::shortNumber(v, digits); }
 
+// A count for a sentence: a whole number in full ("2481", not "2.48e+03"), huge ones short.
+std::string countText(double v) {
+    if (!std::isfinite(v)) return num(v);
+    return std::abs(v) < 1e7 ? std::to_string(std::llround(v)) : num(v, 3);
+}
+
+// A per-iteration factor: near 1 the difference from 1 is what matters (0.999994, not 1).
+std::string factorText(double v) { return solve::shortNumber(v, v > 0.99 && v < 1.01 ? 6 : 3); }
+
 double median(std::vector<double> values) {
     values.erase(std::remove_if(values.begin(), values.end(), [](double v) { return !std::isfinite(v); }),
                  values.end());
@@ -615,10 +624,10 @@ std::optional<Finding> ruleNarrowValley(const RunFacts& facts) {
     f.mark.directions = {canonicalSign(here.eigenvectors.col(0))};
     const double perDecade = rate.factor < 1 ? std::log(0.1) / std::log(rate.factor) : kNaN;
     f.message = "The run zig-zags across a narrow valley: the curvature across it is about " + num(kappa, 2) +
-                " times that along it, " + num(100 * z.alternation, 2) +
+                " times that along it, " + countText(100 * z.alternation) +
                 " % of successive steps cross it in opposite directions, and the gradient norm shrinks only by a factor " +
-                num(rate.factor, 4) + " per iteration" +
-                (std::isfinite(perDecade) ? " (" + num(perDecade, 2) + " iterations per decade)" : std::string()) + ".";
+                factorText(rate.factor) + " per iteration" +
+                (std::isfinite(perDecade) ? " (" + countText(std::ceil(perDecade)) + " iterations per decade)" : std::string()) + ".";
     const solve::MethodInfo* info = solve::findMethod(run.methodId);
     if (info && !info->needsHessian && run.methodId != "bfgs" && run.methodId != "lbfgs")
         setRemedy(f, switchMethod(facts, {"bfgs"}, "it learns the valley's curvature from successive gradients"));
@@ -671,6 +680,7 @@ std::optional<Finding> rulePoorScaling(const RunFacts& facts) {
     }
     change.text = "rescale the variables: " + factors;
     f.remedy = Remedy{change, std::nullopt};
+    f.mark.point = run.trace.back().x;
     f.message = "The variables are on very different scales: the curvature along " + variableName(facts.names, steepest) +
                 " is " + num(spread, 2) + " times that along " + variableName(facts.names, flattest) +
                 ", which alone raises the Hessian's condition number to " + num(c.condition, 2) + " from " +
@@ -1078,7 +1088,7 @@ std::optional<Finding> ruleBudgetExhausted(const RunFacts& facts) {
                     " iterations: neither f nor the gradient norm (" + num(last.gradientNorm) + ") improved.";
     else if (std::isfinite(more))
         f.message = "The run stopped at the " + limit + " while still making progress: at the observed rate (factor " +
-                    num(facts.rate.factor, 4) + " per iteration) it needs about " + num(std::ceil(more), 3) +
+                    factorText(facts.rate.factor) + " per iteration) it needs about " + countText(std::ceil(more)) +
                     " more iterations to bring the gradient norm from " + num(last.gradientNorm) + " to " + num(target) + ".";
     else
         f.message = "The run stopped at the " + limit + " while f was still falling, but the gradient norm (" +
@@ -1130,13 +1140,13 @@ std::optional<Finding> ruleConvergenceRate(const RunFacts& facts) {
         case RateEstimate::Kind::Linear: {
             const double perDecade = std::log(0.1) / std::log(rate.factor);
             f.message = "The last iterations converged linearly: the gradient norm shrank by a factor " +
-                        num(rate.factor, 3) + " per iteration, about " + num(std::ceil(perDecade), 3) +
+                        factorText(rate.factor) + " per iteration, about " + countText(std::ceil(perDecade)) +
                         " iterations per decade.";
             break;
         }
         case RateEstimate::Kind::Sublinear:
             f.message = "Over the last " + std::to_string(rate.last - rate.first) +
-                        " iterations the gradient norm did not shrink (factor " + num(rate.factor, 4) +
+                        " iterations the gradient norm did not shrink (factor " + factorText(rate.factor) +
                         " per iteration): no convergence rate to speak of.";
             break;
         case RateEstimate::Kind::Unknown: break;

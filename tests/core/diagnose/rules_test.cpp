@@ -500,7 +500,9 @@ TEST(Remedies, ACancelledRerunDoesNotCountAsHelping) {
     std::atomic<bool> cancel{true};
     tryRemedies(found, run, f, RunSetup{"newton", {}, rules, vec({0.3, 1.1})}, &cancel);
     for (const Finding& finding : found)
-        if (finding.remedy && finding.remedy->outcome) EXPECT_FALSE(finding.remedy->outcome->helped);
+        if (finding.remedy && finding.remedy->outcome) {
+            EXPECT_FALSE(finding.remedy->outcome->helped);
+        }
 }
 
 // ---- thinned traces: rules read iteration numbers, not positions.
