@@ -46,12 +46,13 @@ const FindingInfo& describe(FindingId id) {
          "second-order sufficient condition for a maximum: Nocedal & Wright (2006), Theorem 2.4 applied to -f"},
         {FindingId::FlatDirection, "a flat direction at the end",
          "At a critical end with no negative eigenvalue, the Jacobi-scaled Hessian D H D (unit diagonal) has "
-         "smallest/largest eigenvalue <= 1e-8. A problem for data fits (a parameter combination not determined by the "
-         "data), a note otherwise.",
+         "smallest/largest eigenvalue <= 1e-8, or the Hessian's smallest |eigenvalue| is <= 1e-8 max(1, largest) and "
+         "<= 1e-8. A problem for data fits (a parameter combination not determined by the data), a note otherwise.",
          "common practice (sqrt(eps) relative rank tolerance), no published source"},
         {FindingId::NarrowValley, "zig-zag in a narrow valley",
-         "Over the last 30 records: median Hessian condition number >= 100, median angle between successive steps >= "
-         "90 degrees, and gradient-norm factor per iteration >= 0.9 (not superlinear).",
+         "The Hessian at the last iterate is positive definite with condition number >= 100; over the last 30 records "
+         ">= 60 % of successive steps cross the valley (the steep eigenvector) in opposite directions; gradient-norm "
+         "factor per iteration >= 0.9 (not superlinear).",
          "steepest descent's linear rate ((k-1)/(k+1))^2: Nocedal & Wright (2006), Theorem 3.3; thresholds common "
          "practice, no published source"},
         {FindingId::PoorScaling, "variables on very different scales",
@@ -66,33 +67,37 @@ const FindingInfo& describe(FindingId id) {
          "descent-direction condition g'p < 0: Nocedal & Wright (2006), sec. 3.1"},
         {FindingId::LineSearchCollapse, "line searches collapse",
          "The run ended with line-search-failed, or (not converged) >= 3 searches in the last 30 records needed >= 10 "
-         "trials and the last accepted step length is <= 1e-3 times the run's median.",
+         "trials and the last accepted step length is <= 1e-3 times the run's median; a note at a kink minimum.",
          "common practice, no published source"},
         {FindingId::RadiusCollapse, "trust region collapses",
          "The run ended with trust-region-collapsed, or (not converged) the last radius is <= 1e-6 times the largest "
          "and at least half the last 30 steps were rejected (cubic regularisation: 1/sigma as the radius).",
          "common practice, no published source"},
         {FindingId::Stagnation, "stalled without converging",
-         "The end is not a critical point and f changed by <= 1e-10 (1 + |f|) over the last 30 records, or the run "
-         "stopped on its step or function tolerance there.",
+         "The end is not a critical point and the best f fell by <= 1e-10 (1 + |f|) between the halves of the last 30 "
+         "records, or the run stopped on its step or function tolerance there; a note where f rises in every direction "
+         "tried (the kink minimum of a non-smooth f).",
          "common practice, no published source"},
         {FindingId::Divergence, "diverges or drifts to infinity",
          "f rose to >= f_min + 1e6 (1 + |f_min|) (rising in >= 80 % of the last moves, or ending non-finite); or |x| "
-         "grew to >= 10 (1 + |x_0|) growing in >= 80 % of the last moves (f falling without bound, or levelling off "
-         "along a flat valley). Not for a run that converged to a non-degenerate minimum.",
+         "grew by >= 5 (1 + |x_0|), growing in >= 80 % of the last moves, while the curvature along the drift faded to "
+         "<= 1e-3 of its earlier value or to rounding (an asymptote or an endless slope). Not for a run that converged "
+         "to a non-degenerate minimum.",
          "common practice, no published source"},
         {FindingId::NonFinite, "a non-finite value",
          "The run ended with non-finite, or a record holds a NaN or an infinity in f, x or the gradient.",
          "IEEE 754 non-finite values; common practice, no published source"},
         {FindingId::BudgetExhausted, "stopped by a limit while progressing",
-         "The run ended at the iteration or evaluation limit and f fell by more than 1e-10 (1 + |f|) over the last 30 "
-         "records; the iterations still needed are estimated from the observed gradient-norm factor.",
+         "The run ended at the iteration or evaluation limit while the best f still fell by more than 1e-10 (1 + |f|) "
+         "or the gradient norm still shrank over the last 30 records; the iterations still needed are estimated from "
+         "the observed gradient-norm factor.",
          "linear rate from the ratio of successive gradient norms; common practice, no published source"},
         {FindingId::MethodFailed, "the run ended by an error",
          "The run ended with failed: its input was rejected, or the method broke down.", "not a numerical rule"},
         {FindingId::ConvergenceRate, "observed convergence rate",
-         "On every finished run with enough steps: order q from the last accepted steps (ACOC), gradient-norm factor "
-         "from the last 12 records; q >= 1.8 quadratic, q >= 1.2 superlinear, factor < 0.999 linear, else sublinear.",
+         "On every finished run with enough steps: order q from the last 3 to 5 shrinking steps (ACOC), gradient-norm "
+         "factor from the last 12 records; with a last ratio <= 0.1, q >= 1.8 quadratic, q >= 1.2 superlinear; "
+         "factor < 0.999 linear, else sublinear.",
          "ACOC: Cordero & Torregrosa (2007), Appl. Math. Comput. 190, 686-698"},
     };
     for (const FindingInfo& info : table)

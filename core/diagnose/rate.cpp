@@ -144,9 +144,13 @@ RateEstimate estimateRate(const solve::Run& run, int window) {
         ratiosFalling = perStep > 0 && std::log(perStep) * static_cast<double>(m - 1) <= std::log(0.1);
     }
 
-    if (std::isfinite(estimate.order) && estimate.order >= thresholds::kQuadraticOrder && lastSmall) {
+    // An order far above what any method here attains is a lucky last step, not a rate.
+    const bool credible = std::isfinite(estimate.order) && estimate.order <= thresholds::kMostCredibleOrder;
+    if (std::isfinite(estimate.order) && !credible && lastSmall) {
+        estimate.kind = RateEstimate::Kind::Superlinear;
+    } else if (credible && estimate.order >= thresholds::kQuadraticOrder && lastSmall) {
         estimate.kind = RateEstimate::Kind::Quadratic;
-    } else if ((std::isfinite(estimate.order) && estimate.order >= thresholds::kSuperlinearOrder && lastSmall) ||
+    } else if ((credible && estimate.order >= thresholds::kSuperlinearOrder && lastSmall) ||
                ratiosFalling) {
         estimate.kind = RateEstimate::Kind::Superlinear;
     } else if (std::isfinite(estimate.factor)) {

@@ -8,6 +8,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <numeric>
 
 namespace sw::diagnose {
@@ -30,6 +31,9 @@ std::string countText(double v) {
     if (!std::isfinite(v)) return num(v);
     return std::abs(v) < 1e7 ? std::to_string(std::llround(v)) : num(v, 3);
 }
+
+// A ratio for a sentence: whole below 10^4 ("210"), two digits above ("5.3e+06").
+std::string ratioText(double v) { return std::isfinite(v) && std::abs(v) < 1e4 ? countText(v) : num(v, 2); }
 
 // A per-iteration factor: near 1 the difference from 1 is what matters (0.999994, not 1).
 std::string factorText(double v) { return solve::shortNumber(v, v > 0.99 && v < 1.01 ? 6 : 3); }
@@ -106,6 +110,13 @@ bool methodIs(const RunFacts& facts, std::initializer_list<const char*> ids) {
 bool curvatureAware(const RunFacts& facts) {
     return methodIs(facts, {"saddle-free-newton", "trust-region-exact", "trust-region-cg", "cubic-regularization",
                             "trust-region-dogleg", "modified-newton"});
+}
+
+// An option's number (options were checked before the run; a bad one gives the fallback).
+double optionValue(const std::string& text, double fallback) {
+    char* end = nullptr;
+    const double v = std::strtod(text.c_str(), &end);
+    return end && *end == '\0' && std::isfinite(v) ? v : fallback;
 }
 
 bool fixedStepMethod(const RunFacts& facts) {
@@ -358,7 +369,7 @@ std::optional<Finding> ruleNonFinite(const RunFacts& facts) {
         Change c;
         c.kind = Change::Kind::SetOptions;
         const auto it = facts.setup->options.find("step_size");
-        const double current = it != facts.setup->options.end() ? std::stod(it->second) : 1e-3;
+        const double current = it != facts.setup->options.end() ? optionValue(it->second, 1e-3) : 1e-3;
         c.options["step_size"] = solve::shortNumber(current / 10, 6);
         c.text = "take a step size ten times smaller (step_size = " + c.options["step_size"] + ")";
         f.remedy = Remedy{c, std::nullopt};
@@ -623,7 +634,7 @@ std::optional<Finding> ruleNarrowValley(const RunFacts& facts) {
     f.mark.point = run.trace.back().x;
     f.mark.directions = {canonicalSign(here.eigenvectors.col(0))};
     const double perDecade = rate.factor < 1 ? std::log(0.1) / std::log(rate.factor) : kNaN;
-    f.message = "The run zig-zags across a narrow valley: the curvature across it is about " + num(kappa, 2) +
+    f.message = "The run zig-zags across a narrow valley: the curvature across it is about " + ratioText(kappa) +
                 " times that along it, " + countText(100 * z.alternation) +
                 " % of successive steps cross it in opposite directions, and the gradient norm shrinks only by a factor " +
                 factorText(rate.factor) + " per iteration" +
@@ -682,8 +693,8 @@ std::optional<Finding> rulePoorScaling(const RunFacts& facts) {
     f.remedy = Remedy{change, std::nullopt};
     f.mark.point = run.trace.back().x;
     f.message = "The variables are on very different scales: the curvature along " + variableName(facts.names, steepest) +
-                " is " + num(spread, 2) + " times that along " + variableName(facts.names, flattest) +
-                ", which alone raises the Hessian's condition number to " + num(c.condition, 2) + " from " +
+                " is " + ratioText(spread) + " times that along " + variableName(facts.names, flattest) +
+                ", which alone raises the Hessian's condition number to " + ratioText(c.condition) + " from " +
                 num(c.scaledCondition, 2) + " in rescaled variables.";
     return f;
 }
@@ -968,7 +979,7 @@ std::optional<Finding> ruleDivergence(const RunFacts& facts) {
             Change c;
             c.kind = Change::Kind::SetOptions;
             const auto it = facts.setup->options.find("step_size");
-            const double current = it != facts.setup->options.end() ? std::stod(it->second) : 1e-3;
+            const double current = it != facts.setup->options.end() ? optionValue(it->second, 1e-3) : 1e-3;
             c.options["step_size"] = solve::shortNumber(current / 10, 6);
             c.text = "take a step size ten times smaller (step_size = " + c.options["step_size"] + ")";
             f.remedy = Remedy{c, std::nullopt};
@@ -1133,8 +1144,9 @@ std::optional<Finding> ruleConvergenceRate(const RunFacts& facts) {
             break;
         case RateEstimate::Kind::Superlinear:
             f.message = "The last iterations converged superlinearly" +
-                        (rate.order >= thresholds::kSuperlinearOrder ? " (estimated order " + num(rate.order, 2) + ")"
-                                                                     : std::string()) +
+                        (rate.order >= thresholds::kSuperlinearOrder && rate.order <= thresholds::kMostCredibleOrder
+                             ? " (estimated order " + num(rate.order, 2) + ")"
+                             : std::string()) +
                         ": the gradient norm fell by ever larger factors.";
             break;
         case RateEstimate::Kind::Linear: {

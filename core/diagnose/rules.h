@@ -94,6 +94,9 @@ inline constexpr double kSuperlinearOrder = 1.2;
 inline constexpr double kSuperlinearLastRatio = 0.1;
 inline constexpr double kSublinearFactor = 0.999;
 inline constexpr double kRoundingSteps = 100;     // steps below 100 eps (1 + |x|) are rounding
+// An estimated order above this (no method here converges faster than cubically) comes from a
+// lucky last step; such a run is called superlinear without a number.
+inline constexpr double kMostCredibleOrder = 3.5;
 }  // namespace thresholds
 
 // The Hessian at a point, with its eigen-decomposition and that of the Jacobi-scaled Hessian
