@@ -159,7 +159,7 @@ void FindingsController::showEvidence(int track, const diagnose::Finding& findin
         case diagnose::FindingId::SaddleEnd:
         case diagnose::FindingId::MaximumEnd:
             content.bothWays = true;
-            content.label = tr("f falls this way");
+            content.label = tr("f falls either way");
             break;
         case diagnose::FindingId::FlatDirection:
             content.bothWays = true;
