@@ -52,7 +52,11 @@ TEST(FindingIds, EveryIdIsDescribedWithARuleAndASource) {
 }
 
 TEST(FindingIds, EveryIdHasARowInTheDocumentation) {
-    std::ifstream file(std::string(SW_SOURCE_DIR) + "/docs/findings.md");
+    // Appended to a named string: GCC 12 at -O2 warns (-Warray-bounds, a false positive) on
+    // std::string(SW_SOURCE_DIR) + "..." here.
+    std::string path(SW_SOURCE_DIR);
+    path.append("/docs/findings.md");
+    std::ifstream file(path);
     ASSERT_TRUE(file.good());
     std::stringstream text;
     text << file.rdbuf();
