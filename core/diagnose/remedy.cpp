@@ -19,7 +19,7 @@ std::string endText(const solve::Run& run) {
     else if (run.endPoint.kind == solve::PointKind::Maximum) text = "a maximum";
     else if (run.endPoint.kind == solve::PointKind::Degenerate)
         text = run.endPoint.index == 0 ? "a minimum in a flat trough" : "a degenerate point";
-    if (!run.endPoint.critical) text = "a point that is not critical (|g| = " + num(run.gradientNorm, 3) + ")";
+    if (!run.endPoint.critical) text = "a point that is not critical (|∇f| = " + num(run.gradientNorm, 3) + ")";
     return text;
 }
 

@@ -445,7 +445,7 @@ std::optional<Finding> ruleSaddleEnd(const RunFacts& facts) {
     f.evidence.push_back(ev("negative_eigenvalues", c.negative, "", "k: Hessian eigenvalues below zero at the end"));
     f.evidence.push_back(ev("smallest_eigenvalue", c.eigenvalues[0], "curvature", "most negative curvature"));
     f.evidence.push_back(ev("largest_eigenvalue", c.eigenvalues[c.eigenvalues.size() - 1], "curvature", "largest curvature"));
-    f.evidence.push_back(ev("gradient_norm", run.gradientNorm, "", "|g| at the end (small: a critical point)"));
+    f.evidence.push_back(ev("gradient_norm", run.gradientNorm, "", "|∇f| at the end (small: a critical point)"));
     f.evidence.push_back(ev("value", run.value, "f", "f at the saddle"));
     addDirection(f, "escape", escape.front(), facts.names, "unit direction along which f decreases");
     f.mark.point = run.x;
@@ -471,7 +471,7 @@ std::optional<Finding> ruleMaximumEnd(const RunFacts& facts) {
     f.evidence.push_back(ev("smallest_eigenvalue", c.eigenvalues[0], "curvature", "most negative curvature"));
     f.evidence.push_back(ev("largest_eigenvalue", c.eigenvalues[c.eigenvalues.size() - 1], "curvature",
                             "least negative curvature"));
-    f.evidence.push_back(ev("gradient_norm", run.gradientNorm, "", "|g| at the end (small: a critical point)"));
+    f.evidence.push_back(ev("gradient_norm", run.gradientNorm, "", "|∇f| at the end (small: a critical point)"));
     f.evidence.push_back(ev("value", run.value, "f", "f at the maximum"));
     addDirection(f, "escape", escape.front(), facts.names, "unit direction of fastest descent by curvature");
     f.mark.point = run.x;
@@ -1033,9 +1033,9 @@ std::optional<Finding> ruleStagnation(const RunFacts& facts) {
     f.evidence.push_back(ev("value_fall", p.fall / scale, "relative",
                             "how much the best f fell between the window's halves, / (1 + |f|)"));
     f.evidence.push_back(ev("window_iterations", p.span, "iterations", "iterations in the window"));
-    f.evidence.push_back(ev("gradient_norm", last.gradientNorm, "", "|g| at the end"));
+    f.evidence.push_back(ev("gradient_norm", last.gradientNorm, "", "|∇f| at the end"));
     f.evidence.push_back(ev("relative_gradient", last.gradientNorm / scale, "",
-                            "|g| / (1 + |f|); above " + num(relativeGradientSmall(facts)) + " is not small"));
+                            "|∇f| / (1 + |f|); above " + num(relativeGradientSmall(facts)) + " is not small"));
     f.evidence.push_back(ev("kink_minimum", kinkMinimum ? 1 : 0, "", "1: f rises in every direction tried from the end"));
     f.mark.point = last.x;
     if (last.gradientNorm > 0 && last.gradient.size() == last.x.size())
@@ -1086,7 +1086,7 @@ std::optional<Finding> ruleBudgetExhausted(const RunFacts& facts) {
     f.iterations = windowSpan(facts);
     f.evidence.push_back(ev("iterations", run.iterations(), "iterations", "iterations done"));
     f.evidence.push_back(ev("value_fall", p.fall, "f", "how much the best f fell between the window's halves"));
-    f.evidence.push_back(ev("gradient_norm", last.gradientNorm, "", "|g| at the end"));
+    f.evidence.push_back(ev("gradient_norm", last.gradientNorm, "", "|∇f| at the end"));
     f.evidence.push_back(ev("gradient_target", target, "", "the gradient norm the stopping rules ask for"));
     f.evidence.push_back(ev("rate", facts.rate.factor, "per iteration", "observed factor of the gradient norm"));
     f.evidence.push_back(ev("more_iterations", more, "iterations", "estimated iterations still needed at that rate"));
