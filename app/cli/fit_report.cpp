@@ -77,7 +77,7 @@ std::string lossInWords(const FitDefinition& d) {
 }
 
 void printFitReport(std::ostream& out, const Table& table, const FitDefinition& def, const fit::FitResult& result,
-                    bool withTrace) {
+                    bool withTrace, const std::function<void(std::ostream&)>& afterSummary) {
     const fit::FitStatistics& st = result.statistics;
     const solve::Run& run = result.run;
     const std::vector<std::string>& names = def.parameters;
@@ -92,6 +92,7 @@ void printFitReport(std::ostream& out, const Table& table, const FitDefinition& 
     }
     printSummary(out, run, names);
     out << '\n';
+    if (afterSummary) afterSummary(out);
 
     // Estimates: interval next to the estimate, then the standard error and its size relative
     // to the estimate (the first thing to read when a parameter is poorly determined).

@@ -8,6 +8,7 @@
 #include "core/fit/run_fit.h"
 #include "core/objective/table.h"
 
+#include <functional>
 #include <iosfwd>
 #include <string>
 
@@ -18,7 +19,9 @@ std::string modelEquation(const FitDefinition& definition);
 // "least squares: 1/2 sum (temp - model)^2", "logistic: the negative log-likelihood of 0/1 outcomes", ...
 std::string lossInWords(const FitDefinition& definition);
 
+// afterSummary, when given, prints more right after the run's summary (the fit verb's findings).
 void printFitReport(std::ostream& out, const Table& table, const FitDefinition& definition,
-                    const fit::FitResult& result, bool withTrace);
+                    const fit::FitResult& result, bool withTrace,
+                    const std::function<void(std::ostream&)>& afterSummary = {});
 
 }  // namespace sw::cli

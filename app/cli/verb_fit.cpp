@@ -1,6 +1,7 @@
 // saddlewise fit: fit a model formula to a CSV table and report estimates with their
 // uncertainty, goodness of fit and warnings.
 #include "app/cli/cli.h"
+#include "app/cli/findings_report.h"
 #include "app/cli/fit_report.h"
 #include "app/cli/run_report.h"
 #include "core/fit/run_fit.h"
@@ -23,7 +24,7 @@ const char* kHelp =
     "                      [--weights COLUMN] [--sigma COLUMN] [--scale S] [--method ID]\n"
     "                      [--option NAME=VALUE ...] [--separator auto|comma|semicolon|tab]\n"
     "                      [--drop-incomplete] [--max-iterations N] [--confidence LEVEL]\n"
-    "                      [--summary] [--json]\n"
+    "                      [--summary] [--json] [--no-remedies]\n"
     "\n"
     "Fits FORMULA, written in the table's columns and the parameters named in --start, to the\n"
     "response column, with exact symbolic derivatives, and reports the estimates, standard\n"
@@ -51,7 +52,12 @@ const char* kHelp =
     "  --max-iterations N     iteration limit (default 1000)\n"
     "  --confidence LEVEL     confidence level of the intervals, in (0, 1) (default 0.95)\n"
     "  --summary              leave out the per-iteration table (and the JSON trace)\n"
-    "  --json                 one JSON object\n"
+    "  --json                 one JSON object (with \"findings\")\n"
+    "  --no-remedies          report findings without rerunning their remedies\n"
+    "\n"
+    "After the run's summary, its findings: why it stalled, ended on a saddle or crawls, which\n"
+    "parameter combination the data do not determine, with the numbers behind it and a remedy\n"
+    "that was tried (a rerun from the same start with one change).\n"
     "\n"
     "Example:\n"
     "  saddlewise fit --data samples/sensor-warmup.csv --model 'a - b*exp(-minutes/tau)' --response temp \\\n"
@@ -74,7 +80,7 @@ nlohmann::json matrixJson(const Matrix& m) {
 
 int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed =
-        parseArgs(args, {"json", "summary", "drop-incomplete"},
+        parseArgs(args, {"json", "summary", "drop-incomplete", "no-remedies"},
                   {"data", "model", "response", "start", "loss", "weights", "sigma", "scale", "method", "option",
                    "separator", "max-iterations", "confidence"});
     if (!parsed.positional.empty())
@@ -136,6 +142,16 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
     const solve::Run& run = result.run;
     const std::vector<std::string>& names = def.parameters;
     const bool withTrace = !parsed.has("summary");
+
+    // The rules the run had: runFit gives a method that is not a least-squares one a relative
+    // gradient test when the request has none (run_fit.cpp); the findings' reruns use the same.
+    solve::StoppingRules rules = request.rules;
+    if (const solve::MethodInfo* info = solve::findMethod(run.methodId);
+        info && !info->needsResiduals && rules.gradientTolerance == 0 && rules.relativeGradientTolerance == 0)
+        rules.relativeGradientTolerance = 1e-12;
+    const Vector start = Eigen::Map<const Vector>(request.start.data(), static_cast<Eigen::Index>(request.start.size()));
+    const diagnose::Findings findings =
+        findingsFor(run, *result.objective, run.methodId, request.options, rules, start, !parsed.has("no-remedies"));
 
     if (parsed.has("json")) {
         study::Provenance provenance;
@@ -201,12 +217,16 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
         j["jacobian"] = {{"rank", st.rank}, {"scaled_condition", number(st.scaledCondition)},
                          {"scaled_singular_values", singular}};
         j["warnings"] = result.warnings;
+        j["findings"] = findingsToJson(findings, names);
         j["converged"] = result.converged();
         out << j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return exitCodeFor({run});
     }
 
-    printFitReport(out, *table, def, result, withTrace);
+    printFitReport(out, *table, def, result, withTrace, [&](std::ostream& o) {
+        printFindings(o, findings, names);
+        o << '\n';
+    });
     return exitCodeFor({run});
 }
 

@@ -1,5 +1,6 @@
 // saddlewise minimize: run one or several methods on a formula from one start point.
 #include "app/cli/cli.h"
+#include "app/cli/findings_report.h"
 #include "app/cli/run_report.h"
 #include "core/objective/formula_objective.h"
 #include "core/solve/solver.h"
@@ -14,7 +15,7 @@ const char* kHelp =
     "Usage: saddlewise minimize FORMULA --from NAME=VALUE,... --method ID [--method ID ...]\n"
     "                           [--option NAME=VALUE ...] [--constants NAME=VALUE,...]\n"
     "                           [--max-iterations N] [--max-evaluations N] [--gradient-norm-below X]\n"
-    "                           [--summary] [--json]\n"
+    "                           [--summary] [--json] [--no-remedies]\n"
     "\n"
     "Minimizes FORMULA over the variables named in --from, starting at their values, with\n"
     "exact symbolic gradient and Hessian. Several --method flags run side by side from the\n"
@@ -30,11 +31,16 @@ const char* kHelp =
     "  --gradient-norm-below X  converged when the gradient norm is <= X (default 1e-8; the\n"
     "                           former name --gradient-tolerance is still read)\n"
     "  --summary                leave out the per-iteration table (and the JSON trace)\n"
+    "  --json                   one JSON object (several methods: {\"runs\": [...]}); each run has\n"
+    "                           \"findings\": what went wrong or how it converged, with remedies\n"
+    "  --no-remedies            report findings without rerunning their remedies\n"
     "\n"
     "The per-iteration records of a run take at most about 16 MiB (256 KiB with --summary);\n"
     "past that, records in the middle are thinned out (the first, the last 50, every k-th and\n"
     "the notable ones stay) and the output says how many were dropped.\n"
-    "  --json                   one JSON object (several methods: {\"runs\": [...]})\n"
+    "\n"
+    "After each method, its findings: why it stalled, ended on a saddle or crawls, with the\n"
+    "numbers behind it and a remedy that was tried (a rerun from the same start with one change).\n"
     "\n"
     "Example:\n"
     "  saddlewise minimize '100*(y-x^2)^2+(1-x)^2' --from x=-1.2,y=1 --method bfgs --method newton\n"
@@ -43,7 +49,7 @@ const char* kHelp =
     "(non-finite values or a method failure), 2 bad usage or input.\n";
 
 int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
-    const ParsedArgs parsed = parseArgs(args, {"json", "summary"},
+    const ParsedArgs parsed = parseArgs(args, {"json", "summary", "no-remedies"},
                                         {"from", "method", "option", "constants", "max-iterations",
                                          "max-evaluations", "gradient-norm-below", "gradient-tolerance"});
     if (parsed.positional.size() != 1)
@@ -95,18 +101,27 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
         if (!made.solver) throw UsageError(made.error);
         runs.push_back(solve::solve(std::move(made.solver)));
     }
+    const bool withRemedies = !parsed.has("no-remedies");
+    std::vector<diagnose::Findings> findings;
+    for (std::size_t i = 0; i < runs.size(); ++i)
+        findings.push_back(findingsFor(runs[i], objective, methodIds[i], options[i], rules, x0, withRemedies));
 
     const bool withTrace = !parsed.has("summary");
     if (parsed.has("json")) {
         study::Provenance provenance;
         provenance.formula = parsed.positional[0];
+        auto runJson = [&](std::size_t i) {
+            nlohmann::json j = runToJson(runs[i], names, withTrace);
+            j["findings"] = findingsToJson(findings[i], names);
+            return j;
+        };
         if (runs.size() == 1) {
             nlohmann::json one = nlohmann::json{{"provenance", provenanceJson(provenance)}};
-            one.update(runToJson(runs[0], names, withTrace));
+            one.update(runJson(0));
             out << one.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         } else {
             nlohmann::json all = nlohmann::json::array();
-            for (const solve::Run& r : runs) all.push_back(runToJson(r, names, withTrace));
+            for (std::size_t i = 0; i < runs.size(); ++i) all.push_back(runJson(i));
             out << nlohmann::json{{"provenance", provenanceJson(provenance)}, {"runs", all}}.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         }
         return exitCodeFor(runs);
@@ -119,11 +134,16 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
         }
         out << '\n';
         printSummary(out, runs[0], names);
+        out << '\n';
+        printFindings(out, findings[0], names);
     } else {
         out << '\n';
         printComparison(out, runs);
         out << '\n';
-        for (const solve::Run& r : runs) out << r.label << ": " << r.message << '\n';
+        for (std::size_t i = 0; i < runs.size(); ++i) {
+            out << runs[i].label << ": " << runs[i].message << '\n';
+            printFindings(out, findings[i], names, "  ");
+        }
         if (withTrace)
             for (const solve::Run& r : runs) {
                 out << "\n--- " << r.label << " ---\n";

@@ -1,6 +1,7 @@
 // saddlewise run STUDY: runs every enabled lineup entry of a study from the study's start
 // and prints the side-by-side comparison (or one JSON object with every run).
 #include "app/cli/cli.h"
+#include "app/cli/findings_report.h"
 #include "app/cli/run_report.h"
 #include "core/solve/solver.h"
 #include "core/study/study.h"
@@ -16,7 +17,7 @@ namespace {
 using Json = nlohmann::json;
 
 const char* kHelp =
-    "Usage: saddlewise run STUDY.json [--json] [--max-iterations N]\n"
+    "Usage: saddlewise run STUDY.json [--json] [--max-iterations N] [--no-remedies]\n"
     "\n"
     "Runs every enabled method of the study's lineup from the study's start point, with the\n"
     "study's stopping rules, and prints one row per method: iterations, evaluations (value,\n"
@@ -31,6 +32,11 @@ const char* kHelp =
     "  --json               one JSON object: {\"study\": {...}, \"runs\": [...]}, each run with its\n"
     "                       label, options, summary, end point and full per-iteration trace\n"
     "  --max-iterations N   override the study's iteration limit (1 to 1000000)\n"
+    "  --no-remedies        report findings without rerunning their remedies\n"
+    "\n"
+    "After the table, each method's message and its findings: why it stalled, ended on a saddle\n"
+    "or crawls, with the numbers behind it and a remedy that was tried (a rerun from the same\n"
+    "start with one change); in JSON each run has \"findings\".\n"
     "\n"
     "Example:\n"
     "  saddlewise run samples/two-valve-saddles.json\n"
@@ -39,7 +45,7 @@ const char* kHelp =
     "(non-finite values or a method failure), 2 bad usage or a bad study.\n";
 
 int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
-    const ParsedArgs parsed = parseArgs(args, {"json"}, {"max-iterations"});
+    const ParsedArgs parsed = parseArgs(args, {"json", "no-remedies"}, {"max-iterations"});
     if (parsed.positional.size() != 1)
         throw UsageError(parsed.positional.empty() ? "give the study file to run" : "give exactly one study file");
     const std::string path = parsed.positional[0];
@@ -74,6 +80,10 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         result.label = entry->label;
         runs.push_back(std::move(result));
     }
+    std::vector<diagnose::Findings> findings;
+    for (std::size_t k = 0; k < runs.size(); ++k)
+        findings.push_back(findingsFor(runs[k], *objective, lineup[k]->method, lineup[k]->options, rules, start,
+                                       !parsed.has("no-remedies")));
 
     if (parsed.has("json")) {
         Json variables = Json::array();
@@ -93,6 +103,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         for (std::size_t k = 0; k < runs.size(); ++k) {
             Json run = runToJson(runs[k], names);
             run["options"] = lineup[k]->options;
+            run["findings"] = findingsToJson(findings[k], names);
             runList.push_back(std::move(run));
         }
         out << Json({{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}})
@@ -109,8 +120,10 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     out << "\n\n";
     printComparison(out, runs);
     out << '\n';
-    for (std::size_t k = 0; k < runs.size(); ++k)
+    for (std::size_t k = 0; k < runs.size(); ++k) {
         out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+        printFindings(out, findings[k], names, "    ");
+    }
     out << '\n' << wrapText(study::cautionLine(), 100);
     return exitCodeFor(runs);
 }

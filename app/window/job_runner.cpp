@@ -14,6 +14,7 @@ struct JobRunner::StepSession {
     std::shared_ptr<const Objective> objective;
     Vector start;
     std::vector<RunEntry> entries;
+    solve::StoppingRules rules;
     std::vector<std::unique_ptr<solve::Solver>> solvers;  // null where the input was rejected
     std::vector<std::shared_ptr<const solve::Run>> rejected;
     bool finished = false;
@@ -84,6 +85,7 @@ void JobRunner::runAll(const RunRequest& request) {
         batch->objective = request.objective;
         batch->start = request.start;
         batch->entries = request.entries;
+        batch->rules = request.rules;
         const double entryCount = std::max<std::size_t>(1, request.entries.size());
         double lastReport = -1;
         for (std::size_t i = 0; i < request.entries.size(); ++i) {
@@ -125,6 +127,7 @@ void JobRunner::beginSteps(const RunRequest& request) {
     session->objective = request.objective;
     session->start = request.start;
     session->entries = request.entries;
+    session->rules = request.rules;
     session_ = session;
     stepBusy_ = true;
     launch(Runs, [this, request, generation, cancelled, session] {
@@ -133,6 +136,7 @@ void JobRunner::beginSteps(const RunRequest& request) {
         batch->objective = request.objective;
         batch->start = request.start;
         batch->entries = request.entries;
+        batch->rules = request.rules;
         batch->stepping = true;
         bool allFinished = true;
         for (const RunEntry& entry : request.entries) {
@@ -177,6 +181,7 @@ bool JobRunner::stepAll() {
         batch->objective = session->objective;
         batch->start = session->start;
         batch->entries = session->entries;
+        batch->rules = session->rules;
         batch->stepping = true;
         bool allFinished = true;
         for (std::size_t i = 0; i < session->solvers.size(); ++i) {

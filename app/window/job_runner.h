@@ -7,6 +7,7 @@
 // older result is dropped, so dragging the start or zooming never queues stale work.
 // Each job reports progress and can be cancelled; the window never waits on a job.
 
+#include "app/window/findings_job.h"
 #include "core/analyze/analyze.h"
 #include "core/solve/solver.h"
 #include "widgets/fit_snapshot.h"
@@ -49,6 +50,7 @@ struct RunBatch {
     Vector start;
     std::vector<RunEntry> entries;
     std::vector<std::shared_ptr<const solve::Run>> runs;
+    solve::StoppingRules rules;  // the rules the runs had (the findings' reruns use them too)
     bool stepping = false;   // produced by single steps (runs may still be going)
     bool allFinished = false;
     bool cancelled = false;
@@ -78,7 +80,7 @@ struct FitStatisticsRequest {
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, Statistics = 2, KindCount = 3 };
+    enum Kind { Runs = 0, Field = 1, Statistics = 2, Findings = 3, KindCount = 4 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -99,10 +101,14 @@ public:
     // that has not started is skipped, one that has started finishes and is dropped.
     void computeFitStatistics(const FitStatisticsRequest& request);
 
+    // Findings of a batch's runs, then the remedies' reruns (findings_job.cpp); a newer request
+    // supersedes an older one. findingsReady comes once without and once with the outcomes.
+    void diagnose(const DiagnosisRequest& request);
+
     void cancel(Kind kind);
     void cancelAll();
     bool busy(Kind kind) const { return inFlight_[kind] > 0; }
-    bool anyBusy() const { return busy(Runs) || busy(Field) || busy(Statistics); }
+    bool anyBusy() const { return busy(Runs) || busy(Field) || busy(Statistics) || busy(Findings); }
     quint64 generation(Kind kind) const { return generation_[kind]; }
     // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
     bool waitForIdle(int timeoutMs);
@@ -111,6 +117,7 @@ signals:
     void runsReady(std::shared_ptr<const sw::window::RunBatch> batch);
     void fieldReady(std::shared_ptr<const sw::widgets::FieldSnapshot> field, quint64 generation);
     void fitStatisticsReady(std::shared_ptr<const sw::widgets::FitSnapshot> statistics);
+    void findingsReady(std::shared_ptr<const sw::window::FindingsBatch> batch);
     void progress(int kind, double fraction);
     void jobStarted(int kind);
     // After a result was delivered, dropped as stale, or the job was cancelled.
@@ -136,3 +143,4 @@ private:
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::RunBatch>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FieldSnapshot>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FitSnapshot>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::FindingsBatch>)

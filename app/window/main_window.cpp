@@ -6,6 +6,8 @@
 #include "app/window/derivatives_pane.h"
 #include "app/window/file_dialogs.h"
 #include "app/window/icons.h"
+#include "app/window/findings_controller.h"
+#include "app/window/findings_panel.h"
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
 #include "app/window/fit_statistics_panel.h"
@@ -119,6 +121,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     connect(jobs_, &JobRunner::progress, this, &MainWindow::onJobProgress);
     connect(jobs_, &JobRunner::jobStarted, this, &MainWindow::onJobStateChanged);
     connect(jobs_, &JobRunner::jobEnded, this, &MainWindow::onJobStateChanged);
+    findingsController_ = new FindingsController(this, findingsPanel_);
 
     animation_.setInterval(200);
     connect(&animation_, &QTimer::timeout, this, &MainWindow::animationTick);
@@ -148,6 +151,7 @@ void MainWindow::createViews() {
     derivatives_ = new DerivativesPane(this);
     objectiveEditor_ = new ObjectiveEditor(this);
     lineupEditor_ = new LineupEditor(this);
+    findingsPanel_ = new FindingsPanel(this);
 
     for (widgets::PlotView* view : {static_cast<widgets::PlotView*>(landscape_), static_cast<widgets::PlotView*>(localModel_),
                                     static_cast<widgets::PlotView*>(curvature_), static_cast<widgets::PlotView*>(progress_),
@@ -221,6 +225,8 @@ void MainWindow::createDocks() {
                 tr("Every method's run side by side: how it ended and why, where, in how many steps"));
     addViewDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
     addViewDock("derivatives", tr("Derivatives"), derivatives_, tr("The exact gradient and Hessian as formulas"));
+    addViewDock("findings", tr("Findings"), findingsPanel_,
+                tr("Why each run stalled, ended on a saddle or crawls, and the remedies tried"));
     setCentralWidget(nullptr);  // no central widget: every view is a dock the user may move, stack or float
     placeDocks();
 }
@@ -236,6 +242,7 @@ void MainWindow::placeDocks() {
     splitDockWidget(at("landscape"), at("summary"), Qt::Vertical);
     tabifyDockWidget(at("summary"), at("steps"));
     tabifyDockWidget(at("steps"), at("derivatives"));
+    tabifyDockWidget(at("derivatives"), at("findings"));
     splitDockWidget(at("local-model"), at("progress"), Qt::Vertical);
     tabifyDockWidget(at("progress"), at("curvature"));
     tabifyDockWidget(at("curvature"), at("slice"));
@@ -1245,6 +1252,7 @@ void MainWindow::setSelection(const widgets::Selection& selection) {
         updateHeldText();
         if (objectiveEditor_->heldFollowsSelection()) heldResample_.start();
     }
+    emit selectionChanged(selection_);
 }
 
 QString MainWindow::lastSummary() const { return summary_; }

@@ -52,6 +52,8 @@ struct ExportLook {
     bool light = true;     // false: the window's own appearance (dark when it is dark)
     bool title = false;    // a title line: the formula (or model) and the held values
 };
+class FindingsPanel;
+class FindingsController;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -106,6 +108,8 @@ public:
     QStringList dockNames() const { return dockOrder_; }
     ObjectiveEditor* objectiveEditor() const { return objectiveEditor_; }
     LineupEditor* lineupEditor() const { return lineupEditor_; }
+    FindingsPanel* findingsPanel() const { return findingsPanel_; }
+    FindingsController* findingsController() const { return findingsController_; }
     QAction* action(const QString& name) const;
     // Values of every variable the landscape holds fixed (the plotted two included, at the
     // selected iterate or start): the selected iterate, or the values typed in the editor.
@@ -246,6 +250,8 @@ private:
     DerivativesPane* derivatives_ = nullptr;
     ObjectiveEditor* objectiveEditor_ = nullptr;
     LineupEditor* lineupEditor_ = nullptr;
+    FindingsPanel* findingsPanel_ = nullptr;
+    FindingsController* findingsController_ = nullptr;
     std::map<QString, QDockWidget*> docks_;
     QStringList dockOrder_;
     QByteArray defaultLayout_;
