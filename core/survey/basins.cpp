@@ -128,7 +128,7 @@ Vector BasinSearch::cellStart(long cell) const {
     return x;
 }
 
-CellOutcome BasinSearch::run(std::size_t method, long cell) const {
+CellOutcome BasinSearch::run(std::size_t method, long cell, const CriticalMap& map) const {
     CellOutcome out;
     const BasinMethod& m = methods_.at(method);
     solve::SolverOrError made = solve::makeSolver(m.methodId, objective_, cellStart(cell), m.options, settings_.rules);
@@ -171,21 +171,28 @@ CellOutcome BasinSearch::run(std::size_t method, long cell) const {
         out.code = kCellFailed;
         return out;
     }
+    // Most runs end within the merge tolerance of an isolated point of the map: that is the
+    // point (the map merges points no closer than that). Otherwise refine to rounding first.
+    for (std::size_t k = 0; k < map.points.size(); ++k)
+        if (!map.points[k].continuum && critical_.scaledDistance(map.points[k].x, run.x) <= map.settings.mergeTolerance) {
+            out.code = static_cast<int>(k);
+            return out;
+        }
     const StartOutcome refined = critical_.refine(run.x);
     if (refined.status != StartOutcome::Status::Converged || critical_.scaledDistance(refined.x, run.x) > kSnapDistance) {
         out.code = kCellFailed;  // stopped where nothing is critical (a flat stretch, a stall)
         return out;
     }
-    out.code = 0;
+    out.code = kCellUnmatched;
     out.x = refined.x;
     return out;
 }
 
-bool BasinSearch::runRange(std::size_t method, long begin, long end, std::vector<CellOutcome>& outcomes,
-                           const Control& control) const {
+bool BasinSearch::runRange(std::size_t method, long begin, long end, const CriticalMap& map,
+                           std::vector<CellOutcome>& outcomes, const Control& control) const {
     outcomes.assign(static_cast<std::size_t>(end - begin), CellOutcome{kCellNotRun, 0, {}});
     return forEachIndex(begin, end, control,
-                        [&](long c) { outcomes[static_cast<std::size_t>(c - begin)] = run(method, c); });
+                        [&](long c) { outcomes[static_cast<std::size_t>(c - begin)] = run(method, c, map); });
 }
 
 BasinSurvey BasinSearch::assemble(CriticalMap map, const std::vector<std::vector<CellOutcome>>& outcomes) const {
@@ -210,7 +217,7 @@ BasinSurvey BasinSearch::assemble(CriticalMap map, const std::vector<std::vector
         for (long c = 0; c < cells; ++c) {
             const CellOutcome& o = outcomes[m][static_cast<std::size_t>(c)];
             int code = o.code;
-            if (code == 0) {
+            if (code == kCellUnmatched) {
                 int index = matchPoint(map, o.x);
                 if (index >= 0 && map.points[static_cast<std::size_t>(index)].continuum &&
                     critical_.classify(o.x).kind != solve::PointKind::Degenerate)
@@ -228,6 +235,10 @@ BasinSurvey BasinSearch::assemble(CriticalMap map, const std::vector<std::vector
                     }
                 }
                 if (index >= 0) code = index;
+            } else if (code >= static_cast<int>(map.points.size())) {
+                throw std::invalid_argument("assemble: cell " + std::to_string(c) + " names point " +
+                                            std::to_string(code) + " of a map with " +
+                                            std::to_string(map.points.size()));
             }
             basin.cells[static_cast<std::size_t>(c)] = code;
             basin.iterations[static_cast<std::size_t>(c)] = o.iterations;
@@ -283,7 +294,7 @@ BasinSurvey BasinSearch::find(const Control& control) const {
         if (control.progress)
             part.progress = [&, m](double f) { control.progress(mapShare + methodShare * (static_cast<double>(m) + f)); };
         if (complete)
-            complete = runRange(m, 0, cellCount(), outcomes[m], part);
+            complete = runRange(m, 0, cellCount(), map, outcomes[m], part);
         else
             outcomes[m].assign(static_cast<std::size_t>(cellCount()), CellOutcome{kCellNotRun, 0, {}});
         seconds[m] = elapsed(methodStarted);

@@ -215,11 +215,14 @@ struct BasinSettings {
     std::string check(std::size_t methodCount) const;
 };
 
-// What one cell's run gave, before matching (a pure function of the cell).
+// What one cell's run gave (a pure function of the cell and the map): a point of the map it
+// ended on (matched within the merge tolerance), a failure code, or kCellUnmatched with the
+// refined critical point it reached, which assemble() matches or adds to the map in cell order.
+inline constexpr int kCellUnmatched = -10;
 struct CellOutcome {
-    int code = kCellFailed;     // kCellLimit/Diverged/Failed, or 0 when the run converged
+    int code = kCellFailed;
     int iterations = 0;
-    Vector x;                   // the refined critical point when code == 0
+    Vector x;                   // the refined critical point when code == kCellUnmatched
 };
 
 struct BasinMap {
@@ -248,8 +251,9 @@ struct BasinSurvey {
     double cellY(int j) const;
 };
 
-// Basin maps in pieces, like CriticalSearch: cellCount() cells per method; run(m, c) runs
-// method m from cell c; assemble() matches every end point to the map in cell order.
+// Basin maps in pieces, like CriticalSearch: cellCount() cells per method; run(m, c, map) runs
+// method m from cell c and matches its end to the map; assemble() completes the matching in
+// cell order (points the map lacked join it there).
 class BasinSearch {
 public:
     // Throws std::invalid_argument with a sentence: bad region, bad grid (naming the memory
@@ -260,9 +264,9 @@ public:
     long cellCount() const { return static_cast<long>(settings_.grid) * settings_.grid; }
     const std::vector<BasinMethod>& methods() const { return methods_; }
     Vector cellStart(long cell) const;
-    CellOutcome run(std::size_t method, long cell) const;
-    bool runRange(std::size_t method, long begin, long end, std::vector<CellOutcome>& outcomes,
-                  const Control& control) const;
+    CellOutcome run(std::size_t method, long cell, const CriticalMap& map) const;
+    bool runRange(std::size_t method, long begin, long end, const CriticalMap& map,
+                  std::vector<CellOutcome>& outcomes, const Control& control) const;
     // `outcomes[m]` holds method m's cells in order; `map` is the critical-point map to match.
     BasinSurvey assemble(CriticalMap map, const std::vector<std::vector<CellOutcome>>& outcomes) const;
     const CriticalSearch& critical() const { return critical_; }

@@ -119,10 +119,11 @@ TEST(Basins, SameSurveyOnOneThreadOnTwoAndFromPieces) {
     const BasinSearch search(f, region, methods, grid(30));
     std::vector<StartOutcome> starts(search.critical().starts().size());
     for (std::size_t i = 0; i < starts.size(); ++i) starts[(i * 7) % starts.size()] = search.critical().run((i * 7) % starts.size());
+    const CriticalMap map = search.critical().assemble(starts);
     std::vector<std::vector<CellOutcome>> cells(methods.size(), std::vector<CellOutcome>(static_cast<std::size_t>(search.cellCount())));
     for (std::size_t m = 0; m < methods.size(); ++m)
-        for (long c = search.cellCount() - 1; c >= 0; --c) cells[m][static_cast<std::size_t>(c)] = search.run(m, c);
-    const BasinSurvey c = search.assemble(search.critical().assemble(starts), cells);
+        for (long c = search.cellCount() - 1; c >= 0; --c) cells[m][static_cast<std::size_t>(c)] = search.run(m, c, map);
+    const BasinSurvey c = search.assemble(map, cells);
     for (const BasinSurvey* s : {&b, &c})
         EXPECT_EQ(withoutTimings(basinSurveyToJson(*s)), withoutTimings(basinSurveyToJson(a)));
 }
