@@ -8,10 +8,17 @@
 #ifdef SW_HAVE_GUI
 #include "app/window/launch.h"
 #endif
+#ifdef SW_HAVE_MPI
+#include "app/mpi/mpi_process_group.h"
+#endif
 
 int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
     bool headless = !args.empty() && (sw::cli::isVerb(args[0]) || args[0].rfind("-", 0) == 0 || args[0] == "help");
+#ifdef SW_HAVE_MPI
+    // Only the survey verbs ask for a process group, and MPI starts only under a launcher.
+    sw::cli::setProcessGroupFactory(&sw::mpi::joinWorld);
+#endif
     if (headless) return sw::cli::runCommandLine(args, std::cout, std::cerr);
 #ifdef SW_HAVE_GUI
     return sw::window::launch(argc, argv);
