@@ -49,8 +49,7 @@ const char* basinCodeName(int code) {
 }
 
 std::string BasinSettings::check(std::size_t methodCount) const {
-    if (grid < 1 || grid > kMaxGrid)
-        return "the grid must be 1 to " + std::to_string(kMaxGrid) + " cells per side (got " + std::to_string(grid) + ")";
+    if (grid < 1) return "the grid needs at least 1 cell per side (got " + std::to_string(grid) + ")";
     const long long cells = static_cast<long long>(grid) * grid * static_cast<long long>(std::max<std::size_t>(1, methodCount));
     if (cells > maxCells)
         return "a " + std::to_string(grid) + " x " + std::to_string(grid) + " grid for " + std::to_string(methodCount) +
@@ -58,6 +57,8 @@ std::string BasinSettings::check(std::size_t methodCount) const {
                " runs, above the limit of " + groupedNumber(maxCells) +
                " cells per survey (each cell keeps 8 bytes of result; the limit keeps a survey near " +
                std::to_string(maxCells * 8 / 1'000'000) + " MB): use a smaller grid or fewer methods";
+    if (grid > kMaxGrid)
+        return "the grid must be 1 to " + std::to_string(kMaxGrid) + " cells per side (got " + std::to_string(grid) + ")";
     const std::string rulesProblem = rules.check();
     if (!rulesProblem.empty()) return rulesProblem;
     return "";

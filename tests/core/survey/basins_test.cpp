@@ -169,7 +169,11 @@ TEST(Basins, BadInputIsRefusedWithASentence) {
     BasinSettings huge = grid(4000);
     EXPECT_NE(refusal({{"", "newton", {}}, {"", "bfgs", {}}}, huge, region).find("above the limit of 16,000,000"),
               std::string::npos);
-    EXPECT_NE(refusal({{"", "newton", {}}}, grid(4001), region).find("1 to 4000"), std::string::npos);
+    EXPECT_NE(refusal({{"", "newton", {}}}, grid(4001), region).find("16,008,001 runs"), std::string::npos);
+    BasinSettings roomy = grid(4001);
+    roomy.maxCells = 20'000'000;
+    EXPECT_NE(refusal({{"", "newton", {}}}, roomy, region).find("1 to 4000"), std::string::npos);
+    EXPECT_NE(refusal({{"", "newton", {}}}, grid(0), region).find("at least 1 cell"), std::string::npos);
     EXPECT_NE(refusal({{"", "levenberg-marquardt", {}}}, grid(10), region).find("needs a least-squares objective"),
               std::string::npos);
     EXPECT_NE(refusal({{"", "newtonn", {}}}, grid(10), region).find("unknown method 'newtonn'"), std::string::npos);
