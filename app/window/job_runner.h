@@ -9,6 +9,7 @@
 
 #include "core/analyze/analyze.h"
 #include "core/solve/solver.h"
+#include "core/survey/survey.h"
 #include "widgets/snapshot.h"
 
 #include <QObject>
@@ -64,10 +65,25 @@ struct FieldRequest {
     bool logColour = false;
 };
 
+// Surveys (issue 11; job_runner_survey.cpp): the critical-point map, and basin maps (which
+// compute their own map first). The region is the study's box, plane and held start.
+struct CriticalRequest {
+    std::shared_ptr<const Objective> objective;
+    survey::Region region;
+    survey::CriticalSettings settings;
+};
+struct BasinRequest {
+    std::shared_ptr<const Objective> objective;
+    survey::Region region;
+    survey::CriticalSettings critical;
+    std::vector<survey::BasinMethod> methods;
+    survey::BasinSettings settings;
+};
+
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, KindCount = 2 };
+    enum Kind { Runs = 0, Field = 1, Critical = 2, Basins = 3, KindCount = 4 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -84,11 +100,18 @@ public:
     void endStepSession();
 
     void sampleField(const FieldRequest& request);
+    // A bad request (region, settings, methods) is reported through surveyFailed, not thrown.
+    void findCritical(const CriticalRequest& request);
+    void mapBasins(const BasinRequest& request);
 
     void cancel(Kind kind);
     void cancelAll();
     bool busy(Kind kind) const { return inFlight_[kind] > 0; }
-    bool anyBusy() const { return busy(Runs) || busy(Field); }
+    bool anyBusy() const {
+        for (int k = 0; k < KindCount; ++k)
+            if (busy(static_cast<Kind>(k))) return true;
+        return false;
+    }
     quint64 generation(Kind kind) const { return generation_[kind]; }
     // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
     bool waitForIdle(int timeoutMs);
@@ -96,6 +119,10 @@ public:
 signals:
     void runsReady(std::shared_ptr<const sw::window::RunBatch> batch);
     void fieldReady(std::shared_ptr<const sw::widgets::FieldSnapshot> field, quint64 generation);
+    void criticalReady(std::shared_ptr<const sw::survey::CriticalMap> map, std::shared_ptr<const sw::Objective> objective);
+    void basinsReady(std::shared_ptr<const sw::survey::BasinSurvey> survey, std::shared_ptr<const sw::Objective> objective);
+    // kind is Critical or Basins; the sentence says what was wrong with the request.
+    void surveyFailed(int kind, QString problem);
     void progress(int kind, double fraction);
     void jobStarted(int kind);
     // After a result was delivered, dropped as stale, or the job was cancelled.
@@ -120,3 +147,5 @@ private:
 
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::RunBatch>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FieldSnapshot>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::survey::CriticalMap>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::survey::BasinSurvey>)

@@ -5,12 +5,14 @@
 
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
+#include "app/window/survey_controller.h"
 #include "core/solve/solver.h"
 #include "widgets/curvature_view.h"
 #include "widgets/landscape_view.h"
 #include "widgets/local_model_view.h"
 #include "widgets/progress_view.h"
 #include "widgets/slice_view.h"
+#include "widgets/basins_view.h"
 #include "widgets/steps_table.h"
 #include "widgets/theme.h"
 
@@ -142,6 +144,13 @@ void MainWindow::createViews() {
     connect(objectiveEditor_, &ObjectiveEditor::edited, this, &MainWindow::rebuildObjective);
     connect(objectiveEditor_, &ObjectiveEditor::plotAxesChanged, this, &MainWindow::onPlotAxesChanged);
     connect(lineupEditor_, &LineupEditor::edited, this, &MainWindow::onLineupEdited);
+
+    surveys_ = new SurveyController(jobs_, landscape_, this);
+    connect(surveys_, &SurveyController::startRequested, this, &MainWindow::moveStart);
+    connect(surveys_, &SurveyController::surveysEdited, this, [this](const study::SurveySettings& s) {
+        study_.surveys = s.critical || s.basins ? std::optional<study::SurveySettings>(s) : std::nullopt;
+        setModified(true);
+    });
 }
 
 void MainWindow::createDocks() {
@@ -170,6 +179,10 @@ void MainWindow::createDocks() {
     QDockWidget* slice = makeDock("slice", tr("Slice"), slice_,
                                   tr("The objective along the selected step, with the line-search trials"));
     QDockWidget* steps = makeDock("steps", tr("Steps"), steps_, tr("Every iterate of every method as a table"));
+    QDockWidget* critical = makeDock("critical-points", tr("Critical points"), surveys_->criticalPanel(),
+                                     tr("Every minimum, saddle and maximum in the plotted box"));
+    QDockWidget* basins = makeDock("basins", tr("Basins"), surveys_->basinsPanel(),
+                                   tr("Where each method's runs end, from every cell of a grid, side by side"));
 
     // No central widget: every view is a dock the user may move, stack or float.
     setCentralWidget(nullptr);
@@ -181,6 +194,9 @@ void MainWindow::createDocks() {
     splitDockWidget(local, progress, Qt::Vertical);
     tabifyDockWidget(progress, curvature);
     tabifyDockWidget(curvature, slice);
+    tabifyDockWidget(steps, critical);
+    tabifyDockWidget(critical, basins);
+    steps->raise();
     progress->raise();
     resizeDocks({objective, landscape, local}, {330, 640, 430}, Qt::Horizontal);
     resizeDocks({landscape, steps}, {600, 260}, Qt::Vertical);
@@ -274,7 +290,8 @@ void MainWindow::createMenus() {
     for (const char* name : {"run-all", "step-all", "play", "reset", "cancel"}) run->addAction(action(name));
 
     viewMenu_ = menuBar()->addMenu(tr("&View"));
-    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps"})
+    for (const char* name : {"objective", "lineup", "landscape", "local-model", "curvature", "progress", "slice", "steps",
+                             "critical-points", "basins"})
         viewMenu_->addAction(docks_[name]->toggleViewAction());
     viewMenu_->addSeparator();
     viewMenu_->addAction(action("reset-layout"));
@@ -501,6 +518,7 @@ void MainWindow::presentStudy() {
     objectiveEditor_->setStudy(study_, baseDirectory_);
     lineupEditor_->setEntries(study_.methods);
     landscape_->setLogColour(study_.view.logColour);
+    surveys_->studyOpened(study_);
     loading_ = false;
     hasViewBox_ = false;
     selection_ = {};
@@ -671,6 +689,7 @@ void MainWindow::rebuildObjective() {
     objectiveEditor_->showDerivatives(study_);
     if (changed) setModified(true);
     restart();
+    surveys_->studyChanged(study_, objective_);
 }
 
 void MainWindow::onLineupEdited() {
@@ -680,6 +699,7 @@ void MainWindow::onLineupEdited() {
     if (objective_) {
         jobs_->endStepSession();
         runAll();
+        surveys_->studyChanged(study_, objective_);
     }
 }
 
@@ -695,6 +715,7 @@ void MainWindow::onPlotAxesChanged() {
         pushSnapshot(copy);
     }
     requestField();
+    if (objective_) surveys_->studyChanged(study_, objective_);
 }
 
 void MainWindow::restart() {
@@ -1014,7 +1035,7 @@ bool MainWindow::waitForIdle(int timeoutMs) {
     clock.start();
     while (clock.elapsed() < timeoutMs) {
         QCoreApplication::processEvents(QEventLoop::AllEvents, 5);
-        if (!jobs_->anyBusy() && !heldResample_.isActive() && !lazyViews_.isActive()) {
+        if (!jobs_->anyBusy() && !heldResample_.isActive() && !lazyViews_.isActive() && !surveys_->pending()) {
             QCoreApplication::processEvents();
             if (!jobs_->anyBusy() && !lazyViews_.isActive()) return true;
         }
@@ -1027,7 +1048,7 @@ bool MainWindow::waitForIdle(int timeoutMs) {
 
 QStringList MainWindow::viewNames() const {
     return {QStringLiteral("landscape"), QStringLiteral("local-model"), QStringLiteral("curvature"),
-            QStringLiteral("progress"), QStringLiteral("slice")};
+            QStringLiteral("progress"), QStringLiteral("slice"), QStringLiteral("basins")};
 }
 
 widgets::PlotView* MainWindow::viewByName(const QString& name) const {
@@ -1036,6 +1057,7 @@ widgets::PlotView* MainWindow::viewByName(const QString& name) const {
     if (name == "curvature") return curvature_;
     if (name == "progress") return progress_;
     if (name == "slice") return slice_;
+    if (name == "basins") return surveys_->basinsView();
     return nullptr;
 }
 
@@ -1066,7 +1088,8 @@ void MainWindow::exportViewDialog() {
     QDialog dialog(this);
     dialog.setWindowTitle(tr("Export view"));
     auto* view = new QComboBox(&dialog);
-    const QStringList titles = {tr("Landscape"), tr("Local model"), tr("Curvature"), tr("Progress"), tr("Slice")};
+    const QStringList titles = {tr("Landscape"), tr("Local model"), tr("Curvature"), tr("Progress"), tr("Slice"),
+                                tr("Basins")};
     const QStringList names = viewNames();
     for (int i = 0; i < names.size(); ++i) view->addItem(titles[i], names[i]);
     view->setToolTip(tr("Which view to save"));

@@ -37,6 +37,7 @@ namespace sw::window {
 
 class ObjectiveEditor;
 class LineupEditor;
+class SurveyController;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -75,6 +76,7 @@ public:
     widgets::StepsTable* steps() const { return steps_; }
     ObjectiveEditor* objectiveEditor() const { return objectiveEditor_; }
     LineupEditor* lineupEditor() const { return lineupEditor_; }
+    SurveyController* surveys() const { return surveys_; }  // critical points and basins panels
     QAction* action(const QString& name) const;
     bool playing() const { return animation_.isActive(); }
     // Waits (processing events) until no job is in flight and the views are up to date.
@@ -189,6 +191,7 @@ private:
     widgets::StepsTable* steps_ = nullptr;
     ObjectiveEditor* objectiveEditor_ = nullptr;
     LineupEditor* lineupEditor_ = nullptr;
+    SurveyController* surveys_ = nullptr;
     std::map<QString, QDockWidget*> docks_;
     QByteArray defaultLayout_;
 
