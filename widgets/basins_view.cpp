@@ -14,15 +14,20 @@ namespace {
 
 QColor toQColor(survey::Rgb c) { return QColor(c.r, c.g, c.b); }
 
-QString pointName(const survey::BasinSurvey& s, std::size_t k) {
+// "saddle 1 #5 (valve_a=-0.126, valve_b=-0.993)" for the readout; the legend's short form
+// drops the names: "#5 saddle 1 (-0.126, -0.993)".
+QString pointName(const survey::BasinSurvey& s, std::size_t k, bool brief = false) {
     const survey::CriticalPoint& p = s.map.points[k];
-    QString text = QStringLiteral("%1 %2").arg(k).arg(QString::fromUtf8(survey::kindName(p)));
+    QString text = QStringLiteral("#%1 %2").arg(k).arg(QString::fromUtf8(survey::kindName(p)));
     if (p.kind == solve::PointKind::Saddle) text += QStringLiteral(" %1").arg(p.index);
     if (p.continuum) text += QObject::tr(" (set of %1)").arg(p.members);
     QStringList coordinates;
-    for (int i : {s.region.xVariable, s.region.yVariable})
-        coordinates << QStringLiteral("%1=%2").arg(QString::fromStdString(s.variables[static_cast<std::size_t>(i)]),
-                                                   formatNumber(p.x[i], 3));
+    for (int i : {s.region.xVariable, s.region.yVariable}) {
+        const QString value = formatNumber(std::abs(p.x[i]) < 1e-12 ? 0.0 : p.x[i], 3);
+        coordinates << (brief ? value
+                              : QStringLiteral("%1=%2").arg(QString::fromStdString(s.variables[static_cast<std::size_t>(i)]),
+                                                            value));
+    }
     return text + QStringLiteral(" (") + coordinates.join(QStringLiteral(", ")) + QStringLiteral(")");
 }
 
@@ -54,6 +59,8 @@ BasinsView::BasinsView(QWidget* parent) : PlotView(parent) {
     plot_->plotLayout()->addElement(0, 0, titleRow_);
     plot_->plotLayout()->addElement(1, 0, panelRow_);
     plot_->plotLayout()->addElement(2, 0, plot_->legend);
+    // An empty row takes the height the maps cannot use, so they stay about square.
+    plot_->plotLayout()->addElement(3, 0, new QCPLayoutElement(plot_));
     plot_->plotLayout()->setRowStretchFactor(0, 0.001);
     plot_->plotLayout()->setRowStretchFactor(2, 0.001);
     plot_->plotLayout()->setRowSpacing(2);
@@ -65,6 +72,15 @@ BasinsView::BasinsView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setWrap(3);
     plot_->legend->setMargins(QMargins(4, 2, 4, 2));
     enableLegendReflow(3);
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this] {
+        const int count = panelCount();
+        const int width = plot_->viewport().width();
+        if (count < 1 || width <= 0) return;
+        // An axis rect's outer height including the bottom axis about equals its inner width
+        // plus the left axis: a panel as tall as its share of the width is near square.
+        const int share = (width - panelRow_->columnSpacing() * (count - 1)) / count;
+        panelRow_->setMaximumSize(QWIDGETSIZE_MAX, std::max(160, share));
+    });
 
     readout_ = new QLabel(this);
     readout_->setObjectName(QStringLiteral("basinsReadout"));
@@ -118,6 +134,9 @@ void BasinsView::ensurePanels(int count) {
         rect->axis(QCPAxis::atRight)->setVisible(false);
         rect->axis(QCPAxis::atTop)->setVisible(false);
         rect->setMinimumSize(140, 140);
+        // Narrow panels: few ticks, so the labels never run into each other.
+        rect->axis(QCPAxis::atBottom)->ticker()->setTickCount(3);
+        rect->axis(QCPAxis::atLeft)->ticker()->setTickCount(4);
     }
 }
 
@@ -181,9 +200,8 @@ void BasinsView::rebuild() {
         }
         long iterations = 0;
         for (int it : s.maps[m].iterations) iterations += it;
-        titles_[m]->setText(QString::fromStdString(s.maps[m].method.label) +
-                            tr("   (%1 runs, mean %2 iterations)")
-                                .arg(s.maps[m].total())
+        titles_[m]->setText(QString::fromStdString(s.maps[m].method.label) + QStringLiteral("\n") +
+                            tr("mean %1 iterations")
                                 .arg(formatNumber(static_cast<double>(iterations) / std::max<long>(1, s.maps[m].total()), 3)));
     }
     // One legend: the points in their basin colours and markers, then the other outcomes seen.
@@ -193,7 +211,7 @@ void BasinsView::rebuild() {
         auto* entry = new QCPGraph(legendX, legendY);
         entry->setLineStyle(QCPGraph::lsNone);
         entry->setScatterStyle(criticalPointStyle(s.map.points[k].kind, 11, toQColor(survey::pointColour(k))));
-        entry->setName(pointName(s, k));
+        entry->setName(pointName(s, k, true));
         entry->setSelectable(QCP::stNone);
     }
     for (int code : {survey::kCellLimit, survey::kCellDiverged, survey::kCellFailed, survey::kCellOutside,

@@ -8,6 +8,9 @@ namespace sw::widgets {
 
 namespace {
 constexpr double kPickPixels = 9.0;
+// Larger than a run's end marker (13 px), which is drawn above: a run that ends on a critical
+// point shows as its coloured end inside the point's white marker, and neither hides the other.
+constexpr double kMarkerSize = 17.0;
 const QColor kOutline(20, 20, 24);
 }  // namespace
 
@@ -38,17 +41,17 @@ CriticalOverlay::CriticalOverlay(QCustomPlot* plot, QObject* parent) : QObject(p
     highlight_ = makeCurve(QString(), false);
     QPen outline(kOutline, 1.8);
     scaleForScreen(outline);
-    minima_->setScatterStyle(criticalPointStyle(solve::PointKind::Minimum));
+    minima_->setScatterStyle(criticalPointStyle(solve::PointKind::Minimum, kMarkerSize));
     minimumDots_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDisc, outline, QBrush(kOutline), 4));
-    saddles_->setScatterStyle(criticalPointStyle(solve::PointKind::Saddle));
-    maxima_->setScatterStyle(criticalPointStyle(solve::PointKind::Maximum));
-    degenerate_->setScatterStyle(criticalPointStyle(solve::PointKind::Degenerate));
+    saddles_->setScatterStyle(criticalPointStyle(solve::PointKind::Saddle, kMarkerSize));
+    maxima_->setScatterStyle(criticalPointStyle(solve::PointKind::Maximum, kMarkerSize));
+    degenerate_->setScatterStyle(criticalPointStyle(solve::PointKind::Degenerate, kMarkerSize));
     QPen thin(kOutline, 1.0);
     scaleForScreen(thin);
     continua_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssDiamond, thin, QBrush(Qt::white), 6));
     QPen ring(QColor(255, 196, 0), 2.6);
     scaleForScreen(ring);
-    highlight_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, ring, Qt::NoBrush, 22));
+    highlight_->setScatterStyle(QCPScatterStyle(QCPScatterStyle::ssCircle, ring, Qt::NoBrush, 26));
     plot_->installEventFilter(this);  // installed after the view's own filter, so asked first
     rebuild();
 }

@@ -195,8 +195,9 @@ void MainWindow::createDocks() {
     tabifyDockWidget(progress, curvature);
     tabifyDockWidget(curvature, slice);
     tabifyDockWidget(steps, critical);
-    tabifyDockWidget(critical, basins);
+    tabifyDockWidget(landscape, basins);  // the maps need the landscape's room, over the same plane
     steps->raise();
+    landscape->raise();
     progress->raise();
     resizeDocks({objective, landscape, local}, {330, 640, 430}, Qt::Horizontal);
     resizeDocks({landscape, steps}, {600, 260}, Qt::Vertical);

@@ -140,33 +140,37 @@ QWidget* SurveyController::buildCriticalPanel(QWidget* parent) {
 QWidget* SurveyController::buildBasinsPanel(QWidget* parent) {
     auto* panel = new QWidget(parent);
     panel->setObjectName(QStringLiteral("basinsPanel"));
-    auto* layout = new QHBoxLayout(panel);
+    // Controls in one strip above the maps, so the maps get the panel's whole width.
+    auto* layout = new QVBoxLayout(panel);
     layout->setContentsMargins(4, 4, 4, 4);
-    auto* side = new QVBoxLayout;
+    auto* strip = new QHBoxLayout;
     basinsOn_ = new QCheckBox(tr("Show basin maps"), panel);
     basinsOn_->setToolTip(tr("Run each chosen method from every cell of a grid over the plotted plane and colour the "
                              "cell by the critical point the run ends at (saved with the study)"));
     grid_ = new QSpinBox(panel);
     grid_->setRange(10, 1000);
     grid_->setValue(200);
+    grid_->setPrefix(tr("grid "));
     grid_->setSuffix(tr(" cells"));
     grid_->setToolTip(tr("Cells per side: grid x grid runs per method"));
     methods_ = new QListWidget(panel);
     methods_->setObjectName(QStringLiteral("basinMethods"));
     methods_->setToolTip(tr("The lineup entries to map, side by side"));
-    methods_->setMaximumWidth(220);
+    methods_->setFlow(QListView::LeftToRight);
+    methods_->setWrapping(true);
+    methods_->setResizeMode(QListView::Adjust);
+    methods_->setSpacing(1);
+    methods_->setMaximumHeight(2 * methods_->fontMetrics().height() + 14);
     basinsSummary_ = new QLabel(panel);
     basinsSummary_->setObjectName(QStringLiteral("basinsSummary"));
     basinsSummary_->setWordWrap(true);
-    basinsSummary_->setMaximumWidth(220);
-    auto* form = new QFormLayout;
-    form->addRow(tr("Grid"), grid_);
-    side->addWidget(basinsOn_);
-    side->addLayout(form);
-    side->addWidget(new QLabel(tr("Methods"), panel));
-    side->addWidget(methods_, 1);
-    side->addWidget(basinsSummary_);
-    layout->addLayout(side);
+    auto* left = new QVBoxLayout;
+    left->addWidget(basinsOn_);
+    left->addWidget(grid_);
+    strip->addLayout(left);
+    strip->addWidget(methods_, 1);
+    layout->addLayout(strip);
+    layout->addWidget(basinsSummary_);
     basinsView_ = new widgets::BasinsView(panel);
     layout->addWidget(basinsView_, 1);
 
