@@ -4,6 +4,7 @@
 // comparison of several runs from the same start.
 
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 
 #include <nlohmann/json.hpp>
 
@@ -14,18 +15,28 @@
 namespace sw::cli {
 
 // One run as JSON: method, label, termination, message, variables, x, value, gradient_norm,
-// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, eigenvalues,
-// tolerance, description}, and (withTrace) trace: one object per record with all its fields.
-// Non-finite numbers become null.
+// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, critical,
+// curvature, eigenvalues, tolerance, stationary_distance, stationary_bound, reason,
+// description}, dropped_records and record_stride (trace thinning, see solve::Run), and
+// (withTrace) trace: one object per record with all its fields. Non-finite numbers become null.
+// end_point.kind is "minimum", "saddle", "maximum", "degenerate" only where critical is true;
+// "not-critical" where the stationarity test failed (curvature then says what the Hessian
+// looks like there, reason why it is not critical); "unknown" where nothing could be tested
+// (a non-finite end, no Hessian, too many variables; reason says which).
 nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
 nlohmann::json recordToJson(const solve::IterationRecord& record);
 
-// Per-iteration table: k, f, |g|, step kind, alpha, |step|, cumulative evaluations, note;
+// Where a result came from, and the caution, for the top of a JSON document: {program,
+// version, study_title (when there is a study), formula | model, loss, data, caution}.
+nlohmann::json provenanceJson(const study::Provenance& provenance);
+
+// Per-iteration table: k, f, |∇f|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.
 void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// Termination and message, iterations, evaluations, x, f, |g|, end point.
+// Termination and message, iterations, evaluations, x, f, |∇f|, end point.
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// One row per run: label, iterations, evaluations, final value, |g|, termination, end-point kind.
+// One row per run: label, iterations, evaluations, final value, |∇f|, termination, end point
+// ("local minimum", "saddle (index 1)", ...).
 void printComparison(std::ostream& out, const std::vector<solve::Run>& runs);
 
 // Distributes --option texts over the chosen methods. "name=value" applies to every chosen

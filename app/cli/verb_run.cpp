@@ -21,7 +21,7 @@ const char* kHelp =
     "Runs every enabled method of the study's lineup from the study's start point, with the\n"
     "study's stopping rules, and prints one row per method: iterations, evaluations (value,\n"
     "gradient, Hessian), final value, gradient norm, how the run ended, and what kind of point\n"
-    "it ended on (minimum, saddle of index k, maximum, degenerate).\n"
+    "it ended on (local minimum, saddle of index k, local maximum, degenerate).\n"
     "\n"
     "The study is checked in full first; a problem is reported with its place in the file,\n"
     "e.g. 'methods[2].options.initial_radius: must be > 0 (got -1)'. For a data-fit study the\n"
@@ -61,6 +61,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     if (lineup.empty())
         throw UsageError(path + ": the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
 
+    // Without --json no record is printed: keep only the smallest trace.
+    if (!parsed.has("json")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     const Vector start = study.start();
     const std::vector<std::string> names = study.variableNames();
     std::vector<solve::Run> runs;
@@ -74,7 +76,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         Json variables = Json::array();
         Json startPoint = Json::object();
         for (const study::Variable& v : study.variables) {
-            variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+            variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
             startPoint[v.name] = v.start;
         }
         Json studyJson = {{"file", path},
@@ -90,7 +92,9 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
             run["options"] = lineup[k]->options;
             runList.push_back(std::move(run));
         }
-        out << Json({{"study", studyJson}, {"runs", runList}}).dump(2) << '\n';
+        out << Json({{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}})
+                   .dump(2, ' ', false, Json::error_handler_t::replace)
+            << '\n';
         return exitCodeFor(runs);
     }
 
@@ -104,6 +108,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     out << '\n';
     for (std::size_t k = 0; k < runs.size(); ++k)
         out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+    out << '\n' << wrapText(study::cautionLine(), 100);
     return exitCodeFor(runs);
 }
 

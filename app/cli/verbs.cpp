@@ -1,5 +1,6 @@
 #include "app/cli/cli.h"
 #include "core/expr/expr.h"
+#include "core/study/provenance.h"
 
 #include <exception>
 #include <ostream>
@@ -31,8 +32,8 @@ static void printOverview(std::ostream& out) {
         for (std::size_t i = v.name.size(); i < 10; ++i) out << ' ';
         out << ' ' << v.summary << '\n';
     }
-    out << "\nExit codes: 0 success, 1 the work failed, 2 bad usage or bad input.\n"
-           "Results are only as good as the model and the data: verify them before relying on them.\n";
+    out << "\nExit codes: 0 success, 1 the work failed, 2 bad usage or bad input.\n\n"
+        << wrapText(study::cautionLine(), 90);
 }
 
 int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std::ostream& err) {
@@ -43,7 +44,7 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
         return 0;
     }
     if (args[0] == "--version") {
-        out << "saddlewise 0.1.0\n";
+        out << "saddlewise " << study::programVersion() << '\n';
         return 0;
     }
     const Verb* verb = nullptr;

@@ -1,7 +1,7 @@
 // Symbolic differentiation on the graph, forward over the nodes in topological order (no
 // recursion, so any depth of formula is safe).
 //
-// Conventions where the derivative is undefined or a jump (documented in DEVELOPERS.md):
+// Conventions where the derivative is undefined or a jump (documented in docs/expr.md):
 //   d|u| = sign(u) du (so 0 at u = 0);  d sign(u) = 0;  comparisons, && and || have
 //   derivative 0;  d(c ? a : b) = c ? da : db (the branches, not the condition);
 //   d min(a,b) = (a <= b ? da : db) and d max(a,b) = (a >= b ? da : db), i.e. the selected

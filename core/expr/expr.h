@@ -35,7 +35,7 @@ private:
     int position_;
 };
 
-// Documented limits (also in DEVELOPERS.md).
+// Documented limits (also in docs/expr.md).
 inline constexpr std::size_t kMaxFormulaLength = 10000;  // characters of user-typed text
 inline constexpr int kMaxNestingDepth = 200;              // parentheses/function nesting
 
