@@ -2,6 +2,7 @@
 #include "app/cli/run_report.h"
 #include "app/cli/survey_cli.h"
 #include "core/survey/picture.h"
+#include "app/cli/run_report.h"
 #include "core/survey/survey_json.h"
 
 #include <chrono>
@@ -138,6 +139,9 @@ int runBasins(const std::vector<std::string>& args, std::ostream& out, std::ostr
         if (parsed.has("json")) {
             survey::Json j = survey::basinSurveyToJson(result);
             j["formula"] = input.formula;
+            study::Provenance provenance;
+            provenance.formula = input.formula;
+            j["provenance"] = provenanceJson(provenance);
             out << j.dump(2) << '\n';
             return 0;
         }
@@ -170,6 +174,7 @@ int runBasins(const std::vector<std::string>& args, std::ostream& out, std::ostr
         if (*group->description()) out << " on " << group->description();
         out << '\n';
         if (parsed.has("png")) out << "wrote " << parsed.get("png") << '\n';
+        out << '\n' << wrapText(study::cautionLine(), 100);
         return 0;
     });
 }

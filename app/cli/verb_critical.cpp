@@ -1,5 +1,6 @@
 // saddlewise critical: every critical point of a formula in a box, classified.
 #include "app/cli/survey_cli.h"
+#include "app/cli/run_report.h"
 #include "core/survey/survey_json.h"
 
 #include <chrono>
@@ -65,6 +66,9 @@ int runCritical(const std::vector<std::string>& args, std::ostream& out, std::os
         if (parsed.has("json")) {
             survey::Json j = survey::criticalMapToJson(map);
             j["formula"] = input.formula;
+            study::Provenance provenance;
+            provenance.formula = input.formula;
+            j["provenance"] = provenanceJson(provenance);
             out << j.dump(2) << '\n';
             return 0;
         }
@@ -74,7 +78,7 @@ int runCritical(const std::vector<std::string>& args, std::ostream& out, std::os
         printSearchSummary(out, map);
         out << "time: " << formatNumber(map.seconds * 1e3, 4) << " ms";
         if (*group->description()) out << " on " << group->description();
-        out << '\n';
+        out << "\n\n" << wrapText(study::cautionLine(), 100);
         return 0;
     });
 }
