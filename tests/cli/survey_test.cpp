@@ -141,7 +141,7 @@ TEST(BasinsVerb, JsonCountsAddUpToTheGridForEveryMethod) {
 }
 
 TEST(BasinsVerb, WritesThePicture) {
-    const std::string path = std::string(SW_BINARY_DIR) + "/basins_verb_test.png";
+    const std::string path = SW_BINARY_DIR "/basins_verb_test.png";
     std::remove(path.c_str());
     const Result r = runInProcess({"basins", kTwoValve, "--box", "a=-1.6:1.6,b=-1.6:1.6", "--grid", "20", "--method",
                                    "newton", "--method", "saddle-free-newton", "--png", path, "--png-size", "100"});

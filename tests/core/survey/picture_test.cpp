@@ -97,7 +97,7 @@ TEST(Picture, BasinImageHasOnePixelPerCellWithTheTopRowAtLargestY) {
     const Image picture = basinPicture(s, 120);
     EXPECT_GE(picture.width, 2 * 120);
     EXPECT_GT(picture.height, 120);
-    const std::string path = std::string(SW_BINARY_DIR) + "/picture_test.png";
+    const std::string path = SW_BINARY_DIR "/picture_test.png";
     writePng(picture, path);
     std::ifstream in(path, std::ios::binary);
     std::stringstream bytes;
