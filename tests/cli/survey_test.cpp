@@ -163,7 +163,9 @@ TEST(BasinsVerb, HoldsTheOtherVariablesWhereAsked) {
     const nlohmann::json j = nlohmann::json::parse(r.out);
     EXPECT_EQ(j["plane"]["held"]["c"], 0.5);
     for (const auto& p : j["methods"][0]["points"])
-        if (p["kind"] == "minimum") EXPECT_NEAR(p["x"]["c"].get<double>(), 0.25, 1e-12);
+        if (p["kind"] == "minimum") {
+            EXPECT_NEAR(p["x"]["c"].get<double>(), 0.25, 1e-12);
+        }
 }
 
 TEST(BasinsVerb, BadInputNamesThePlaceAndTheLimit) {
