@@ -87,5 +87,7 @@ Verb minimizeVerb();  // verb_minimize.cpp
 Verb methodsVerb();   // verb_methods.cpp
 Verb fitVerb();       // verb_fit.cpp
 Verb runVerb();       // verb_run.cpp  (runs a study file)
+Verb criticalVerb();  // verb_critical.cpp
+Verb basinsVerb();    // verb_basins.cpp
 
 }  // namespace sw::cli

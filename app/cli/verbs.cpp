@@ -8,8 +8,8 @@
 namespace sw::cli {
 
 const std::vector<Verb>& verbs() {
-    static const std::vector<Verb> list = {deriveVerb(), sampleVerb(),  minimizeVerb(),
-                                           methodsVerb(), fitVerb(), runVerb()};
+    static const std::vector<Verb> list = {deriveVerb(), sampleVerb(),  minimizeVerb(), methodsVerb(),
+                                           fitVerb(),    runVerb(),     criticalVerb(), basinsVerb()};
     return list;
 }
 

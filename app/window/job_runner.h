@@ -11,6 +11,7 @@
 #include "core/analyze/analyze.h"
 #include "core/solve/solver.h"
 #include "widgets/fit_snapshot.h"
+#include "core/survey/survey.h"
 #include "widgets/snapshot.h"
 
 #include <QObject>
@@ -76,11 +77,25 @@ struct FitStatisticsRequest {
     QString equation, lossText;  // the fit in words, as the command line's report writes them
     double confidenceLevel = 0.95;
 };
+// Surveys (issue 11; job_runner_survey.cpp): the critical-point map, and basin maps (which
+// compute their own map first). The region is the study's box, plane and held start.
+struct CriticalRequest {
+    std::shared_ptr<const Objective> objective;
+    survey::Region region;
+    survey::CriticalSettings settings;
+};
+struct BasinRequest {
+    std::shared_ptr<const Objective> objective;
+    survey::Region region;
+    survey::CriticalSettings critical;
+    std::vector<survey::BasinMethod> methods;
+    survey::BasinSettings settings;
+};
 
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, Statistics = 2, Findings = 3, KindCount = 4 };
+    enum Kind { Runs = 0, Field = 1, Statistics = 2, Findings = 3, Critical = 4, Basins = 5, KindCount = 6 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -105,10 +120,18 @@ public:
     // supersedes an older one. findingsReady comes once without and once with the outcomes.
     void diagnose(const DiagnosisRequest& request);
 
+    // A bad request (region, settings, methods) is reported through surveyFailed, not thrown.
+    void findCritical(const CriticalRequest& request);
+    void mapBasins(const BasinRequest& request);
+
     void cancel(Kind kind);
     void cancelAll();
     bool busy(Kind kind) const { return inFlight_[kind] > 0; }
-    bool anyBusy() const { return busy(Runs) || busy(Field) || busy(Statistics) || busy(Findings); }
+    bool anyBusy() const {
+        for (int k = 0; k < KindCount; ++k)
+            if (busy(static_cast<Kind>(k))) return true;
+        return false;
+    }
     quint64 generation(Kind kind) const { return generation_[kind]; }
     // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
     bool waitForIdle(int timeoutMs);
@@ -118,6 +141,10 @@ signals:
     void fieldReady(std::shared_ptr<const sw::widgets::FieldSnapshot> field, quint64 generation);
     void fitStatisticsReady(std::shared_ptr<const sw::widgets::FitSnapshot> statistics);
     void findingsReady(std::shared_ptr<const sw::window::FindingsBatch> batch);
+    void criticalReady(std::shared_ptr<const sw::survey::CriticalMap> map, std::shared_ptr<const sw::Objective> objective);
+    void basinsReady(std::shared_ptr<const sw::survey::BasinSurvey> survey, std::shared_ptr<const sw::Objective> objective);
+    // kind is Critical or Basins; the sentence says what was wrong with the request.
+    void surveyFailed(int kind, QString problem);
     void progress(int kind, double fraction);
     void jobStarted(int kind);
     // After a result was delivered, dropped as stale, or the job was cancelled.
@@ -144,3 +171,5 @@ Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::RunBatch>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FieldSnapshot>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::widgets::FitSnapshot>)
 Q_DECLARE_METATYPE(std::shared_ptr<const sw::window::FindingsBatch>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::survey::CriticalMap>)
+Q_DECLARE_METATYPE(std::shared_ptr<const sw::survey::BasinSurvey>)

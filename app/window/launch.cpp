@@ -5,6 +5,7 @@
 
 #include <QApplication>
 #include <QDir>
+#include <QDockWidget>
 #include <QFileInfo>
 #include <QMessageBox>
 #include <QTimer>
@@ -136,6 +137,10 @@ int launch(int argc, char** argv) {
         const QString size = qEnvironmentVariable("SADDLEWISE_SCREENSHOT_SIZE");  // e.g. 1600x1000
         const QStringList wh = size.split('x');
         if (wh.size() == 2) window.setInitialSize(QSize(wh[0].toInt(), wh[1].toInt()));
+        // SADDLEWISE_SCREENSHOT_RAISE=basins,critical-points brings those tabbed panels to the front.
+        for (const QString& name : qEnvironmentVariable("SADDLEWISE_SCREENSHOT_RAISE").split(',', Qt::SkipEmptyParts))
+            for (QDockWidget* dock : window.findChildren<QDockWidget*>())
+                if (dock->objectName() == name) dock->raise();
         scheduleScreenshot(window, QFileInfo(shot).absoluteFilePath());
     }
     window.show();

@@ -11,6 +11,7 @@
 #include "app/window/lineup_editor.h"
 #include "app/window/objective_editor.h"
 #include "app/window/fit_statistics_panel.h"
+#include "app/window/survey_controller.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
@@ -19,6 +20,7 @@
 #include "widgets/progress_view.h"
 #include "widgets/run_summary.h"
 #include "widgets/slice_view.h"
+#include "widgets/basins_view.h"
 #include "widgets/steps_table.h"
 #include "widgets/theme.h"
 
@@ -174,6 +176,13 @@ void MainWindow::createViews() {
     connect(objectiveEditor_, &ObjectiveEditor::plotAxesChanged, this, &MainWindow::onPlotAxesChanged);
     connect(objectiveEditor_, &ObjectiveEditor::heldValuesEdited, this, &MainWindow::onHeldValuesEdited);
     connect(lineupEditor_, &LineupEditor::edited, this, &MainWindow::onLineupEdited);
+
+    surveys_ = new SurveyController(jobs_, landscape_, this);
+    connect(surveys_, &SurveyController::startRequested, this, &MainWindow::moveStart);
+    connect(surveys_, &SurveyController::surveysEdited, this, [this](const study::SurveySettings& s) {
+        study_.surveys = s.critical || s.basins ? std::optional<study::SurveySettings>(s) : std::nullopt;
+        setModified(true);
+    });
 }
 
 QDockWidget* MainWindow::addViewDock(const QString& name, const QString& title, QWidget* content, const QString& tip,
@@ -227,6 +236,10 @@ void MainWindow::createDocks() {
     addViewDock("derivatives", tr("Derivatives"), derivatives_, tr("The exact gradient and Hessian as formulas"));
     addViewDock("findings", tr("Findings"), findingsPanel_,
                 tr("Why each run stalled, ended on a saddle or crawls, and the remedies tried"));
+    addViewDock("critical-points", tr("Critical points"), surveys_->criticalPanel(),
+                tr("Every minimum, saddle and maximum in the plotted box"));
+    addViewDock("basins", tr("Basins"), surveys_->basinsPanel(),
+                tr("Where each method's runs end, from every cell of a grid, side by side"));
     setCentralWidget(nullptr);  // no central widget: every view is a dock the user may move, stack or float
     placeDocks();
 }
@@ -243,6 +256,9 @@ void MainWindow::placeDocks() {
     tabifyDockWidget(at("summary"), at("steps"));
     tabifyDockWidget(at("steps"), at("derivatives"));
     tabifyDockWidget(at("derivatives"), at("findings"));
+    tabifyDockWidget(at("findings"), at("critical-points"));
+    tabifyDockWidget(at("landscape"), at("basins"));  // the maps need the landscape's room, over the same plane
+    at("landscape")->raise();
     splitDockWidget(at("local-model"), at("progress"), Qt::Vertical);
     tabifyDockWidget(at("progress"), at("curvature"));
     tabifyDockWidget(at("curvature"), at("slice"));
@@ -630,6 +646,7 @@ void MainWindow::presentStudy() {
     objectiveEditor_->setStudy(study_, baseDirectory_);
     lineupEditor_->setEntries(study_.methods);
     landscape_->setLogColour(study_.view.logColour);
+    surveys_->studyOpened(study_);
     loading_ = false;
     hasViewBox_ = false;
     objective_.reset();
@@ -915,6 +932,7 @@ void MainWindow::rebuildObjective() {
     objective_ = built;
     derivatives_->showDerivatives(study_, objectiveEditor_->columnNames());
     restart();
+    surveys_->studyChanged(study_, objective_);
 }
 
 void MainWindow::onLineupEdited() {
@@ -924,6 +942,7 @@ void MainWindow::onLineupEdited() {
     if (objective_) {
         jobs_->endStepSession();
         runAll();
+        surveys_->studyChanged(study_, objective_);
     }
 }
 
@@ -941,6 +960,7 @@ void MainWindow::onPlotAxesChanged() {
         pushSnapshot(copy);
     }
     requestField();
+    if (objective_) surveys_->studyChanged(study_, objective_);
 }
 
 void MainWindow::onHeldValuesEdited() {
@@ -1274,7 +1294,7 @@ bool MainWindow::waitForIdle(int timeoutMs) {
     clock.start();
     while (clock.elapsed() < timeoutMs) {
         QCoreApplication::processEvents(QEventLoop::AllEvents, 5);
-        if (!jobs_->anyBusy() && !heldResample_.isActive() && !lazyViews_.isActive()) {
+        if (!jobs_->anyBusy() && !heldResample_.isActive() && !lazyViews_.isActive() && !surveys_->pending()) {
             QCoreApplication::processEvents();
             if (!jobs_->anyBusy() && !lazyViews_.isActive()) return true;
         }
@@ -1287,7 +1307,7 @@ bool MainWindow::waitForIdle(int timeoutMs) {
 
 QStringList MainWindow::viewNames() const {
     return {QStringLiteral("landscape"), QStringLiteral("local-model"), QStringLiteral("curvature"),
-            QStringLiteral("progress"), QStringLiteral("slice")};
+            QStringLiteral("progress"), QStringLiteral("slice"), QStringLiteral("basins")};
 }
 
 widgets::PlotView* MainWindow::viewByName(const QString& name) const {
@@ -1296,6 +1316,7 @@ widgets::PlotView* MainWindow::viewByName(const QString& name) const {
     if (name == "curvature") return curvature_;
     if (name == "progress") return progress_;
     if (name == "slice") return slice_;
+    if (name == "basins") return surveys_->basinsView();
     return nullptr;
 }
 
@@ -1353,7 +1374,8 @@ void MainWindow::exportViewDialog() {
     QDialog dialog(this);
     dialog.setWindowTitle(tr("Export view"));
     auto* view = new QComboBox(&dialog);
-    const QStringList titles = {tr("Landscape"), tr("Local model"), tr("Curvature"), tr("Progress"), tr("Slice")};
+    const QStringList titles = {tr("Landscape"), tr("Local model"), tr("Curvature"), tr("Progress"), tr("Slice"),
+                                tr("Basins")};
     const QStringList names = viewNames();
     for (int i = 0; i < names.size(); ++i) view->addItem(titles[i], names[i]);
     view->setToolTip(tr("Which view to save"));

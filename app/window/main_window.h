@@ -54,6 +54,7 @@ struct ExportLook {
 };
 class FindingsPanel;
 class FindingsController;
+class SurveyController;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -110,6 +111,7 @@ public:
     LineupEditor* lineupEditor() const { return lineupEditor_; }
     FindingsPanel* findingsPanel() const { return findingsPanel_; }
     FindingsController* findingsController() const { return findingsController_; }
+    SurveyController* surveys() const { return surveys_; }  // critical points and basins panels
     QAction* action(const QString& name) const;
     // Values of every variable the landscape holds fixed (the plotted two included, at the
     // selected iterate or start): the selected iterate, or the values typed in the editor.
@@ -252,6 +254,7 @@ private:
     LineupEditor* lineupEditor_ = nullptr;
     FindingsPanel* findingsPanel_ = nullptr;
     FindingsController* findingsController_ = nullptr;
+    SurveyController* surveys_ = nullptr;
     std::map<QString, QDockWidget*> docks_;
     QStringList dockOrder_;
     QByteArray defaultLayout_;

@@ -78,6 +78,19 @@ struct ViewSettings {
     bool operator==(const ViewSettings&) const = default;
 };
 
+// Added (issue 11): the surveys a study shows, by their settings. Results are not stored (a
+// 200 x 200 basin map takes well under a second to recompute, and stored results would go
+// stale silently when the objective changes). Absent in files written before; absent means off.
+struct SurveySettings {
+    bool critical = false;     // "critical_points": the critical-point map
+    int criticalStarts = 256;  //   "starts": Halton starts
+    int signChangeGrid = 64;   //   "sign_change_grid": cells per side (0: none)
+    bool basins = false;       // "basins": basin maps
+    int basinGrid = 200;       //   "grid": cells per side
+    std::vector<std::string> basinMethods;  //   "methods": labels of lineup entries
+    bool operator==(const SurveySettings&) const = default;
+};
+
 struct Study {
     std::string title;
     std::string notes;
@@ -100,6 +113,7 @@ struct Study {
     // written in place of the number, so a file saved from the window holds what was on screen.
     // Empty for every study that runs.
     std::map<std::string, std::string> unparsed;
+    std::optional<SurveySettings> surveys;  // added: "surveys" (absent: none)
 
     bool operator==(const Study&) const = default;
     bool isFit() const { return fit.has_value(); }
@@ -124,7 +138,9 @@ struct Study {
 // Former key names are read and saved under the current ones (docs/names.md): variables'
 // "lower"/"upper", the stopping tolerances' "*_tolerance", the loss ids "bernoulli-logit" and
 // "poisson-log", and method options' former names.
-//     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 } }
+//     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 },
+//     "surveys": { "critical_points": { "starts": 256, "sign_change_grid": 64 },       (optional)
+//                  "basins": { "grid": 200, "methods": ["label", ...] } } }
 // verifyData = false (added) skips reading the data file of a data-fit study (it may be
 // missing or changed), so a window can open the study and let the user locate or accept the
 // file; makeObjective still refuses a missing or changed file. Everything else is checked

@@ -637,6 +637,49 @@ void readView(const Json& document, Study& study) {
     view.gridCells = static_cast<int>(in.integer("grid_cells", view.gridCells, 10, 2000));
 }
 
+// "surveys": optional; each survey present is on. Basin methods name lineup entries by label.
+void readSurveys(const Json& document, Study& study) {
+    if (!document.contains("surveys")) return;
+    ObjectReader in(document.at("surveys"), "surveys", {"critical_points", "basins"});
+    in.rejectUnknownKeys();
+    SurveySettings surveys;
+    if (in.has("critical_points")) {
+        ObjectReader critical(in.get("critical_points"), in.at("critical_points"), {"starts", "sign_change_grid"});
+        critical.rejectUnknownKeys();
+        surveys.critical = true;
+        surveys.criticalStarts = static_cast<int>(critical.integer("starts", surveys.criticalStarts, 1, 1000000));
+        surveys.signChangeGrid =
+            static_cast<int>(critical.integer("sign_change_grid", surveys.signChangeGrid, 0, 1000));
+    }
+    if (in.has("basins")) {
+        ObjectReader basins(in.get("basins"), in.at("basins"), {"grid", "methods"});
+        basins.rejectUnknownKeys();
+        surveys.basins = true;
+        surveys.basinGrid = static_cast<int>(basins.integer("grid", surveys.basinGrid, 1, 4000));
+        if (basins.has("methods")) {
+            const Json& list = basins.get("methods");
+            if (!list.is_array())
+                ObjectReader::fail(basins.at("methods"), "must be a list of method labels (got " + jsonTypeName(list) + ")");
+            for (std::size_t k = 0; k < list.size(); ++k) {
+                const std::string place = item(basins.at("methods"), k);
+                if (!list[k].is_string()) ObjectReader::fail(place, "must be a method label in quotes (got " + shown(list[k]) + ")");
+                const std::string label = list[k].get<std::string>();
+                const bool known = std::any_of(study.methods.begin(), study.methods.end(),
+                                               [&](const MethodEntry& m) { return m.label == label; });
+                if (!known) {
+                    std::vector<std::string> labels;
+                    for (const MethodEntry& m : study.methods) labels.push_back(m.label);
+                    ObjectReader::fail(place, "'" + label + "' is not the label of a method entry (" + join(labels) + ")");
+                }
+                if (std::find(surveys.basinMethods.begin(), surveys.basinMethods.end(), label) != surveys.basinMethods.end())
+                    ObjectReader::fail(place, "'" + label + "' is listed twice");
+                surveys.basinMethods.push_back(label);
+            }
+        }
+    }
+    study.surveys = surveys;
+}
+
 // Checks the objective by building it, so a study that loads is a study that runs.
 void checkObjective(const Study& study, const std::string& baseDirectory) {
     makeObjective(study, baseDirectory);
@@ -646,7 +689,8 @@ Study readDocument(const std::string& text, const std::string& baseDirectory, bo
     const Json document = parseDocument(text);
     readHeader(document);
     ObjectReader root(document, "",
-                      {"format", "version", "title", "notes", "objective", "variables", "methods", "stopping", "view"});
+                      {"format", "version", "title", "notes", "objective", "variables", "methods", "stopping", "view",
+                       "surveys"});
     root.rejectUnknownKeys();
 
     Study study;
@@ -716,6 +760,7 @@ Study readDocument(const std::string& text, const std::string& baseDirectory, bo
     readView(document, study);
     if ((verifyData || !study.fit) && !readingAsTyped()) checkObjective(study, baseDirectory);
     study.methods = readMethods(document, residualForm);
+    readSurveys(document, study);
     return study;
 }
 

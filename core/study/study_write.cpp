@@ -121,6 +121,15 @@ std::string toJson(const Study& study) {
                         {"log_colour", study.view.logColour},
                         {"contour_count", study.view.contourCount},
                         {"grid_cells", study.view.gridCells}};
+    if (study.surveys) {
+        Json surveys = Json::object();
+        if (study.surveys->critical)
+            surveys["critical_points"] = {{"starts", study.surveys->criticalStarts},
+                                          {"sign_change_grid", study.surveys->signChangeGrid}};
+        if (study.surveys->basins)
+            surveys["basins"] = {{"grid", study.surveys->basinGrid}, {"methods", study.surveys->basinMethods}};
+        document["surveys"] = surveys;
+    }
     // UTF-8 is kept as it is; invalid bytes are replaced rather than aborting the save.
     return document.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
 }
