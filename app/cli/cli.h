@@ -75,5 +75,6 @@ Verb minimizeVerb();  // verb_minimize.cpp
 Verb methodsVerb();   // verb_methods.cpp
 Verb fitVerb();       // verb_fit.cpp
 Verb runVerb();       // verb_run.cpp  (runs a study file)
+Verb reportVerb();    // verb_report.cpp  (the review report of a study)
 
 }  // namespace sw::cli

@@ -3,6 +3,7 @@
 // JSON for programs, and for people a per-iteration table, a summary, and a side-by-side
 // comparison of several runs from the same start.
 
+#include "core/report/run_json.h"
 #include "core/solve/solver.h"
 
 #include <nlohmann/json.hpp>
@@ -13,12 +14,9 @@
 
 namespace sw::cli {
 
-// One run as JSON: method, label, termination, message, variables, x, value, gradient_norm,
-// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, eigenvalues,
-// tolerance, description}, and (withTrace) trace: one object per record with all its fields.
-// Non-finite numbers become null.
-nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
-nlohmann::json recordToJson(const solve::IterationRecord& record);
+// One run as JSON, and one record: core/report/run_json.h (shared with the report writer).
+using report::recordToJson;
+using report::runToJson;
 
 // Per-iteration table: k, f, |g|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.

@@ -62,18 +62,6 @@ const char* kCaution =
     "Caution: a fit is only as good as the model and the data. Verify it before relying on it, and\n"
     "defer to local codes and licensed practice where safety is involved.\n";
 
-nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
-
-nlohmann::json matrixJson(const Matrix& m) {
-    nlohmann::json rows = nlohmann::json::array();
-    for (Eigen::Index i = 0; i < m.rows(); ++i) {
-        nlohmann::json row = nlohmann::json::array();
-        for (Eigen::Index j = 0; j < m.cols(); ++j) row.push_back(number(m(i, j)));
-        rows.push_back(row);
-    }
-    return rows;
-}
-
 std::string cell(double v, int width, int precision = 6) {
     std::ostringstream s;
     s << std::setw(width) << (std::isfinite(v) ? formatNumber(v, precision) : std::string(std::isnan(v) ? "nan" : "inf"));
@@ -159,34 +147,7 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
         j["response"] = def.response;
         j["loss"] = toString(def.loss);
         if (def.loss == Loss::Huber || def.loss == Loss::Cauchy) j["scale"] = def.scale;
-        nlohmann::json parameters = nlohmann::json::object(), errors = nlohmann::json::object(),
-                       intervals = nlohmann::json::object();
-        for (std::size_t k = 0; k < names.size(); ++k) {
-            const auto i = static_cast<Eigen::Index>(k);
-            parameters[names[k]] = number(st.estimates[i]);
-            errors[names[k]] = number(st.standardErrors[i]);
-            intervals[names[k]] = {number(st.lower[i]), number(st.upper[i])};
-        }
-        j["parameters"] = parameters;
-        j["standard_errors"] = errors;
-        j["confidence_intervals"] = intervals;
-        j["confidence_level"] = st.confidenceLevel;
-        j["critical_value"] = number(st.criticalValue);
-        j["covariance"] = matrixJson(st.covariance);
-        j["correlation"] = matrixJson(st.correlation);
-        j["covariance_method"] = st.covarianceMethod;
-        j["residual_sum_of_squares"] = number(st.residualSumOfSquares);
-        j["residual_standard_deviation"] = number(st.residualStandardDeviation);
-        j["degrees_of_freedom"] = st.degreesOfFreedom;
-        j["objective_value"] = number(st.objectiveValue);
-        if (st.likelihood) {
-            j["log_likelihood"] = number(st.logLikelihood);
-            j["deviance"] = number(st.deviance);
-        }
-        nlohmann::json singular = nlohmann::json::array();
-        for (Eigen::Index i = 0; i < st.singularValues.size(); ++i) singular.push_back(number(st.singularValues[i]));
-        j["jacobian"] = {{"rank", st.rank}, {"scaled_condition", number(st.scaledCondition)},
-                         {"scaled_singular_values", singular}};
+        j.update(report::statisticsToJson(st));
         j["warnings"] = result.warnings;
         j["converged"] = result.converged();
         out << j.dump(2) << '\n';

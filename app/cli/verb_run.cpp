@@ -2,6 +2,7 @@
 // and prints the side-by-side comparison (or one JSON object with every run).
 #include "app/cli/cli.h"
 #include "app/cli/run_report.h"
+#include "core/report/study_run.h"
 #include "core/solve/solver.h"
 #include "core/study/study.h"
 
@@ -12,8 +13,6 @@
 namespace sw::cli {
 
 namespace {
-
-using Json = nlohmann::json;
 
 const char* kHelp =
     "Usage: saddlewise run STUDY.json [--json] [--max-iterations N]\n"
@@ -29,7 +28,9 @@ const char* kHelp =
     "\n"
     "Options:\n"
     "  --json               one JSON object: {\"study\": {...}, \"runs\": [...]}, each run with its\n"
-    "                       label, options, summary, end point and full per-iteration trace\n"
+    "                       label, options, summary, end point and full per-iteration trace;\n"
+    "                       for a data fit also its statistics (\"fit\": estimates, standard\n"
+    "                       errors, intervals, correlations, warnings)\n"
     "  --max-iterations N   override the study's iteration limit (1 to 1000000)\n"
     "\n"
     "Exit codes: 0 every method ran (converged or stopped at a limit), 1 a run broke down\n"
@@ -55,45 +56,22 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         rules.maxIterations =
             static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 1, 1000000));
 
-    std::vector<const study::MethodEntry*> lineup;
-    for (const study::MethodEntry& entry : study.methods)
-        if (entry.enabled) lineup.push_back(&entry);
-    if (lineup.empty())
-        throw UsageError(path + ": the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
-
-    const Vector start = study.start();
-    const std::vector<std::string> names = study.variableNames();
-    std::vector<solve::Run> runs;
-    for (const study::MethodEntry* entry : lineup) {
-        solve::Run result = solve::solve(entry->method, *objective, start, entry->options, rules);
-        result.label = entry->label;
-        runs.push_back(std::move(result));
+    report::StudyRuns result;
+    try {
+        report::RunControl control;
+        control.statistics = parsed.has("json");  // the table leaves them out
+        result = report::runStudy(study, path, objective, rules, control);
+    } catch (const study::StudyError& e) {
+        throw UsageError(path + ": " + e.problem());
     }
-
+    const std::vector<solve::Run>& runs = result.runs;
     if (parsed.has("json")) {
-        Json variables = Json::array();
-        Json startPoint = Json::object();
-        for (const study::Variable& v : study.variables) {
-            variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
-            startPoint[v.name] = v.start;
-        }
-        Json studyJson = {{"file", path},
-                          {"title", study.title},
-                          {"objective", objective->description()},
-                          {"mode", study.isFit() ? "data-fit" : "formula"},
-                          {"variables", variables},
-                          {"start", startPoint},
-                          {"max_iterations", rules.maxIterations}};
-        Json runList = Json::array();
-        for (std::size_t k = 0; k < runs.size(); ++k) {
-            Json run = runToJson(runs[k], names);
-            run["options"] = lineup[k]->options;
-            runList.push_back(std::move(run));
-        }
-        out << Json({{"study", studyJson}, {"runs", runList}}).dump(2) << '\n';
+        out << report::studyRunsJson(result).dump(2) << '\n';
         return exitCodeFor(runs);
     }
 
+    const Vector start = study.start();
+    const std::vector<std::string> names = study.variableNames();
     out << (study.title.empty() ? path : study.title) << '\n';
     out << "  objective: " << objective->description() << '\n';
     out << "  start:    ";
@@ -103,7 +81,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     printComparison(out, runs);
     out << '\n';
     for (std::size_t k = 0; k < runs.size(); ++k)
-        out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+        out << "  " << runs[k].label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
     return exitCodeFor(runs);
 }
 

@@ -1,4 +1,5 @@
 #include "app/cli/cli.h"
+#include "app/cli/build_id.h"
 #include "core/expr/expr.h"
 
 #include <exception>
@@ -8,7 +9,7 @@ namespace sw::cli {
 
 const std::vector<Verb>& verbs() {
     static const std::vector<Verb> list = {deriveVerb(), sampleVerb(),  minimizeVerb(),
-                                           methodsVerb(), fitVerb(), runVerb()};
+                                           methodsVerb(), fitVerb(), runVerb(), reportVerb()};
     return list;
 }
 
@@ -43,7 +44,7 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
         return 0;
     }
     if (args[0] == "--version") {
-        out << "saddlewise 0.1.0\n";
+        out << "saddlewise " << version() << " (" << buildId() << ")\n";
         return 0;
     }
     const Verb* verb = nullptr;

@@ -14,6 +14,7 @@
 #include <QObject>
 #include <QThreadPool>
 #include <array>
+#include <functional>
 #include <atomic>
 #include <memory>
 #include <mutex>
@@ -67,7 +68,7 @@ struct FieldRequest {
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, KindCount = 2 };
+    enum Kind { Runs = 0, Field = 1, Task = 2, KindCount = 3 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -85,10 +86,16 @@ public:
 
     void sampleField(const FieldRequest& request);
 
+    // Any other long computation (the review report): `work` runs on the pool with the job's
+    // cancel flag and a progress callback (0..1, any thread); `done` runs on the GUI thread
+    // afterwards unless the task was cancelled or a newer task superseded it.
+    using TaskWork = std::function<void(const std::atomic<bool>& cancelled, const std::function<void(double)>& progress)>;
+    void runTask(TaskWork work, std::function<void()> done);
+
     void cancel(Kind kind);
     void cancelAll();
     bool busy(Kind kind) const { return inFlight_[kind] > 0; }
-    bool anyBusy() const { return busy(Runs) || busy(Field); }
+    bool anyBusy() const { return busy(Runs) || busy(Field) || busy(Task); }
     quint64 generation(Kind kind) const { return generation_[kind]; }
     // For tests and benchmarks: processes events until no job is in flight or timeoutMs passed.
     bool waitForIdle(int timeoutMs);

@@ -37,6 +37,7 @@ namespace sw::window {
 
 class ObjectiveEditor;
 class LineupEditor;
+class ReportWriter;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -58,6 +59,10 @@ public:
     QStringList viewNames() const;
     bool exportView(const QString& viewName, const QString& path, int width, int height, QString* error = nullptr);
     bool exportStepsCsv(const QString& path, QString* error = nullptr);
+    // The review report of the study on screen (report_writer.h): HTML or PDF by the suffix,
+    // made through the job runner; the writer's finished() says when and how it ended.
+    bool writeReport(const QString& path, QString* error = nullptr);
+    ReportWriter* reportWriter() const { return reportWriter_; }
 
     // State, for tests, screenshots and benchmarks.
     std::shared_ptr<const widgets::Snapshot> snapshot() const { return snapshot_; }
@@ -129,6 +134,7 @@ private:
     bool maybeSave();
     void exportViewDialog();
     void exportStepsDialog();
+    void writeReportDialog();
     void about();
     void addRecentFile(const QString& path);
     void updateRecentMenu();
@@ -176,6 +182,7 @@ private:
     quint64 shownRunGeneration_ = 0;
 
     JobRunner* jobs_ = nullptr;
+    ReportWriter* reportWriter_ = nullptr;
     QTimer animation_;
     QTimer heldResample_;
     QTimer lazyViews_;  // views other than the landscape catch up when a drag pauses

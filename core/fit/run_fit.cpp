@@ -39,11 +39,17 @@ FitResult runFit(std::shared_ptr<const Table> table, const FitRequest& request, 
     if (!made.solver) throw FitError(made.error);
     result.run = solve::solve(std::move(made.solver), observer);
     result.statistics = computeStatistics(*objective, result.run.x, request.confidenceLevel);
-    if (!result.converged())
-        result.warnings.push_back("The method did not converge (" + std::string(solve::toString(result.run.termination)) +
-                                  ": " + result.run.message + "); the statistics describe where it stopped.");
-    result.warnings.insert(result.warnings.end(), result.statistics.warnings.begin(), result.statistics.warnings.end());
+    result.warnings = fitWarnings(result.run, result.statistics);
     return result;
+}
+
+std::vector<std::string> fitWarnings(const solve::Run& run, const FitStatistics& statistics) {
+    std::vector<std::string> warnings;
+    if (!solve::isConvergence(run.termination))
+        warnings.push_back("The method did not converge (" + std::string(solve::toString(run.termination)) + ": " +
+                           run.message + "); the statistics describe where it stopped.");
+    warnings.insert(warnings.end(), statistics.warnings.begin(), statistics.warnings.end());
+    return warnings;
 }
 
 }  // namespace sw::fit

@@ -44,6 +44,10 @@ struct FitResult {
 // The method used when the request names none.
 std::string defaultFitMethod(Loss loss);
 
+// The warnings a modeler reads with a fit: one when the run did not converge, then the
+// statistics' own (FitResult::warnings, and each run of a data-fit study in `run --json`).
+std::vector<std::string> fitWarnings(const solve::Run& run, const FitStatistics& statistics);
+
 // Throws FitError (bad definition, start values, unknown method, a method needing residuals
 // with a loss that has none) or expr::FormulaError (the model formula).
 FitResult runFit(std::shared_ptr<const Table> table, const FitRequest& request,

@@ -1,0 +1,146 @@
+// Running a study's lineup and writing what `run --json` prints.
+#include "core/report/study_run.h"
+
+#include "core/fit/run_fit.h"
+#include "core/objective/fit_objective.h"
+#include "core/report/run_json.h"
+
+#include <cmath>
+#include <limits>
+
+namespace sw::report {
+
+using nlohmann::json;
+
+std::vector<std::size_t> enabledEntries(const study::Study& study) {
+    std::vector<std::size_t> entries;
+    for (std::size_t k = 0; k < study.methods.size(); ++k)
+        if (study.methods[k].enabled) entries.push_back(k);
+    if (entries.empty())
+        throw study::StudyError("methods", "the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
+    return entries;
+}
+
+StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<const Objective> objective,
+                   const solve::StoppingRules& rules, const RunControl& control) {
+    StudyRuns result;
+    result.entries = enabledEntries(study);
+    result.study = std::move(study);
+    result.studyPath = std::move(studyPath);
+    result.objective = std::move(objective);
+    result.rules = rules;
+
+    const Vector start = result.study.start();
+    const double count = static_cast<double>(result.entries.size());
+    const double limit = std::max(1, rules.maxIterations);
+    for (std::size_t k = 0; k < result.entries.size(); ++k) {
+        const study::MethodEntry& entry = result.study.methods[result.entries[k]];
+        solve::Run run;
+        if (control.cancel && control.cancel->load()) {
+            run.methodId = entry.method;
+            run.termination = solve::Termination::StoppedByCaller;
+            run.message = "not run: cancelled";
+        } else {
+            solve::SolverOrError made = solve::makeSolver(entry.method, *result.objective, start, entry.options, rules);
+            if (made.solver) {
+                run = solve::solve(std::move(made.solver), [&](const solve::Run& soFar) {
+                    if (control.progress)
+                        control.progress((static_cast<double>(k) + std::min(1.0, soFar.iterations() / limit)) / count);
+                    return !(control.cancel && control.cancel->load());
+                });
+            } else {
+                run.methodId = entry.method;
+                run.termination = solve::Termination::Failed;
+                run.message = made.error;
+            }
+        }
+        run.label = entry.label;
+        result.runs.push_back(std::move(run));
+        if (control.progress) control.progress((static_cast<double>(k) + 1) / count);
+    }
+
+    const auto* fitObjective = dynamic_cast<const FitObjective*>(result.objective.get());
+    if (fitObjective && control.statistics) {
+        for (const solve::Run& run : result.runs) {
+            // A run rejected before its first evaluation has no end point: describe the start.
+            const Vector at = run.x.size() == start.size() ? run.x : start;
+            result.statistics.push_back(fit::computeStatistics(*fitObjective, at));
+        }
+    }
+    return result;
+}
+
+json studyRunsJson(const StudyRuns& r, bool withTrace) {
+    const study::Study& study = r.study;
+    json variables = json::array();
+    json startPoint = json::object();
+    for (const study::Variable& v : study.variables) {
+        variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+        startPoint[v.name] = v.start;
+    }
+    json studyJson = {{"file", r.studyPath},
+                      {"title", study.title},
+                      {"objective", r.objective ? r.objective->description() : std::string()},
+                      {"mode", study.isFit() ? "data-fit" : "formula"},
+                      {"variables", variables},
+                      {"start", startPoint},
+                      {"max_iterations", r.rules.maxIterations},
+                      {"stopping",
+                       {{"max_iterations", r.rules.maxIterations},
+                        {"max_evaluations", r.rules.maxEvaluations},
+                        {"gradient_tolerance", r.rules.gradientTolerance},
+                        {"relative_gradient_tolerance", r.rules.relativeGradientTolerance},
+                        {"step_tolerance", r.rules.stepTolerance},
+                        {"function_tolerance", r.rules.functionTolerance}}}};
+    if (study.fit) {
+        const study::DataFit& fit = *study.fit;
+        json data = {{"file", fit.dataPath}, {"checksum", fit.checksum}, {"model", fit.model},
+                     {"response", fit.response}, {"loss", fit.loss}};
+        if (!fit.weights.empty()) data[fit.weightsKind == "sigma" ? "sigma" : "weights"] = fit.weights;
+        if (fit.loss == "huber" || fit.loss == "cauchy") data["scale"] = fit.lossScale;
+        if (const auto* objective = dynamic_cast<const FitObjective*>(r.objective.get())) {
+            const sw::Table& table = objective->table();
+            data["rows"] = table.rowCount();
+            data["columns"] = table.columnNames;
+            data["separator"] = toString(table.separator);
+            data["separator_detected"] = table.separatorDetected;
+            data["dropped_rows"] = table.droppedRows;
+        }
+        studyJson["data"] = std::move(data);
+    }
+
+    const std::vector<std::string> names = study.variableNames();
+    json runList = json::array();
+    for (std::size_t k = 0; k < r.runs.size(); ++k) {
+        json run = runToJson(r.runs[k], names, withTrace);
+        run["options"] = study.methods[r.entries[k]].options;
+        if (k < r.statistics.size()) {
+            json fit = statisticsToJson(r.statistics[k]);
+            fit["warnings"] = fit::fitWarnings(r.runs[k], r.statistics[k]);
+            run["fit"] = std::move(fit);
+        }
+        runList.push_back(std::move(run));
+    }
+    return {{"study", studyJson}, {"runs", runList}};
+}
+
+int bestRun(const json& runsJson) {
+    const json& runs = runsJson.contains("runs") ? runsJson["runs"] : runsJson;
+    int best = -1;
+    bool bestConverged = false;
+    double bestValue = std::numeric_limits<double>::infinity();
+    for (std::size_t k = 0; k < runs.size(); ++k) {
+        const json& value = runs[k]["value"];
+        if (!value.is_number()) continue;
+        const double v = value.get<double>();
+        const bool converged = runs[k].value("converged", false);
+        if ((converged && !bestConverged) || (converged == bestConverged && v < bestValue)) {
+            best = static_cast<int>(k);
+            bestValue = v;
+            bestConverged = converged;
+        }
+    }
+    return best;
+}
+
+}  // namespace sw::report
