@@ -27,10 +27,14 @@ using nlohmann::json;
 constexpr int kWidth = 760;
 constexpr int kLandscapeHeight = 600;
 constexpr int kPanelHeight = 480;
+constexpr int kCurvatureHeight = 560;  // two panels whose axis titles are long
 
+// Fusion's light palette on a white page: the figures sit on paper, not in a window.
 QPalette lightPalette() {
     std::unique_ptr<QStyle> fusion(QStyleFactory::create(QStringLiteral("Fusion")));
-    return fusion ? fusion->standardPalette() : QPalette(Qt::white);
+    QPalette palette = fusion ? fusion->standardPalette() : QPalette(Qt::white);
+    for (QPalette::ColorRole role : {QPalette::Window, QPalette::Base}) palette.setColor(role, Qt::white);
+    return palette;
 }
 
 std::shared_ptr<widgets::Snapshot> snapshotOf(const report::StudyRuns& runs, const LandscapePlan& plan) {
@@ -222,9 +226,9 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
                     "iterates with negative curvature are filled markers on the shaded band below zero. Bottom: the "
                     "condition number (largest over smallest eigenvalue magnitude). Methods that use no derivatives "
                     "still show the curvature at their iterates.";
-        f.svg = svgOf(view, kWidth, kPanelHeight);
+        f.svg = svgOf(view, kWidth, kCurvatureHeight);
         f.width = kWidth;
-        f.height = kPanelHeight;
+        f.height = kCurvatureHeight;
         if (!f.svg.empty()) figures.push_back(std::move(f));
     }
     if (note) *note = missing;

@@ -4,6 +4,7 @@
 #include <QAbstractTextDocumentLayout>
 #include <QBuffer>
 #include <QFontDatabase>
+#include <QFontMetricsF>
 #include <QGuiApplication>
 #include <QPageLayout>
 #include <QPageSize>
@@ -18,6 +19,7 @@
 #include <QTextObjectInterface>
 #include <QTextTable>
 #include <algorithm>
+#include <cmath>
 #include <functional>
 #include <stdexcept>
 
@@ -30,6 +32,7 @@ namespace {
 constexpr int kDpi = 96;
 constexpr double kMarginMm = 16.0;
 constexpr double kBottomMarginMm = 20.0;
+constexpr double kFigureShare = 0.8;  // a figure's drawing takes at most this share of a page's height
 
 // The palette of the HTML's style sheet.
 const QColor kInk(0x1d, 0x21, 0x25);
@@ -46,6 +49,7 @@ constexpr int kFigureObject = QTextFormat::UserObject + 1;
 constexpr int kSvgProperty = QTextFormat::UserProperty + 1;
 constexpr int kSizeProperty = QTextFormat::UserProperty + 2;
 constexpr int kHeadingProperty = QTextFormat::UserProperty + 3;  // on heading blocks: keep with what follows
+constexpr int kGroupProperty = QTextFormat::UserProperty + 4;    // blocks with one group number stay on one page
 
 // Draws a figure's SVG into the text layout as vectors.
 class SvgFigure : public QObject, public QTextObjectInterface {
@@ -109,8 +113,8 @@ QTextBlockFormat blockFormat(double top, double bottom) {
 
 class Builder {
 public:
-    Builder(QTextDocument& document, double contentWidth)
-        : document_(document), cursor_(&document), width_(contentWidth), styles_(makeStyles()) {}
+    Builder(QTextDocument& document, QSizeF content)
+        : document_(document), cursor_(&document), width_(content.width()), height_(content.height()), styles_(makeStyles()) {}
 
     void build(const report::Document& d) {
         // The first block exists already; it becomes the header.
@@ -239,15 +243,69 @@ private:
         cursor_.movePosition(QTextCursor::End);
     }
 
+    // Column widths as a browser's automatic table layout chooses them: each column at least as
+    // wide as its longest word, at most as wide as its longest cell; when the cells do not fit
+    // on one line each, the room left after the longest words goes to the columns in proportion
+    // to how much more they would take. (Qt's own layout, with text that may wrap anywhere,
+    // squeezes a column down to a letter or two.)
+    QVector<QTextLength> columnWidths(const report::Table& data, const QFont& font, const QFont& codeFont) const {
+        const std::size_t columns = data.header.size();
+        QPaintDevice* device = document_.documentLayout()->paintDevice();
+        const QFontMetricsF plainMetrics(font, device), codeMetrics(codeFont, device);
+        QFont bold = font;
+        bold.setBold(true);
+        const QFontMetricsF boldMetrics(bold, device);
+        constexpr double kCellPadding = 3 + 8 + 2;  // the left padding, the right padding, rounding
+        std::vector<double> least(columns, 0), natural(columns, 0);
+        auto measure = [&](const report::Text& text, const QFontMetricsF* forced, std::size_t c) {
+            double full = 0, word = 0;
+            for (const report::Span& span : text) {
+                const QFontMetricsF& m = forced ? *forced : span.style == report::Span::Style::Code ? codeMetrics : plainMetrics;
+                if (!span.swatch.empty()) full += plainMetrics.horizontalAdvance(QStringLiteral("■ "));
+                const QString value = QString::fromStdString(span.text);
+                full += m.horizontalAdvance(value);
+                for (const QString& w : value.split(QLatin1Char(' '), Qt::SkipEmptyParts)) word = std::max(word, m.horizontalAdvance(w));
+            }
+            if (!text.empty() && !text.front().swatch.empty()) word += plainMetrics.horizontalAdvance(QStringLiteral("■ "));
+            natural[c] = std::max(natural[c], full + kCellPadding);
+            least[c] = std::max(least[c], word + kCellPadding);
+        };
+        // Headers wrap between words; numbers do not wrap.
+        for (std::size_t c = 0; c < columns; ++c) measure({report::plain(data.header[c])}, &boldMetrics, c);
+        for (const auto& row : data.rows)
+            for (std::size_t c = 0; c < columns && c < row.size(); ++c) {
+                measure(row[c].text, nullptr, c);
+                if (row[c].numeric) least[c] = std::max(least[c], natural[c]);
+            }
+        double sumLeast = 0, sumNatural = 0;
+        for (std::size_t c = 0; c < columns; ++c) {
+            natural[c] = std::max(natural[c], least[c]);
+            sumLeast += least[c];
+            sumNatural += natural[c];
+        }
+        QVector<QTextLength> widths;
+        if (sumLeast >= width_) {  // even the longest words do not fit: shrink them all alike
+            for (std::size_t c = 0; c < columns; ++c) widths.append(QTextLength(QTextLength::FixedLength, least[c] * width_ / sumLeast));
+            return widths;
+        }  // cannot fit even so: leave it to Qt
+        const double spare = width_ - sumLeast, wanted = sumNatural - sumLeast;
+        for (std::size_t c = 0; c < columns; ++c) {
+            const double w = sumNatural <= width_ ? natural[c] : least[c] + spare * (natural[c] - least[c]) / wanted;
+            widths.append(QTextLength(QTextLength::FixedLength, w));
+        }
+        return widths;
+    }
+
     void table(const report::Table& data) {
         const int columns = static_cast<int>(data.header.size());
         if (columns == 0) return;
         const int rows = static_cast<int>(data.rows.size()) + 1;
-        QTextTableFormat f = tableFormat(false);
-        f.setHeaderRowCount(1);
-        QTextTable* t = cursor_.insertTable(rows, columns, f);
         const QFont& font = data.compact ? styles_.small : styles_.body;
         const QFont& codeFont = data.compact ? styles_.smallCode : styles_.code;
+        QTextTableFormat f = tableFormat(false);
+        f.setHeaderRowCount(1);
+        f.setColumnWidthConstraints(columnWidths(data, font, codeFont));
+        QTextTable* t = cursor_.insertTable(rows, columns, f);
         std::vector<bool> numeric(static_cast<std::size_t>(columns), !data.rows.empty());
         for (const auto& row : data.rows)
             for (int c = 0; c < columns; ++c)
@@ -259,12 +317,11 @@ private:
             cf.setBottomBorder(1.5);
             cf.setBottomBorderBrush(kInk);
             cf.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
-            cf.setRightPadding(10);
+            cf.setRightPadding(8);
             cell.setFormat(cf);
             cursor_ = cell.firstCursorPosition();
             QTextBlockFormat bf = cursor_.blockFormat();
             bf.setAlignment(numeric[static_cast<std::size_t>(c)] ? Qt::AlignRight : Qt::AlignLeft);
-            bf.setNonBreakableLines(true);
             cursor_.setBlockFormat(bf);
             QFont bold = font;
             bold.setBold(true);
@@ -279,7 +336,7 @@ private:
                 cf.setBottomBorder(0.75);
                 cf.setBottomBorderBrush(kRule);
                 cf.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
-                cf.setRightPadding(10);
+                cf.setRightPadding(8);
                 if (r % 2 == 0) cf.setBackground(QColor(0xfa, 0xfb, 0xfc));
                 cell.setFormat(cf);
                 cursor_ = cell.firstCursorPosition();
@@ -306,9 +363,6 @@ private:
         cf.setLeftPadding(9);
         t->cellAt(0, 0).setFormat(cf);
         cursor_ = t->cellAt(0, 0).firstCursorPosition();
-        QTextBlockFormat bf = cursor_.blockFormat();
-        bf.setNonBreakableLines(true);
-        cursor_.setBlockFormat(bf);
         content();
         cursor_.movePosition(QTextCursor::End);
     }
@@ -316,9 +370,7 @@ private:
     void preformatted(const std::string& body) {
         boxed(
             [&] {
-                QTextBlockFormat bf = cursor_.blockFormat();
-                bf.setNonBreakableLines(false);
-                cursor_.setBlockFormat(bf);
+                const QTextBlockFormat bf = cursor_.blockFormat();
                 // One block per line keeps a long listing free to break between lines.
                 const QStringList lines = QString::fromStdString(body).split(QLatin1Char('\n'));
                 for (int i = 0; i < lines.size(); ++i) {
@@ -341,55 +393,101 @@ private:
         boxed([&] { text(b.text, styles_.body, styles_.code); }, background, edge);
     }
 
-    // Title, drawing and caption in one block whose lines Qt never splits across pages.
+    // Title, drawing and caption: three blocks of one keep-together group (see keepTogether()).
     void figure(const report::Figure& f) {
-        QTextBlockFormat bf = blockFormat(10, 12);
-        bf.setNonBreakableLines(true);
-        bf.setAlignment(Qt::AlignLeft);
-        cursor_.insertBlock(bf, charFormat(styles_.heading3));
+        const int group = ++groups_;
+        QTextBlockFormat title = blockFormat(12, 4);
+        title.setProperty(kGroupProperty, group);
+        cursor_.insertBlock(title, charFormat(styles_.heading3));
         cursor_.insertText(QString::fromStdString(f.title), charFormat(styles_.heading3));
-        cursor_.insertText(QString(QChar::LineSeparator));
-        const double scale = std::min(1.0, width_ / std::max(1.0, f.width));
+        QTextBlockFormat drawing = blockFormat(0, 2);
+        drawing.setAlignment(Qt::AlignHCenter);
+        drawing.setProperty(kGroupProperty, group);
+        cursor_.insertBlock(drawing, charFormat(styles_.body));
+        const double scale =
+            std::min({1.0, width_ / std::max(1.0, f.width), kFigureShare * height_ / std::max(1.0, f.height)});
         QTextCharFormat object;
         object.setObjectType(kFigureObject);
         object.setProperty(kSvgProperty, QByteArray::fromStdString(f.svg));
         object.setProperty(kSizeProperty, QSizeF(f.width * scale, f.height * scale));
         cursor_.insertText(QString(QChar::ObjectReplacementCharacter), object);
-        cursor_.insertText(QString(QChar::LineSeparator), charFormat(styles_.small, kMuted));
+        QTextBlockFormat caption = blockFormat(2, 12);
+        caption.setProperty(kGroupProperty, group);
+        cursor_.insertBlock(caption, charFormat(styles_.small, kMuted));
         cursor_.insertText(QString::fromStdString(f.caption), charFormat(styles_.small, kMuted));
     }
 
     QTextDocument& document_;
     QTextCursor cursor_;
-    double width_;
+    double width_, height_;
     Styles styles_;
     bool first_ = true;
+    int groups_ = 0;
 };
 
-// A heading at the foot of a page, with what it introduces on the next, moves to the next
-// page too. Re-laid out after each move, since a move shifts everything after it.
-void keepHeadingsWithTheirContent(QTextDocument& document, double pageHeight) {
+// Qt's layout moves a line that does not fit to the next page, but it knows nothing of what
+// belongs together. After it has laid the document out, two rules move a block to a new page
+// (a page break before it), one move at a time since each shifts everything after it:
+//   - a keep-together group (a figure's title, drawing and caption) that spans two pages
+//     starts a page;
+//   - a heading whose content starts on a later page, or leaves less than a few lines of it
+//     under the heading, starts a page, and takes that content with it.
+// A block already at the top of a page never gets a break (that would leave a blank page).
+void keepTogether(QTextDocument& document, double pageHeight) {
     QAbstractTextDocumentLayout* layout = document.documentLayout();
-    for (QTextBlock block = document.begin(); block.isValid(); block = block.next()) {
-        if (!block.blockFormat().hasProperty(kHeadingProperty)) continue;
-        if (block.blockFormat().pageBreakPolicy() & QTextFormat::PageBreak_AlwaysBefore) continue;
-        const QTextBlock next = block.next();
-        if (!next.isValid()) continue;
-        const QRectF heading = layout->blockBoundingRect(block);
-        QRectF following = layout->blockBoundingRect(next);
-        // A table cell's block reports its place inside the table: use the table's frame.
-        if (QTextFrame* frame = document.frameAt(next.position()); frame && frame != document.rootFrame())
-            following = layout->frameBoundingRect(frame);
-        const int headingPage = static_cast<int>(heading.top() / pageHeight);
-        // What follows starts on a later page, or leaves less than a few lines under the heading.
-        const double firstLines = std::min(following.height(), 48.0);
-        const int followingPage = static_cast<int>((following.top() + firstLines) / pageHeight);
-        if (followingPage > headingPage) {
-            QTextCursor cursor(block);
-            QTextBlockFormat f = block.blockFormat();
-            f.setPageBreakPolicy(QTextFormat::PageBreak_AlwaysBefore);
-            cursor.setBlockFormat(f);
+    auto pageOf = [pageHeight](double y) { return static_cast<int>(std::floor(y / pageHeight)); };
+    auto atPageTop = [&](double y) { return y - pageOf(y) * pageHeight < 2.0; };
+    // A block's rectangle in document coordinates; a block inside a table reports its place
+    // in the table, so take the table's frame instead.
+    auto extent = [&](const QTextBlock& block) {
+        if (QTextFrame* frame = document.frameAt(block.position()); frame && frame != document.rootFrame())
+            return layout->frameBoundingRect(frame);
+        return layout->blockBoundingRect(block);
+    };
+    auto breakBefore = [](const QTextBlock& block) {
+        QTextCursor cursor(block);
+        QTextBlockFormat f = block.blockFormat();
+        f.setPageBreakPolicy(QTextFormat::PageBreak_AlwaysBefore);
+        cursor.setBlockFormat(f);
+    };
+    for (int round = 0; round < 200; ++round) {
+        bool moved = false;
+        for (QTextBlock block = document.begin(); block.isValid() && !moved; block = block.next()) {
+            const QTextBlockFormat format = block.blockFormat();
+            if (format.pageBreakPolicy() & QTextFormat::PageBreak_AlwaysBefore) continue;
+            const QRectF rect = layout->blockBoundingRect(block);
+            if (atPageTop(rect.top())) continue;
+            if (format.hasProperty(kGroupProperty)) {
+                const int group = format.intProperty(kGroupProperty);
+                const QTextBlock previous = block.previous();
+                if (previous.isValid() && previous.blockFormat().intProperty(kGroupProperty) == group) continue;
+                QTextBlock last = block;
+                while (last.next().isValid() && last.next().blockFormat().intProperty(kGroupProperty) == group) last = last.next();
+                const double bottom = layout->blockBoundingRect(last).bottom();
+                // (A group always fits on a page: figures are scaled to at most kFigureShare of its
+                // height. Its extent here may include the gap Qt left where it moved a line.)
+                if (pageOf(rect.top()) != pageOf(bottom - 1)) {
+                    breakBefore(block);
+                    moved = true;
+                }
+            } else if (format.hasProperty(kHeadingProperty) && block.next().isValid()) {
+                const QRectF following = extent(block.next());
+                const double firstLines = std::min(following.height(), 48.0);
+                if (pageOf(following.top() + firstLines - 1) > pageOf(rect.top())) {
+                    breakBefore(block);
+                    // What the heading introduces follows it onto the new page.
+                    const QTextBlock next = block.next();
+                    if (next.blockFormat().pageBreakPolicy() & QTextFormat::PageBreak_AlwaysBefore) {
+                        QTextCursor cursor(next);
+                        QTextBlockFormat f = next.blockFormat();
+                        f.setPageBreakPolicy(QTextFormat::PageBreak_Auto);
+                        cursor.setBlockFormat(f);
+                    }
+                    moved = true;
+                }
+            }
         }
+        if (!moved) return;
     }
 }
 
@@ -420,8 +518,8 @@ std::string writePdf(const report::Document& d) {
     document.documentLayout()->registerHandler(kFigureObject, &figures);
     document.setPageSize(content);
 
-    Builder(document, content.width()).build(d);
-    keepHeadingsWithTheirContent(document, content.height());
+    Builder(document, content).build(d);
+    keepTogether(document, content.height());
 
     QPainter painter;
     if (!painter.begin(&writer)) throw std::runtime_error("Qt could not start the PDF");

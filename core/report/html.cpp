@@ -30,6 +30,7 @@ h3 { font-size: 15px; margin: 18px 0 6px; }
 p { margin: 6px 0 10px; }
 code, pre, .code { font-family: ui-monospace, "DejaVu Sans Mono", "Liberation Mono", Menlo, Consolas, monospace; font-size: 13px; }
 code { background: var(--panel); padding: 0 3px; border-radius: 3px; overflow-wrap: anywhere; }
+td code { overflow-wrap: normal; }
 pre { background: var(--panel); border: 1px solid var(--rule); border-radius: 4px; padding: 8px 10px;
       white-space: pre-wrap; overflow-wrap: anywhere; margin: 6px 0 12px; }
 dl.fields { display: grid; grid-template-columns: max-content 1fr; gap: 3px 16px; margin: 6px 0 12px; }
@@ -46,7 +47,7 @@ tbody tr:nth-child(even) td { background: #fafbfc; }
           vertical-align: baseline; print-color-adjust: exact; -webkit-print-color-adjust: exact; }
 figure { margin: 14px 0 20px; padding: 10px; border: 1px solid var(--rule); border-radius: 4px; background: #ffffff; }
 figure .figure-title { font-weight: 600; margin: 0 0 6px; }
-figure svg { display: block; max-width: 100%; height: auto; margin: 0 auto; }
+figure svg { display: block; width: 100%; height: auto; margin: 0 auto; }
 figcaption { color: var(--muted); font-size: 13px; margin-top: 6px; }
 aside { border-left: 4px solid var(--accent); background: var(--panel); padding: 8px 12px; margin: 10px 0 14px; border-radius: 0 4px 4px 0; }
 aside.caution { border-color: var(--caution); background: var(--caution-bg); }

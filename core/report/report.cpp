@@ -15,6 +15,8 @@
 #include <cstdio>
 #include <cstdlib>
 #include <ctime>
+#include <algorithm>
+#include <limits>
 #include <map>
 #include <memory>
 
@@ -35,6 +37,7 @@ std::string numberText(double value, int significant) {
 }
 
 std::string numberText(const json& value, int significant) {
+    if (value.is_number_integer()) return value.dump();  // counts and limits: 100000, not 1e+05
     if (value.is_number()) return numberText(value.get<double>(), significant);
     return "–";  // null: a non-finite number in the results
 }
@@ -189,6 +192,12 @@ Section summarySection(const ReportInput& in) {
     if (best >= 0) {
         const json& run = runs[static_cast<std::size_t>(best)];
         Text line = {plain("Lowest final value: f = "), strong(numberText(run["value"], kValueDigits)), plain(" by ")};
+        double low = std::numeric_limits<double>::infinity(), high = -low;
+        for (const json& r : runs)
+            if (r.value("converged", false) && r["value"].is_number()) {
+                low = std::min(low, r["value"].get<double>());
+                high = std::max(high, r["value"].get<double>());
+            }
         for (const Span& span : methodName(study, run)) line.push_back(span);
         line.push_back(plain(" (" + text(run, "termination") + ", " + endPointText(run) + ") at "));
         std::string at;
@@ -197,6 +206,9 @@ Section summarySection(const ReportInput& in) {
             at += (i ? ", " : "") + names[i].get<std::string>() + " = " + numberText(run["x"][i], kPointDigits);
         line.push_back(plain(at + "."));
         items.push_back(line);
+        if (converged > 1 && std::isfinite(low))
+            items.push_back({plain("The final values of the " + std::to_string(converged) +
+                                   " converged methods lie within " + numberText(high - low, 2) + " of each other.")});
     }
     s.blocks.push_back(list(items));
     return s;
@@ -334,8 +346,10 @@ Section methodsSection(const ReportInput& in) {
                 }
             }
         }
-        if (settings.empty()) settings.push_back(plain("defaults"));
-        if (!defaults.empty()) settings.push_back(emphasis((settings.size() == 1 && settings[0].text == "defaults" ? ": " : "; defaults: ") + defaults));
+        if (settings.empty())
+            settings.push_back(emphasis(defaults.empty() ? std::string("takes no options") : "all at their defaults: " + defaults));
+        else if (!defaults.empty())
+            settings.push_back(emphasis("; the rest at their defaults: " + defaults));
         std::vector<Cell> row;
         row.push_back({e.colour.empty() ? Text{plain(e.label)} : Text{swatch(e.colour, e.label)}, false});
         row.push_back(codeCell(e.method));
@@ -436,7 +450,9 @@ Section endPointsSection(const ReportInput& in) {
     std::vector<Text> why;
     for (const json& run : runs) {
         Text item = methodName(in.study, run);
-        item.push_back(plain(" (" + text(run, "method") + "): " + text(run, "message")));
+        std::string message = text(run, "message");
+        if (!message.empty() && message.back() != '.') message += '.';
+        item.push_back(plain(" (" + text(run, "method") + "): " + message));
         const json& end = run.contains("end_point") ? run["end_point"] : json::object();
         if (!text(end, "description").empty()) item.push_back(plain(" End point: " + text(end, "description") + "."));
         why.push_back(item);

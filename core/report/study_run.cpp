@@ -5,6 +5,7 @@
 #include "core/objective/fit_objective.h"
 #include "core/report/run_json.h"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -126,21 +127,23 @@ json studyRunsJson(const StudyRuns& r, bool withTrace) {
 
 int bestRun(const json& runsJson) {
     const json& runs = runsJson.contains("runs") ? runsJson["runs"] : runsJson;
-    int best = -1;
-    bool bestConverged = false;
-    double bestValue = std::numeric_limits<double>::infinity();
+    bool anyConverged = false;
+    for (const json& run : runs) anyConverged = anyConverged || (run["value"].is_number() && run.value("converged", false));
+    double lowest = std::numeric_limits<double>::infinity();
+    for (const json& run : runs)
+        if (run["value"].is_number() && (!anyConverged || run.value("converged", false)))
+            lowest = std::min(lowest, run["value"].get<double>());
+    if (!std::isfinite(lowest)) return -1;
+    // Ties go to the first in the lineup: methods that reach the same minimum differ in the
+    // last digits, and the order the modeler gave the lineup is the better guide than rounding.
+    const double tie = kBestRunTie * std::max(1.0, std::fabs(lowest));
     for (std::size_t k = 0; k < runs.size(); ++k) {
-        const json& value = runs[k]["value"];
-        if (!value.is_number()) continue;
-        const double v = value.get<double>();
-        const bool converged = runs[k].value("converged", false);
-        if ((converged && !bestConverged) || (converged == bestConverged && v < bestValue)) {
-            best = static_cast<int>(k);
-            bestValue = v;
-            bestConverged = converged;
-        }
+        const json& run = runs[k];
+        if (run["value"].is_number() && (!anyConverged || run.value("converged", false)) &&
+            run["value"].get<double>() <= lowest + tie)
+            return static_cast<int>(k);
     }
-    return best;
+    return -1;
 }
 
 }  // namespace sw::report

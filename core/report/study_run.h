@@ -52,8 +52,11 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
 //          fit: statisticsToJson plus warnings and converged.
 nlohmann::json studyRunsJson(const StudyRuns& runs, bool withTrace = true);
 
-// Index into runs.runs of the run whose numbers a fit's statistics section shows: the lowest
-// final value among converged runs, else the lowest finite value; -1 when no run has one.
+// Index into runs.runs of the run a report takes as the answer (its fit statistics, the
+// landscape's held values): the lowest final value among converged runs, else among all runs
+// with a finite value; values within kBestRunTie (relative, at least absolute for |f| < 1) of
+// the lowest count as equal and go to the first in lineup order. -1 when no run has a value.
+inline constexpr double kBestRunTie = 1e-9;
 int bestRun(const nlohmann::json& runsJson);
 
 }  // namespace sw::report

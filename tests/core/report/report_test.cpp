@@ -144,6 +144,10 @@ TEST(Report, TheBestRunIsTheLowestConvergedOne) {
     runs.push_back({{"value", 2.0}, {"converged", true}});
     runs.push_back({{"value", nullptr}, {"converged", true}});
     EXPECT_EQ(report::bestRun(json{{"runs", runs}}), 2);
+    // Equal to rounding: the first in the lineup.
+    runs[1]["value"] = 2.0 + 1e-13;
+    EXPECT_EQ(report::bestRun(json{{"runs", runs}}), 1);
+    runs[1]["value"] = 3.0;
     runs[1]["converged"] = false;
     runs[2]["converged"] = false;
     EXPECT_EQ(report::bestRun(json{{"runs", runs}}), 0);
