@@ -461,6 +461,40 @@ Section endPointsSection(const ReportInput& in) {
     return s;
 }
 
+// Findings' parts, as issue 10's JSON may give them: iterations as a list or as a span
+// {first, last}; evidence as a number or {value, unit}; an outcome as a sentence or as
+// {termination, value, end_point}.
+std::string iterationsText(const json& j) {
+    std::string t;
+    if (j.is_array())
+        for (const json& k : j) t += (t.empty() ? "" : ", ") + numberText(k, 17);
+    else if (j.is_object() && j.contains("first"))
+        t = numberText(j["first"], 17) + (j.contains("last") && j["last"] != j["first"] ? "–" + numberText(j["last"], 17) : "");
+    else if (j.is_number())
+        t = numberText(j, 17);
+    return t.empty() ? "–" : t;
+}
+
+std::string evidenceText(const json& v) {
+    if (v.is_number()) return numberText(v, 4);
+    if (v.is_string()) return v.get<std::string>();
+    if (v.is_object() && v.contains("value"))
+        return numberText(v["value"], 4) + (text(v, "unit").empty() ? "" : " " + text(v, "unit"));
+    return v.dump();
+}
+
+std::string outcomeText(const json& o) {
+    if (o.is_string()) return o.get<std::string>();
+    if (!o.is_object()) return o.dump();
+    std::string t = text(o, "message");
+    if (!t.empty()) return t;
+    t = text(o, "termination");
+    if (o.contains("value")) t += (t.empty() ? "" : ", ") + std::string("f = ") + numberText(o["value"], kValueDigits);
+    if (o.contains("end_point")) t += ", " + endPointText(o);
+    if (o.contains("iterations")) t += ", " + numberText(o["iterations"], 17) + " iterations";
+    return t;
+}
+
 // Findings (issue 10) as the runs' JSON carries them: id, severity, iterations, evidence
 // (named numbers), message, remedy {change, outcome}.
 Section findingsSection(const ReportInput& in) {
@@ -478,20 +512,17 @@ Section findingsSection(const ReportInput& in) {
         any = true;
         Table t{{"finding", "iterations", "evidence", "explanation", "remedy tried"}, {}, true};
         for (const json& f : run["findings"]) {
-            std::string iterations;
-            if (f.contains("iterations") && f["iterations"].is_array())
-                for (const json& k : f["iterations"]) iterations += (iterations.empty() ? "" : ", ") + numberText(k, 17);
+            std::string iterations = iterationsText(f.contains("iterations") ? f["iterations"] : json());
             std::string evidence;
             if (f.contains("evidence") && f["evidence"].is_object())
-                for (const auto& [name, value] : f["evidence"].items())
-                    evidence += (evidence.empty() ? "" : "; ") + name + " = " +
-                                (value.is_number() ? numberText(value, 4) : value.is_string() ? value.get<std::string>() : value.dump());
+                for (const auto& [name, value] : f["evidence"].items()) evidence += (evidence.empty() ? "" : "; ") + name + " = " + evidenceText(value);
             std::string remedy = "none";
             if (f.contains("remedy") && f["remedy"].is_object()) {
                 const json& r = f["remedy"];
-                remedy = r.contains("change") ? (r["change"].is_string() ? r["change"].get<std::string>() : r["change"].dump()) : "";
+                const json& change = r.contains("change") ? r["change"] : json();
+                remedy = change.is_string() ? change.get<std::string>() : text(change, "text", change.dump());
                 if (r.contains("outcome") && !r["outcome"].is_null())
-                    remedy += " → " + (r["outcome"].is_string() ? r["outcome"].get<std::string>() : r["outcome"].dump());
+                    remedy += " → " + outcomeText(r["outcome"]);
                 else
                     remedy += " (not tried)";
             }

@@ -35,6 +35,7 @@ protected:
         std::random_device seed;
         folder_ = fs::temp_directory_path() / ("saddlewise-report-verb-" + std::to_string(seed()));
         fs::create_directories(folder_);
+        sample_ = (fs::path(SW_SOURCE_DIR) / "samples" / "two-valve-saddles.json").string();
     }
     void TearDown() override {
         std::error_code ignored;
@@ -45,7 +46,7 @@ protected:
         return static_cast<std::size_t>(std::distance(fs::directory_iterator(folder_), fs::directory_iterator()));
     }
     fs::path folder_;
-    const std::string sample_ = std::string(SW_SOURCE_DIR) + "/samples/two-valve-saddles.json";
+    std::string sample_;
 };
 
 TEST_F(ReportVerb, WithoutQtTheHtmlHasNoPlotsAndSaysWhy) {

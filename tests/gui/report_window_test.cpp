@@ -83,7 +83,7 @@ private slots:
         QVERIFY(window.waitForIdle(60000));
         const nlohmann::json expected = runJson(study);
 
-        for (const QString name : {QStringLiteral("review.html"), QStringLiteral("review.pdf")}) {
+        for (const QString& name : {QStringLiteral("review.html"), QStringLiteral("review.pdf")}) {
             const QString path = dir_.filePath(name);
             QSignalSpy spy(window.reportWriter(), &ReportWriter::finished);
             QVERIFY2(window.writeReport(path, &error), qPrintable(error));
