@@ -1,6 +1,7 @@
 // The review report as one HTML5 file (see html.h).
 #include "core/report/html.h"
 
+#include <cctype>
 #include <cmath>
 #include <cstdio>
 #include <string_view>
@@ -272,6 +273,39 @@ std::string prefixIds(const std::string& body, const std::string& prefix) {
     return out;
 }
 
+// Font families as Qt names them (fontconfig's aliases "Sans Serif", "Monospace", or a real
+// family) made into lists a browser on any system resolves: the alias becomes the CSS generic
+// family, a real family gets the generic one after it.
+std::string browserFonts(const std::string& body) {
+    static const std::string key = "font-family=\"";
+    std::string out;
+    out.reserve(body.size());
+    std::size_t at = 0;
+    while (true) {
+        const std::size_t found = body.find(key, at);
+        if (found == std::string::npos) break;
+        const std::size_t start = found + key.size();
+        const std::size_t end = body.find('"', start);
+        if (end == std::string::npos) break;
+        std::string family = body.substr(start, end - start);
+        std::string lowered;
+        for (char c : family) lowered += static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+        if (lowered == "sans serif" || lowered == "sans" || lowered == "sans-serif")
+            family = "sans-serif";
+        else if (lowered == "monospace" || lowered == "mono")
+            family = "monospace";
+        else if (lowered == "serif")
+            family = "serif";
+        else if (lowered.find("sans-serif") == std::string::npos && lowered.find("monospace") == std::string::npos)
+            family += ", sans-serif";
+        out.append(body, at, start - at);
+        out += family;
+        at = end;
+    }
+    out.append(body, at, std::string::npos);
+    return out;
+}
+
 }  // namespace
 
 std::string escapeHtml(const std::string& text) {
@@ -296,7 +330,7 @@ std::string inlineSvg(const std::string& svg, const std::string& idPrefix, doubl
     std::string body = svg.substr(tagEnd + 1, close - tagEnd - 1);
     dropFirstElement(body, "title");
     dropFirstElement(body, "desc");
-    body = prefixIds(body, idPrefix);
+    body = browserFonts(prefixIds(body, idPrefix));
 
     std::string out = "<svg xmlns=\"http://www.w3.org/2000/svg\" xmlns:xlink=\"http://www.w3.org/1999/xlink\" viewBox=\"";
     appendEscaped(out, viewBox);

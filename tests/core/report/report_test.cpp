@@ -260,7 +260,8 @@ TEST(Html, InlineSvgDropsTheXmlPrologueAndPrefixesEveryId) {
         "xmlns:xlink=\"http://www.w3.org/1999/xlink\" version=\"1.2\" baseProfile=\"tiny\">\n"
         "<title>Saddlewise plot</title>\n<desc>Generated with Qt</desc>\n"
         "<defs><clipPath id=\"clip1\"><rect x=\"0\" y=\"0\" width=\"5\" height=\"5\"/></clipPath></defs>\n"
-        "<g clip-path=\"url(#clip1)\" fill=\"none\"><use xlink:href=\"#clip1\"/><path d=\"M0,0 L1,1\"/></g>\n</svg>\n";
+        "<g clip-path=\"url(#clip1)\" fill=\"none\"><use xlink:href=\"#clip1\"/><path d=\"M0,0 L1,1\"/></g>\n"
+        "<g font-family=\"Sans Serif\"><text>a</text></g><g font-family=\"DejaVu Sans\"><text>b</text></g>\n</svg>\n";
     const std::string inlined = report::inlineSvg(svg, "landscape", 760, 600, "A <landscape>");
     EXPECT_EQ(inlined.find("<?xml"), std::string::npos);
     EXPECT_EQ(inlined.rfind("<svg ", 0), 0u);
@@ -273,6 +274,8 @@ TEST(Html, InlineSvgDropsTheXmlPrologueAndPrefixesEveryId) {
     EXPECT_NE(inlined.find("url(#landscape-clip1)"), std::string::npos);
     EXPECT_NE(inlined.find("xlink:href=\"#landscape-clip1\""), std::string::npos);
     EXPECT_EQ(inlined.find("\"clip1\""), std::string::npos);
+    EXPECT_NE(inlined.find("font-family=\"sans-serif\""), std::string::npos);
+    EXPECT_NE(inlined.find("font-family=\"DejaVu Sans, sans-serif\""), std::string::npos);
     EXPECT_EQ(report::inlineSvg("no svg here", "x", 1, 1, "t"), "");
 }
 
