@@ -264,7 +264,12 @@ private:
                 if (!span.swatch.empty()) full += plainMetrics.horizontalAdvance(QStringLiteral("■ "));
                 const QString value = QString::fromStdString(span.text);
                 full += m.horizontalAdvance(value);
-                for (const QString& w : value.split(QLatin1Char(' '), Qt::SkipEmptyParts)) word = std::max(word, m.horizontalAdvance(w));
+                // Lines may break at spaces and after hyphens ("Levenberg-" / "Marquardt").
+                for (const QString& w : value.split(QLatin1Char(' '), Qt::SkipEmptyParts))
+                    for (QString piece : w.split(QLatin1Char('-'))) {
+                        if (piece.size() < w.size()) piece += QLatin1Char('-');
+                        word = std::max(word, m.horizontalAdvance(piece));
+                    }
             }
             if (!text.empty() && !text.front().swatch.empty()) word += plainMetrics.horizontalAdvance(QStringLiteral("■ "));
             natural[c] = std::max(natural[c], full + kCellPadding);
@@ -518,7 +523,14 @@ std::string writePdf(const report::Document& d) {
     document.documentLayout()->registerHandler(kFigureObject, &figures);
     document.setPageSize(content);
 
-    Builder(document, content).build(d);
+    {
+        // One edit block: Qt lays the document out once at its end, not after every cell (which
+        // made building the tables quadratic).
+        QTextCursor edit(&document);
+        edit.beginEditBlock();
+        Builder(document, content).build(d);
+        edit.endEditBlock();
+    }
     keepTogether(document, content.height());
 
     QPainter painter;
@@ -555,6 +567,7 @@ std::string writePdf(const report::Document& d) {
         painter.restore();
     }
     if (!painter.end()) throw std::runtime_error("Qt could not finish the PDF");
+
     buffer.close();
     return buffer.data().toStdString();
 }
