@@ -22,7 +22,7 @@ seed-germination.csv
             moisture ~ uniform(10, 45), chill_days ~ whole numbers uniform in 0..40; 300 rows
     Noise:  the Bernoulli draw itself; seed 5117
     Fit:    --model 'b0 + b1*moisture + b2*chill_days' --response germinated
-            --loss bernoulli-logit; good start b0=0,b1=0,b2=0; bad start b0=30,b1=-2,b2=0
+            --loss logistic; good start b0=0,b1=0,b2=0; bad start b0=30,b1=-2,b2=0
             (every predicted probability is 0 or 1 at first, so the gradient nearly vanishes)
 """
 import os

@@ -97,7 +97,8 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     readout_->setText(tr("Move the cursor over the landscape to read f, |∇f| and the Hessian eigenvalues."));
     readout_->setWordWrap(true);
     logBox_ = new QCheckBox(tr("Log colour"), this);
-    logBox_->setToolTip(tr("Colour by log10(f − f_min) so both the valley floor and the walls show"));
+    logBox_->setToolTip(tr("Colour by log10 of f minus the lowest f on this plane, so both the valley floor and "
+                           "the walls show"));
     resetButton_ = new QToolButton(this);
     resetButton_->setText(tr("Reset view"));
     resetButton_->setToolTip(tr("Return to the plotted variables' ranges"));
@@ -221,7 +222,8 @@ void LandscapeView::rebuild() {
         }
     }
     // The field and its contours change only with a new field or colour scale, not with runs.
-    if (builtField_ != field_.get() || builtLogColour_ != logColour_) rebuildField();
+    if (builtField_ != field_.get() || builtLogColour_ != logColour_ || builtDark_ != isDarkPalette(palette()))
+        rebuildField();
     rebuildPaths();
     updateStartMarker();
     updateHighlight();
@@ -236,6 +238,8 @@ void LandscapeView::selectionChanged() {
 void LandscapeView::rebuildField() {
     builtField_ = field_.get();
     builtLogColour_ = logColour_;
+    builtDark_ = isDarkPalette(palette());
+    colourScale_->setGradient(fieldGradient(builtDark_));  // the scale passes it on to the map
     for (QCPCurve* curve : contourCurves_) plot_->removePlottable(curve);
     contourCurves_.clear();
     const analyze::Field* field = field_ ? &field_->field : nullptr;
@@ -256,7 +260,8 @@ void LandscapeView::rebuildField() {
         }
     }
     const bool anyFinite = lo <= hi;
-    // Log colour: log10(f - f_min + offset); the small offset keeps the minimum cell finite.
+    // Log colour: log10(f - lo + offset), lo the lowest f on the plane; the small offset keeps
+    // the lowest cell finite.
     const double span = anyFinite ? hi - lo : 0.0;
     const double offset = span > 0 ? span * 1e-5 : 1.0;
     auto colourOf = [&](double v) {
@@ -305,7 +310,7 @@ void LandscapeView::rebuildField() {
                 for (int k = k0; k <= k1; ++k) values.push_back(std::pow(10.0, k));
                 return values;
             })));
-        scaleAxis->setLabel(tr("f − f_min (log scale), f_min = %1").arg(formatNumber(lo)));
+        scaleAxis->setLabel(tr("f − %1, log scale (%1: lowest f on this plane)").arg(formatNumber(lo)));
     } else {
         scaleAxis->setTicker(QSharedPointer<QCPAxisTicker>(new QCPAxisTicker));
         scaleAxis->setLabel(tr("f"));
@@ -316,7 +321,7 @@ void LandscapeView::rebuildField() {
     // Contour lines, dark on the light end of the gradient and light on the dark end.
     for (const analyze::ContourSet& set : field_->contours) {
         const double position = (colourOf(set.level) - range.lower) / (range.upper - range.lower);
-        const bool lightFill = fieldGradientLightness(position) > 0.55;
+        const bool lightFill = fieldGradientLightness(position, builtDark_) > 0.6;
         const QColor ink = lightFill ? QColor(20, 20, 30, 130) : QColor(255, 255, 255, 120);
         // Contours carry most of the plot's points: a cosmetic pen takes the raster engine's
         // fast line path (a stroked pen cost several ms per redraw at 600 x 600), widened by

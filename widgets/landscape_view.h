@@ -69,6 +69,7 @@ private:
     std::shared_ptr<const FieldSnapshot> field_;
     const FieldSnapshot* builtField_ = nullptr;  // what the colour map and contours show now
     bool builtLogColour_ = false;
+    bool builtDark_ = false;       // the colour scale's variant for a dark window
     Vector start_;
     bool hasStart_ = false;
     bool hasHome_ = false;

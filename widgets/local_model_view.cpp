@@ -251,7 +251,8 @@ void LocalModelView::rebuild() {
         arrow->setSelectable(false);
         auto* stepKey = new QCPCurve(plot_->xAxis, plot_->yAxis);  // legend entry for the arrow
         stepKey->setPen(pen);
-        stepKey->setName(tr("step taken (%1)").arg(QString::fromUtf8(solve::toString(record->stepKind))));
+        const QString what = stepDescription(track.run->methodId, *record);
+        stepKey->setName(what.isEmpty() ? tr("step of %1").arg(track.label) : tr("step of %1 (%2)").arg(track.label, what));
         stepKey->setSelectable(QCP::stNone);
     }
 

@@ -1,5 +1,8 @@
 #include "widgets/plot_style.h"
 
+#include "core/solve/solver.h"
+#include "widgets/theme.h"
+
 #include <QEvent>
 #include <QFileInfo>
 #include <QGuiApplication>
@@ -8,6 +11,7 @@
 #include <QToolTip>
 #include <QVBoxLayout>
 #include <algorithm>
+#include <array>
 #include <cmath>
 
 namespace sw::widgets {
@@ -55,6 +59,7 @@ QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, doubl
         return QCPScatterStyle(QCPScatterStyle::ssCrossSquare, pen, QBrush(pale), size);
     case solve::PointKind::Maximum: return QCPScatterStyle(QCPScatterStyle::ssTriangle, pen, QBrush(pale), size);
     case solve::PointKind::Degenerate: return QCPScatterStyle(QCPScatterStyle::ssDiamond, pen, Qt::NoBrush, size);
+    case solve::PointKind::NotCritical:
     case solve::PointKind::Unknown: break;
     }
     return QCPScatterStyle(QCPScatterStyle::ssCircle, pen, Qt::NoBrush, size);
@@ -71,13 +76,37 @@ void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size)
 
 QString endPointLabel(solve::PointKind kind) {
     switch (kind) {
-    case solve::PointKind::Minimum: return QStringLiteral("ends at a minimum");
+    case solve::PointKind::Minimum: return QStringLiteral("ends at a local minimum");
     case solve::PointKind::Saddle: return QStringLiteral("ends at a saddle");
-    case solve::PointKind::Maximum: return QStringLiteral("ends at a maximum");
+    case solve::PointKind::Maximum: return QStringLiteral("ends at a local maximum");
     case solve::PointKind::Degenerate: return QStringLiteral("ends at a degenerate point");
+    case solve::PointKind::NotCritical: return QStringLiteral("ends where the gradient is not zero");
     case solve::PointKind::Unknown: break;
     }
     return QStringLiteral("stopped before converging");
+}
+
+QString stepDescription(const std::string& methodId, const solve::IterationRecord& record) {
+    using solve::StepKind;
+    const StepKind kind = record.stepKind;
+    if (kind == StepKind::None) return {};
+    if (kind == StepKind::Simplex) {  // the note starts with the move: "reflect; simplex size ..."
+        const std::string note = record.note.text();
+        return QString::fromStdString(note.substr(0, note.find(';')));
+    }
+    if (kind == StepKind::LevenbergMarquardt) return record.damping > 0 ? QStringLiteral("damped") : QStringLiteral("undamped");
+    const solve::MethodInfo* info = solve::findMethod(methodId);
+    const std::string family = info ? info->family : std::string();
+    const bool restates = methodId == solve::toString(kind) ||
+                          (kind == StepKind::Gradient && methodId == "gradient-descent") ||
+                          (kind == StepKind::Momentum && (methodId == "momentum" || methodId == "nesterov")) ||
+                          (kind == StepKind::Adaptive && methodId == "adam") ||
+                          (kind == StepKind::Newton && methodId == "damped-newton") ||
+                          (kind == StepKind::QuasiNewton && family == "quasi-newton") ||
+                          (kind == StepKind::ConjugateGradient && family == "conjugate-gradient");
+    if (restates) return {};
+    if (kind == StepKind::Gradient) return QStringLiteral("steepest-descent fallback");
+    return QString::fromLatin1(solve::toString(kind));
 }
 
 bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }
@@ -125,25 +154,35 @@ void applyPlotStyle(QCustomPlot* plot) {
 }
 
 namespace {
-struct GradientStop {
-    double position;
-    QColor colour;
-};
-// Our own sequential ramp. Each stop is lighter than the one before it (CIE L* roughly
-// 13, 27, 43, 58, 74, 92), and hue turns from blue-violet through teal and green to straw.
-const std::vector<GradientStop>& gradientStops() {
-    static const std::vector<GradientStop> stops = {
-        {0.00, QColor(0x16, 0x1a, 0x3e)}, {0.20, QColor(0x33, 0x3c, 0x86)}, {0.40, QColor(0x25, 0x6f, 0x8e)},
-        {0.60, QColor(0x3c, 0x9d, 0x85)}, {0.80, QColor(0x9b, 0xc4, 0x6a)}, {1.00, QColor(0xf6, 0xea, 0xb4)},
-    };
-    return stops;
+// The landscape's colour scale, our own (scripts/colour_scale.py designs it and prints these
+// stops). Sequential: CIE lightness L* rises evenly from the lowest f to the highest, and the
+// hue turns from a deep evergreen through teal and blue to lilac and a pale blush, the other
+// way round the hue circle from the common violet-teal-green-yellow scales. Stops are equally
+// spaced in CIEDE2000 difference along the path, so equal steps in f look like equal steps in
+// colour. The dark appearance uses the same path ending at L* 84 instead of 95, so the high
+// walls of a landscape do not glare in a dark window.
+//   light: L* 14 .. 95      dark: L* 12 .. 84
+// tests/gui/theme_test.cpp checks monotone lightness and separation under simulated
+// protanopia, deuteranopia and tritanopia (CIEDE2000 between tenths of the scale).
+const std::array<QColor, 11>& gradientStops(bool dark) {
+    static const std::array<QColor, 11> light = {
+        QColor(0x1b, 0x26, 0x20), QColor(0x08, 0x3b, 0x33), QColor(0x01, 0x54, 0x5a), QColor(0x04, 0x6b, 0x83),
+        QColor(0x04, 0x7f, 0xb2), QColor(0x4a, 0x8d, 0xd8), QColor(0x87, 0x96, 0xe2), QColor(0xb6, 0xa0, 0xe4),
+        QColor(0xe1, 0xb1, 0xe1), QColor(0xfb, 0xcf, 0xe1), QColor(0xff, 0xec, 0xef)};
+    static const std::array<QColor, 11> darkStops = {
+        QColor(0x17, 0x22, 0x1c), QColor(0x02, 0x34, 0x2c), QColor(0x02, 0x4b, 0x51), QColor(0x03, 0x60, 0x78),
+        QColor(0x02, 0x72, 0xa5), QColor(0x44, 0x7d, 0xc8), QColor(0x7a, 0x83, 0xcd), QColor(0xa5, 0x8b, 0xcd),
+        QColor(0xc9, 0x9a, 0xc7), QColor(0xde, 0xb4, 0xc5), QColor(0xe0, 0xcd, 0xcf)};
+    return dark ? darkStops : light;
 }
 }  // namespace
 
-QCPColorGradient fieldGradient() {
+QCPColorGradient fieldGradient(bool dark) {
     QCPColorGradient gradient;
     gradient.clearColorStops();
-    for (const GradientStop& stop : gradientStops()) gradient.setColorStopAt(stop.position, stop.colour);
+    const auto& stops = gradientStops(dark);
+    for (std::size_t i = 0; i < stops.size(); ++i)
+        gradient.setColorStopAt(static_cast<double>(i) / static_cast<double>(stops.size() - 1), stops[i]);
     gradient.setColorInterpolation(QCPColorGradient::ciRGB);
     gradient.setLevelCount(350);
     gradient.setNanHandling(QCPColorGradient::nhNanColor);
@@ -151,16 +190,12 @@ QCPColorGradient fieldGradient() {
     return gradient;
 }
 
-double fieldGradientLightness(double t) {
-    const auto& stops = gradientStops();
-    t = std::clamp(t, 0.0, 1.0);
-    for (std::size_t i = 1; i < stops.size(); ++i) {
-        if (t <= stops[i].position) {
-            const double u = (t - stops[i - 1].position) / (stops[i].position - stops[i - 1].position);
-            return ((1 - u) * stops[i - 1].colour.lightnessF() + u * stops[i].colour.lightnessF());
-        }
-    }
-    return stops.back().colour.lightnessF();
+double fieldGradientLightness(double t, bool dark) {
+    const auto& stops = gradientStops(dark);
+    const double x = std::clamp(t, 0.0, 1.0) * static_cast<double>(stops.size() - 1);
+    const std::size_t i = std::min(static_cast<std::size_t>(x), stops.size() - 2);
+    const double u = x - static_cast<double>(i);
+    return ((1 - u) * cielab(stops[i]).L + u * cielab(stops[i + 1]).L) / 100.0;
 }
 
 QString formatNumber(double value, int significantDigits) {

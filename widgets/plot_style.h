@@ -32,6 +32,10 @@ QCPScatterStyle iterateStyle(Marker marker, const QColor& colour, double size = 
 // triangle, degenerate = hollow diamond, unknown (also: stopped before converging) = hollow circle.
 QCPScatterStyle endPointStyle(solve::PointKind kind, const QColor& colour, double size = 13.0);
 QString endPointLabel(solve::PointKind kind);
+// What a step did, in words, when its kind says more than the method's name: "boundary",
+// "steepest-descent fallback", a simplex move ("reflect"), "damped" or "undamped" for
+// Levenberg-Marquardt. "" when the kind only restates the method (a BFGS step of bfgs).
+QString stepDescription(const std::string& methodId, const solve::IterationRecord& record);
 // Turns a graph into the ring that marks the selected iterate: markers only, in the palette's
 // highlight colour, out of the legend and not selectable.
 void styleAsSelectionRing(QCPGraph* graph, const QColor& highlight, double size = 16.0);
@@ -42,12 +46,13 @@ void styleAxisRect(QCPAxisRect* rect, const QPalette& palette);
 // True when the palette's window colour is dark.
 bool isDarkPalette(const QPalette& palette);
 
-// The landscape's colour gradient: sequential, lightness rising monotonically from a deep
-// blue-violet (low f) to a pale straw (high f); stops chosen for this project.
-QCPColorGradient fieldGradient();
-// Relative lightness (0 dark .. 1 light) of the gradient at position t in [0,1]; used to pick
+// The landscape's colour scale (our own; see plot_style.cpp): sequential, CIE lightness rising
+// evenly from a deep evergreen (low f) through teal, blue and lilac to a pale blush (high f).
+// `dark`: the variant for a dark window, whose light end is dimmer.
+QCPColorGradient fieldGradient(bool dark = false);
+// CIE lightness L* / 100 (0 dark .. 1 light) of the scale at position t in [0,1]; used to pick
 // contour-line colours that stay visible on the fill.
-double fieldGradientLightness(double t);
+double fieldGradientLightness(double t, bool dark = false);
 
 // Compact number for labels and readouts: 4 significant digits, exponent when needed.
 QString formatNumber(double value, int significantDigits = 4);

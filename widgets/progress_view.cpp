@@ -146,7 +146,7 @@ void ProgressView::rebuild() {
     floor_ = std::isfinite(smallestGap) ? smallestGap / 10 : 1e-16 * std::max(1.0, std::abs(best_));
     const double gradientFloor = std::isfinite(smallestGradient) ? smallestGradient / 10 : 1e-16;
     gy->setLabel(tr("f − f_best"));
-    bestNote_->setText(tr("f_best = %1 (lowest f seen)\nzero gap drawn at %2")
+    bestNote_->setText(tr("f_best = %1, the lowest f any run reached\nruns at f_best are drawn at %2 (a log axis has no 0)")
                            .arg(formatNumber(best_), formatNumber(floor_, 2)));
 
     double xMax = 1;

@@ -1,5 +1,7 @@
 #include "widgets/steps_table.h"
 
+#include "widgets/plot_style.h"
+
 #include <QHeaderView>
 #include <QItemSelectionModel>
 #include <QLabel>
@@ -116,10 +118,13 @@ QVariant StepsModel::data(const QModelIndex& index, int role) const {
     case Iteration: return r.iteration;
     case Value: return shortNumber(r.value);
     case GradientNorm: return shortNumber(r.gradientNorm);
-    case StepKindColumn:
-        return r.stepKind == solve::StepKind::None
-                   ? QString()
-                   : QString::fromLatin1(solve::toString(r.stepKind)) + (r.accepted ? QString() : tr(" (rejected)"));
+    case StepKindColumn: {
+        // The method is in the first column: show the kind only when it adds to it.
+        if (r.stepKind == solve::StepKind::None) return QString();
+        const QString what = stepDescription(track.run->methodId, r);
+        if (r.accepted) return what;
+        return what.isEmpty() ? tr("rejected") : tr("%1 (rejected)").arg(what);
+    }
     case StepLength: return shortNumber(r.stepLength);
     case TrustRadius: return shortNumber(r.trustRadius);
     case Ratio: return shortNumber(r.ratio);
@@ -147,7 +152,9 @@ QVariant StepsModel::headerData(int section, Qt::Orientation orientation, int ro
         QT_TR_NOOP("Iteration number"),
         QT_TR_NOOP("Objective value at the iterate"),
         QT_TR_NOOP("Length of the gradient at the iterate"),
-        QT_TR_NOOP("Kind of step taken from this iterate"),
+        QT_TR_NOOP("What the step from this iterate was, when its kind says more than the method: a trust-region "
+                   "boundary step, a steepest-descent fallback, a simplex move, a damped step (the export keeps every "
+                   "step's kind)"),
         QT_TR_NOOP("Step length accepted by the line search (1 for a full step)"),
         QT_TR_NOOP("Trust radius used for this step"),
         QT_TR_NOOP("Actual decrease divided by the decrease the model predicted"),

@@ -89,7 +89,7 @@ const Matrix3 kProtanopia = {{{0.152286, 1.052583, -0.204868}, {0.114503, 0.7862
 const Matrix3 kDeuteranopia = {{{0.367322, 0.860646, -0.227968}, {0.280085, 0.672501, 0.047413}, {-0.011820, 0.042940, 0.968881}}};
 const Matrix3 kTritanopia = {{{1.255528, -0.076749, -0.178779}, {-0.078411, 0.930809, 0.147602}, {0.004733, 0.691367, 0.303900}}};
 
-std::array<double, 3> cielab(const Rgb& rgb) {
+std::array<double, 3> labOfLinear(const Rgb& rgb) {
     // sRGB (D65) -> XYZ -> L*a*b*, CIE 1976.
     const double x = 0.4124 * rgb[0] + 0.3576 * rgb[1] + 0.1805 * rgb[2];
     const double y = 0.2126 * rgb[0] + 0.7152 * rgb[1] + 0.0722 * rgb[2];
@@ -120,9 +120,62 @@ QColor simulateColourVision(const QColor& colour, ColourVision vision) {
 }
 
 double colourDifference(const QColor& a, const QColor& b) {
-    const auto la = cielab(linearRgb(a)), lb = cielab(linearRgb(b));
+    const auto la = labOfLinear(linearRgb(a)), lb = labOfLinear(linearRgb(b));
     return std::sqrt((la[0] - lb[0]) * (la[0] - lb[0]) + (la[1] - lb[1]) * (la[1] - lb[1]) +
                      (la[2] - lb[2]) * (la[2] - lb[2]));
 }
+
+Lab cielab(const QColor& colour) {
+    const auto lab = labOfLinear(linearRgb(colour));
+    return {lab[0], lab[1], lab[2]};
+}
+
+// CIEDE2000, written from Sharma, Wu & Dalal (2005), eqs. (1)-(17), with their notes on the
+// hue angle and its mean when a chroma is zero.
+double ciede2000(const Lab& first, const Lab& second) {
+    constexpr double kPi = 3.14159265358979323846;
+    auto radians = [](double degrees) { return degrees * kPi / 180.0; };
+    auto degrees = [](double r) { return r * 180.0 / kPi; };
+    const double c1 = std::hypot(first.a, first.b), c2 = std::hypot(second.a, second.b);
+    const double meanC = (c1 + c2) / 2;
+    const double meanC7 = std::pow(meanC, 7);
+    const double g = 0.5 * (1 - std::sqrt(meanC7 / (meanC7 + std::pow(25.0, 7))));
+    const double a1 = (1 + g) * first.a, a2 = (1 + g) * second.a;
+    const double cp1 = std::hypot(a1, first.b), cp2 = std::hypot(a2, second.b);
+    auto hue = [&](double a, double b) {
+        if (a == 0 && b == 0) return 0.0;
+        const double h = degrees(std::atan2(b, a));
+        return h < 0 ? h + 360 : h;
+    };
+    const double h1 = hue(a1, first.b), h2 = hue(a2, second.b);
+    const double dL = second.L - first.L, dC = cp2 - cp1;
+    double dh = 0;
+    if (cp1 * cp2 != 0) {
+        dh = h2 - h1;
+        if (dh > 180) dh -= 360;
+        else if (dh < -180) dh += 360;
+    }
+    const double dH = 2 * std::sqrt(cp1 * cp2) * std::sin(radians(dh / 2));
+    const double meanL = (first.L + second.L) / 2, meanCp = (cp1 + cp2) / 2;
+    double meanH = h1 + h2;
+    if (cp1 * cp2 != 0) {
+        if (std::abs(h1 - h2) <= 180) meanH = (h1 + h2) / 2;
+        else if (h1 + h2 < 360) meanH = (h1 + h2 + 360) / 2;
+        else meanH = (h1 + h2 - 360) / 2;
+    }
+    const double t = 1 - 0.17 * std::cos(radians(meanH - 30)) + 0.24 * std::cos(radians(2 * meanH)) +
+                     0.32 * std::cos(radians(3 * meanH + 6)) - 0.20 * std::cos(radians(4 * meanH - 63));
+    const double dTheta = 30 * std::exp(-std::pow((meanH - 275) / 25, 2));
+    const double meanCp7 = std::pow(meanCp, 7);
+    const double rc = 2 * std::sqrt(meanCp7 / (meanCp7 + std::pow(25.0, 7)));
+    const double l50 = (meanL - 50) * (meanL - 50);
+    const double sl = 1 + 0.015 * l50 / std::sqrt(20 + l50);
+    const double sc = 1 + 0.045 * meanCp, sh = 1 + 0.015 * meanCp * t;
+    const double rt = -std::sin(radians(2 * dTheta)) * rc;
+    const double l = dL / sl, c = dC / sc, h = dH / sh;
+    return std::sqrt(l * l + c * c + h * h + rt * c * h);
+}
+
+double colourDifference2000(const QColor& a, const QColor& b) { return ciede2000(cielab(a), cielab(b)); }
 
 }  // namespace sw::widgets

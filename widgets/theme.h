@@ -35,4 +35,14 @@ QColor simulateColourVision(const QColor& colour, ColourVision vision);
 // Euclidean distance in CIELAB (CIE 1976 ΔE*ab), D65 white.
 double colourDifference(const QColor& a, const QColor& b);
 
+// CIELAB (D65) of an sRGB colour, and the CIEDE2000 colour difference (Sharma, Wu & Dalal,
+// "The CIEDE2000 color-difference formula: implementation notes, supplementary test data, and
+// mathematical observations", Color Res. Appl. 30(1), 2005).
+struct Lab {
+    double L = 0, a = 0, b = 0;
+};
+Lab cielab(const QColor& colour);
+double ciede2000(const Lab& first, const Lab& second);
+double colourDifference2000(const QColor& a, const QColor& b);
+
 }  // namespace sw::widgets

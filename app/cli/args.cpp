@@ -1,4 +1,5 @@
 #include "app/cli/cli.h"
+#include "core/expr/number_text.h"
 
 #include <algorithm>
 #include <charconv>
@@ -54,10 +55,39 @@ ParsedArgs parseArgs(const std::vector<std::string>& args, const std::vector<std
             std::string known;
             for (const auto& f : flags) known += " --" + f;
             for (const auto& v : valued) known += " --" + v;
-            throw UsageError("unknown option --" + name + "; this verb takes:" + known);
+            throw UsageError("unknown option --" + shownText(name) + "; this verb takes:" + known);
         }
     }
     return parsed;
+}
+
+// Text from the command line for a message: at most 40 characters, control bytes and bytes
+// that are not UTF-8 shown by code (\x07), never raw.
+std::string shownText(const std::string& text) {
+    std::string out;
+    std::size_t characters = 0, i = 0;
+    for (; i < text.size() && characters < 40; ++characters) {
+        const auto c = static_cast<unsigned char>(text[i]);
+        std::size_t length = c < 0x80 ? 1 : c >= 0xF0 && c <= 0xF4 ? 4 : c >= 0xE0 && c <= 0xEF ? 3 : c >= 0xC2 && c <= 0xDF ? 2 : 0;
+        if (length > 1 && i + length <= text.size()) {
+            for (std::size_t k = 1; k < length; ++k)
+                if ((static_cast<unsigned char>(text[i + k]) & 0xC0) != 0x80) length = 0;
+        } else if (length > 1) {
+            length = 0;
+        }
+        if (length == 0 || c < 0x20 || c == 0x7F) {
+            static const char* hex = "0123456789ABCDEF";
+            out += "\\x";
+            out += hex[c >> 4];
+            out += hex[c & 15];
+            ++i;
+        } else {
+            out.append(text, i, length);
+            i += length;
+        }
+    }
+    if (i < text.size()) out += "...";
+    return out;
 }
 
 static std::string trim(const std::string& s) {
@@ -82,15 +112,16 @@ static bool validName(const std::string& name) {
 }
 
 double parseNumber(const std::string& text, const std::string& what) {
-    std::string t = trim(text);
+    const std::string t = trim(text);
     double value = 0;
-    const char* first = t.data();
-    const char* last = t.data() + t.size();
-    if (!t.empty() && *first == '+') ++first;
-    auto [ptr, ec] = std::from_chars(first, last, value);
-    if (t.empty() || ec != std::errc() || ptr != last)
-        throw UsageError(what + ": '" + text + "' is not a number (use '.' as the decimal point)");
-    if (!std::isfinite(value)) throw UsageError(what + ": '" + text + "' is not a finite number");
+    // The one number rule (core/expr/number_text.h): plain decimals; overflow and underflow
+    // are out of range; inf, nan, hex and decimal commas are not numbers.
+    const NumberStatus status = readDecimal(t, value);
+    if (status == NumberStatus::TooLarge || status == NumberStatus::TooSmall)
+        throw UsageError(what + ": " + outOfRangeText(t, status));
+    if (status != NumberStatus::Ok)
+        throw UsageError(what + ": '" + shownText(text) + "' is not a number" +
+                         (t.find(',') != std::string::npos || t.empty() ? " (use '.' as the decimal point)" : ""));
     return value;
 }
 
@@ -98,8 +129,11 @@ long parseInteger(const std::string& text, const std::string& what, long lo, lon
     std::string t = trim(text);
     long value = 0;
     auto [ptr, ec] = std::from_chars(t.data(), t.data() + t.size(), value);
+    if (ec == std::errc::result_out_of_range && ptr == t.data() + t.size())
+        throw UsageError(what + ": " + shownText(t) + " is out of range (" + std::to_string(lo) + " to " +
+                         std::to_string(hi) + ")");
     if (t.empty() || ec != std::errc() || ptr != t.data() + t.size())
-        throw UsageError(what + ": '" + text + "' is not a whole number");
+        throw UsageError(what + ": '" + shownText(text) + "' is not a whole number");
     if (value < lo || value > hi)
         throw UsageError(what + ": " + std::to_string(value) + " is out of range (" + std::to_string(lo) + " to " +
                          std::to_string(hi) + ")");
@@ -113,11 +147,11 @@ std::vector<std::pair<std::string, double>> parseAssignments(const std::string& 
         ++position;
         auto eq = item.find('=');
         if (eq == std::string::npos)
-            throw UsageError("--" + optionName + " item " + std::to_string(position) + " '" + item +
+            throw UsageError("--" + optionName + " item " + std::to_string(position) + " '" + shownText(item) +
                              "' is not of the form name=value");
         std::string name = trim(item.substr(0, eq));
         if (!validName(name))
-            throw UsageError("--" + optionName + " item " + std::to_string(position) + ": '" + name +
+            throw UsageError("--" + optionName + " item " + std::to_string(position) + ": '" + shownText(name) +
                              "' is not a valid name (letters, digits, _; not starting with a digit)");
         for (const auto& [seen, unused] : result)
             if (seen == name) throw UsageError("--" + optionName + ": '" + name + "' is given twice");
@@ -135,17 +169,18 @@ std::vector<Range> parseRanges(const std::string& text, const std::string& optio
         auto eq = item.find('=');
         auto colon = item.find(':', eq == std::string::npos ? 0 : eq);
         if (eq == std::string::npos || colon == std::string::npos)
-            throw UsageError("--" + optionName + " item " + std::to_string(position) + " '" + item +
+            throw UsageError("--" + optionName + " item " + std::to_string(position) + " '" + shownText(item) +
                              "' is not of the form name=low:high");
         Range r;
         r.name = trim(item.substr(0, eq));
         if (!validName(r.name))
-            throw UsageError("--" + optionName + " item " + std::to_string(position) + ": '" + r.name +
+            throw UsageError("--" + optionName + " item " + std::to_string(position) + ": '" + shownText(r.name) +
                              "' is not a valid name");
         r.lo = parseNumber(item.substr(eq + 1, colon - eq - 1), "--" + optionName + " " + r.name + " low end");
         r.hi = parseNumber(item.substr(colon + 1), "--" + optionName + " " + r.name + " high end");
         if (!(r.lo < r.hi))
-            throw UsageError("--" + optionName + " " + r.name + ": the low end must be below the high end");
+            throw UsageError("--" + optionName + " " + r.name + ": the low end must be below the high end (got " +
+                             formatNumber(r.lo) + ":" + formatNumber(r.hi) + ")");
         result.push_back(r);
     }
     if (result.empty()) throw UsageError("--" + optionName + " is empty; expected name=low:high,...");
@@ -162,6 +197,26 @@ std::string formatNumber(double value, int significant) {
     }
     auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, value, std::chars_format::general, significant);
     return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
+}
+
+std::string wrapText(const std::string& text, std::size_t width) {
+    std::string out, line, word;
+    auto flushWord = [&] {
+        if (word.empty()) return;
+        if (!line.empty() && line.size() + 1 + word.size() > width) {
+            out += line + '\n';
+            line.clear();
+        }
+        line += (line.empty() ? "" : " ") + word;
+        word.clear();
+    };
+    for (char c : text) {
+        if (c == ' ' || c == '\n') flushWord();
+        else word += c;
+    }
+    flushWord();
+    if (!line.empty()) out += line + '\n';
+    return out;
 }
 
 }  // namespace sw::cli

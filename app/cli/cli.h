@@ -61,11 +61,16 @@ struct Range {
 std::vector<Range> parseRanges(const std::string& text, const std::string& optionName);
 // Strict, locale-free number parsing; UsageError naming the option on failure.
 double parseNumber(const std::string& text, const std::string& what);
+// Text from the command line for a message: at most 40 characters; control bytes and bytes
+// that are not UTF-8 shown as \xNN.
+std::string shownText(const std::string& text);
 long parseInteger(const std::string& text, const std::string& what, long lo, long hi);
 
 // Numbers for people and for JSON: shortest text that round-trips (C locale), "nan"/"inf"
 // in tables; JSON writers turn non-finite numbers into null.
 std::string formatNumber(double value, int significant = 17);
+// Words wrapped onto lines of at most `width` characters, each line ended with '\n'.
+std::string wrapText(const std::string& text, std::size_t width);
 
 // Each verb lives in its own file under app/cli/ and describes itself (name, summary,
 // help, entry point); verbs.cpp lists them in the order `--help` shows.

@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cmath>
 #include <iomanip>
+#include <map>
 #include <ostream>
 #include <sstream>
 
@@ -25,6 +26,13 @@ std::string countsText(const solve::EvaluationCounts& c) {
     return std::to_string(c.value) + "/" + std::to_string(c.gradient) + "/" + std::to_string(c.hessian);
 }
 
+// Columns on a terminal: UTF-8 text (|∇f|, names) counts one column per character.
+std::size_t columns(const std::string& text) {
+    std::size_t n = 0;
+    for (unsigned char c : text) n += (c & 0xC0) != 0x80;
+    return n;
+}
+
 // A plain text table: columns padded to their widest cell, numbers right-aligned.
 class Table {
 public:
@@ -33,13 +41,14 @@ public:
     void print(std::ostream& out, std::size_t lastColumnUnpadded = 1) const {
         std::vector<std::size_t> width(rows_[0].size(), 0);
         for (const auto& row : rows_)
-            for (std::size_t c = 0; c < row.size() && c < width.size(); ++c) width[c] = std::max(width[c], row[c].size());
+            for (std::size_t c = 0; c < row.size() && c < width.size(); ++c)
+                width[c] = std::max(width[c], columns(row[c]));
         for (const auto& row : rows_) {
             std::string line;
             for (std::size_t c = 0; c < row.size(); ++c) {
                 const bool last = c + lastColumnUnpadded >= row.size();
                 line += c ? "  " : "";
-                line += last ? row[c] : row[c] + std::string(width[c] - row[c].size(), ' ');
+                line += last ? row[c] : row[c] + std::string(width[c] - columns(row[c]), ' ');
             }
             while (!line.empty() && line.back() == ' ') line.pop_back();
             out << line << '\n';
@@ -58,7 +67,8 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
     std::vector<std::string> header = {"k"};
     if (showX)
         for (Eigen::Index i = 0; i < n; ++i) header.push_back(name(names, i));
-    for (const char* h : {"f", "|g|", "step", "alpha", "|step|", "evals v/g/h", "note"}) header.push_back(h);
+    // |∇f| as in the window; the program's text is UTF-8 throughout (method summaries, names).
+    for (const char* h : {"f", "|∇f|", "step", "alpha", "|step|", "evals v/g/h", "note"}) header.push_back(h);
     Table table(header);
     for (const solve::IterationRecord& r : run.trace) {
         std::vector<std::string> row = {std::to_string(r.iteration)};
@@ -76,6 +86,12 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
         table.add(row);
     }
     table.print(out);
+    if (run.droppedRecords > 0)
+        out << "(" << run.droppedRecords << " of " << run.iterations() + 1
+            << " records were thinned out to keep the trace within its memory limit: shown are the first, the most "
+               "recent (at least the last "
+            << solve::kTraceKeptTail << "), every iteration that is a multiple of " << run.recordStride
+            << " and the notable ones - rejected steps, changes of step kind, non-finite values)\n";
 }
 
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {
@@ -93,11 +109,12 @@ void printSummary(std::ostream& out, const solve::Run& run, const std::vector<st
 }
 
 void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
-    Table table({"method", "iterations", "evals v/g/h", "final value", "|g|", "termination", "end point"});
+    Table table({"method", "iterations", "evals v/g/h", "final value", "|∇f|", "termination", "end point"});
     for (const solve::Run& r : runs) {
-        std::string end = solve::toString(r.endPoint.kind);
+        std::string end = solve::describe(r.endPoint.kind);
         if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
-        if (!r.endPoint.critical && r.endPoint.kind != solve::PointKind::Unknown) end = "not stationary; curvature: " + end;
+        if (r.endPoint.kind == solve::PointKind::NotCritical)
+            end = "not critical (curvature: " + std::string(solve::toString(r.endPoint.curvature)) + ")";
         table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),
                    num(r.gradientNorm, 3), solve::toString(r.termination), end});
     }
@@ -107,9 +124,22 @@ void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
 std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string>& methodIds,
                                                    const std::vector<std::string>& optionTexts) {
     std::vector<solve::OptionValues> result(methodIds.size());
-    auto hasOption = [](const std::string& id, const std::string& option) {
+    // A former option name (docs/names.md) counts as the option; it is stored under the current name.
+    auto currentName = [](const std::string& id, const std::string& option) -> std::string {
         const solve::MethodInfo* info = solve::findMethod(id);
-        return info && solve::findOption(info->options, option) != nullptr;
+        const solve::OptionSpec* spec = info ? solve::findOptionOrFormer(info->options, option) : nullptr;
+        return spec ? spec->name : std::string();
+    };
+    auto hasOption = [&](const std::string& id, const std::string& option) { return !currentName(id, option).empty(); };
+    std::vector<std::map<std::string, std::string>> spelledAs(methodIds.size());  // current name -> as given
+    auto store = [&](std::size_t i, const std::string& key, const std::string& option, const std::string& value) {
+        const std::string name = currentName(methodIds[i], option);
+        const auto given = spelledAs[i].find(name);
+        if (given != spelledAs[i].end() && given->second != option)
+            throw UsageError("--option " + key + ": " + option + " and " + given->second +
+                             " name the same option (" + name + "); keep one");
+        spelledAs[i][name] = option;
+        result[i][name] = value;
     };
     for (const std::string& text : optionTexts) {
         const auto eq = text.find('=');
@@ -132,7 +162,7 @@ std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string
                         throw UsageError("--option " + key + ": method " + method + " has no option '" + option +
                                          "'" + (known.empty() ? " (it takes none)" : "; its options: " + known));
                     }
-                    result[i][option] = value;
+                    store(i, key, option, value);
                 }
             if (!chosen) throw UsageError("--option " + key + ": method '" + method + "' is not among the --method choices");
             continue;
@@ -140,7 +170,7 @@ std::vector<solve::OptionValues> distributeOptions(const std::vector<std::string
         bool used = false;
         for (std::size_t i = 0; i < methodIds.size(); ++i)
             if (hasOption(methodIds[i], key)) {
-                result[i][key] = value;
+                store(i, key, key, value);
                 used = true;
             }
         if (!used) {

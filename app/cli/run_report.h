@@ -14,16 +14,19 @@
 
 namespace sw::cli {
 
-// One run as JSON, and one record: core/report/run_json.h (shared with the report writer).
+// One run as JSON, one record, and where a result came from with the caution:
+// core/report/run_json.h (shared with the report writer).
+using report::provenanceJson;
 using report::recordToJson;
 using report::runToJson;
 
-// Per-iteration table: k, f, |g|, step kind, alpha, |step|, cumulative evaluations, note;
+// Per-iteration table: k, f, |∇f|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.
 void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// Termination and message, iterations, evaluations, x, f, |g|, end point.
+// Termination and message, iterations, evaluations, x, f, |∇f|, end point.
 void printSummary(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names);
-// One row per run: label, iterations, evaluations, final value, |g|, termination, end-point kind.
+// One row per run: label, iterations, evaluations, final value, |∇f|, termination, end point
+// ("local minimum", "saddle (index 1)", ...).
 void printComparison(std::ostream& out, const std::vector<solve::Run>& runs);
 
 // Distributes --option texts over the chosen methods. "name=value" applies to every chosen

@@ -100,7 +100,7 @@ int runDerive(const std::vector<std::string>& args, std::ostream& out, std::ostr
             j["hessian_formulas"].push_back(rowText);
         }
         j["finite"] = finite;
-        out << j.dump(2) << '\n';
+        out << j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return 0;
     }
 

@@ -1,6 +1,7 @@
 // saddlewise fit: fit a model formula to a CSV table and report estimates with their
 // uncertainty, goodness of fit and warnings.
 #include "app/cli/cli.h"
+#include "app/cli/fit_report.h"
 #include "app/cli/run_report.h"
 #include "core/fit/run_fit.h"
 
@@ -18,7 +19,7 @@ namespace {
 
 const char* kHelp =
     "Usage: saddlewise fit --data FILE.csv --model FORMULA --response COLUMN --start NAME=VALUE,...\n"
-    "                      [--loss least-squares|weighted|huber|cauchy|bernoulli-logit|poisson-log]\n"
+    "                      [--loss least-squares|weighted|huber|cauchy|logistic|poisson]\n"
     "                      [--weights COLUMN] [--sigma COLUMN] [--scale S] [--method ID]\n"
     "                      [--option NAME=VALUE ...] [--separator auto|comma|semicolon|tab]\n"
     "                      [--drop-incomplete] [--max-iterations N] [--confidence LEVEL]\n"
@@ -36,8 +37,9 @@ const char* kHelp =
     "  --loss NAME            least-squares (default): 1/2 sum r^2, r = y - model\n"
     "                         weighted: 1/2 sum w r^2 (needs --weights or --sigma)\n"
     "                         huber, cauchy: robust losses with scale --scale\n"
-    "                         bernoulli-logit: logistic regression; model = linear predictor, y in {0,1}\n"
-    "                         poisson-log: counts with mean exp(model)\n"
+    "                         logistic: y in {0,1} with P(y = 1) = 1/(1 + exp(-model)); the model\n"
+    "                         is the log-odds (former id bernoulli-logit, still read)\n"
+    "                         poisson: counts y with mean exp(model) (former id poisson-log, still read)\n"
     "  --weights COLUMN       row weights (>= 0); any loss\n"
     "  --sigma COLUMN         standard deviations of y (> 0); weights 1/sigma^2\n"
     "  --scale S              the Huber / Cauchy scale, in the response's units (default 1)\n"
@@ -57,20 +59,6 @@ const char* kHelp =
     "\n"
     "Exit codes: 0 the fit ran (converged or at a limit; see the warnings), 1 the run broke down,\n"
     "2 bad usage or input.\n";
-
-const char* kCaution =
-    "Caution: a fit is only as good as the model and the data. Verify it before relying on it, and\n"
-    "defer to local codes and licensed practice where safety is involved.\n";
-
-std::string cell(double v, int width, int precision = 6) {
-    std::ostringstream s;
-    s << std::setw(width) << (std::isfinite(v) ? formatNumber(v, precision) : std::string(std::isnan(v) ? "nan" : "inf"));
-    return s.str();
-}
-
-std::string padded(const std::string& text, std::size_t width) {
-    return text.size() >= width ? text : text + std::string(width - text.size(), ' ');
-}
 
 int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed =
@@ -111,7 +99,9 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
     if (parsed.has("option")) request.options = distributeOptions({method}, parsed.all("option")).front();
     if (parsed.has("max-iterations"))
         request.rules.maxIterations =
-            static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+            static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0,
+                                          solve::StoppingRules::kMaxIterationLimit));
+    if (parsed.has("summary")) request.rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     if (parsed.has("confidence")) {
         request.confidenceLevel = parseNumber(parsed.get("confidence"), "--confidence");
         if (!(request.confidenceLevel > 0 && request.confidenceLevel < 1))
@@ -136,7 +126,12 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
     const bool withTrace = !parsed.has("summary");
 
     if (parsed.has("json")) {
+        study::Provenance provenance;
+        provenance.model = def.response + " = " + def.model;
+        provenance.loss = toString(def.loss);
+        provenance.data = parsed.get("data");
         nlohmann::json j = runToJson(run, names, withTrace);
+        j["provenance"] = provenanceJson(provenance);
         j["data"] = {{"file", parsed.get("data")},
                      {"rows", table->rowCount()},
                      {"columns", table->columnNames},
@@ -150,66 +145,11 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
         j.update(report::statisticsToJson(st));
         j["warnings"] = result.warnings;
         j["converged"] = result.converged();
-        out << j.dump(2) << '\n';
+        out << j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return exitCodeFor({run});
     }
 
-    out << "Data: " << table->source << ": " << table->summary() << '\n';
-    out << "Model: " << def.response << " ~ " << def.model << "\n";
-    out << "Loss: " << toString(def.loss);
-    if (def.loss == Loss::Huber || def.loss == Loss::Cauchy) out << " (scale " << formatNumber(def.scale, 6) << ")";
-    if (!def.weights.empty()) out << ", weights from column '" << def.weights << "'";
-    if (!def.sigma.empty()) out << ", weights 1/sigma^2 from column '" << def.sigma << "'";
-    out << "; method: " << run.methodId << "\n\n";
-    if (withTrace) {
-        printTrace(out, run, names);
-        out << '\n';
-    }
-    printSummary(out, run, names);
-    out << '\n';
-
-    std::size_t nameWidth = 9;
-    for (const auto& n : names) nameWidth = std::max(nameWidth, n.size() + 1);
-    const int percent = static_cast<int>(std::lround(st.confidenceLevel * 100));
-    std::ostringstream intervalHead;
-    intervalHead << percent << "% interval (" << (st.likelihood ? "normal" : "t, " + std::to_string(st.degreesOfFreedom) + " dof")
-                 << ")";
-    out << padded("Parameter", nameWidth) << std::setw(16) << "Estimate" << std::setw(14) << "Std. error"
-        << "   " << intervalHead.str() << '\n';
-    for (std::size_t k = 0; k < names.size(); ++k) {
-        const auto i = static_cast<Eigen::Index>(k);
-        out << padded(names[k], nameWidth) << cell(st.estimates[i], 16, 10) << cell(st.standardErrors[i], 14)
-            << "   [" << formatNumber(st.lower[i], 6) << ", " << formatNumber(st.upper[i], 6) << "]\n";
-    }
-    out << "\nCorrelation of the estimates (" << st.covarianceMethod << "):\n";
-    out << padded("", nameWidth);
-    for (const auto& n : names) out << std::setw(10) << n;
-    out << '\n';
-    for (std::size_t k = 0; k < names.size(); ++k) {
-        out << padded(names[k], nameWidth);
-        for (std::size_t l = 0; l < names.size(); ++l) {
-            char buffer[32];
-            std::snprintf(buffer, sizeof buffer, "%10.4f",
-                          st.correlation(static_cast<Eigen::Index>(k), static_cast<Eigen::Index>(l)));
-            out << buffer;
-        }
-        out << '\n';
-    }
-    out << '\n';
-    out << "Rows: " << st.rows << ", parameters: " << st.parameters << ", degrees of freedom: " << st.degreesOfFreedom
-        << '\n';
-    out << "Residual sum of squares: " << formatNumber(st.residualSumOfSquares, 10)
-        << ", residual standard deviation: " << formatNumber(st.residualStandardDeviation, 8) << '\n';
-    if (st.likelihood)
-        out << "Log-likelihood: " << formatNumber(st.logLikelihood, 10) << ", deviance: " << formatNumber(st.deviance, 10)
-            << '\n';
-    out << "Jacobian with unit-norm columns: rank " << st.rank << " of " << st.parameters << ", condition number "
-        << formatNumber(st.scaledCondition, 4) << '\n';
-    if (!result.warnings.empty()) {
-        out << "\nWarnings:\n";
-        for (const auto& w : result.warnings) out << "  - " << w << '\n';
-    }
-    out << '\n' << kCaution;
+    printFitReport(out, *table, def, result, withTrace);
     return exitCodeFor({run});
 }
 

@@ -50,6 +50,7 @@ int runMethods(const std::vector<std::string>& args, std::ostream& out, std::ost
                                          {"range", o.rangeText()},
                                          {"description", o.description}};
                 if (o.type == solve::OptionSpec::Type::Choice) option["choices"] = o.choices;
+                if (!o.formerNames.empty()) option["former_names"] = o.formerNames;
                 options.push_back(option);
             }
             list.push_back({{"id", m.id},
@@ -74,7 +75,8 @@ int runMethods(const std::vector<std::string>& args, std::ostream& out, std::ost
         out << "  " << std::string(width, ' ') << "  needs: " << needsText(m) << '\n';
         for (const solve::OptionSpec& o : m.options)
             out << "  " << std::string(width, ' ') << "  --option " << o.name << "=" << o.defaultText() << "  ("
-                << o.rangeText() << ") " << o.description << '\n';
+                << o.rangeText() << ") " << o.description
+                << (o.formerNames.empty() ? std::string() : " [former name: " + o.formerNames.front() + "]") << '\n';
     }
     return 0;
 }

@@ -13,7 +13,7 @@ namespace {
 const char* kHelp =
     "Usage: saddlewise minimize FORMULA --from NAME=VALUE,... --method ID [--method ID ...]\n"
     "                           [--option NAME=VALUE ...] [--constants NAME=VALUE,...]\n"
-    "                           [--max-iterations N] [--max-evaluations N] [--gradient-tolerance X]\n"
+    "                           [--max-iterations N] [--max-evaluations N] [--gradient-norm-below X]\n"
     "                           [--summary] [--json]\n"
     "\n"
     "Minimizes FORMULA over the variables named in --from, starting at their values, with\n"
@@ -25,10 +25,15 @@ const char* kHelp =
     "  --option NAME=VALUE      a method option; applies to every chosen method that has it.\n"
     "                           Qualify it as METHOD.NAME=VALUE for one method only\n"
     "  --constants a=1,b=2      further names in the formula held fixed\n"
-    "  --max-iterations N       iteration limit per run (default 200)\n"
+    "  --max-iterations N       iteration limit per run (default 200, at most 100000000)\n"
     "  --max-evaluations N      value + gradient + Hessian evaluations per run (default 100000)\n"
-    "  --gradient-tolerance X   converged when the gradient norm is <= X (default 1e-8)\n"
+    "  --gradient-norm-below X  converged when the gradient norm is <= X (default 1e-8; the\n"
+    "                           former name --gradient-tolerance is still read)\n"
     "  --summary                leave out the per-iteration table (and the JSON trace)\n"
+    "\n"
+    "The per-iteration records of a run take at most about 16 MiB (256 KiB with --summary);\n"
+    "past that, records in the middle are thinned out (the first, the last 50, every k-th and\n"
+    "the notable ones stay) and the output says how many were dropped.\n"
     "  --json                   one JSON object (several methods: {\"runs\": [...]})\n"
     "\n"
     "Example:\n"
@@ -40,7 +45,7 @@ const char* kHelp =
 int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed = parseArgs(args, {"json", "summary"},
                                         {"from", "method", "option", "constants", "max-iterations",
-                                         "max-evaluations", "gradient-tolerance"});
+                                         "max-evaluations", "gradient-norm-below", "gradient-tolerance"});
     if (parsed.positional.size() != 1)
         throw UsageError(parsed.positional.empty() ? "give the formula to minimize"
                                                    : "give exactly one formula (quote it); got " +
@@ -67,13 +72,20 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
 
     solve::StoppingRules rules;
     if (parsed.has("max-iterations"))
-        rules.maxIterations = static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, 100000000));
+        rules.maxIterations = static_cast<int>(
+            parseInteger(parsed.get("max-iterations"), "--max-iterations", 0, solve::StoppingRules::kMaxIterationLimit));
+    // Records that are not printed are thinned to the smallest trace (first, last 50, notable).
+    if (parsed.has("summary")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     if (parsed.has("max-evaluations"))
         rules.maxEvaluations = parseInteger(parsed.get("max-evaluations"), "--max-evaluations", 1, 1000000000000L);
-    if (parsed.has("gradient-tolerance")) {
-        rules.gradientTolerance = parseNumber(parsed.get("gradient-tolerance"), "--gradient-tolerance");
-        if (rules.gradientTolerance < 0) throw UsageError("--gradient-tolerance must be >= 0");
-    }
+    if (parsed.has("gradient-norm-below") && parsed.has("gradient-tolerance"))
+        throw UsageError("--gradient-tolerance is the former name of --gradient-norm-below; give one of them");
+    for (const char* option : {"gradient-norm-below", "gradient-tolerance"})
+        if (parsed.has(option)) {
+            const std::string flag = std::string("--") + option;
+            rules.gradientTolerance = parseNumber(parsed.get(option), flag);
+            if (rules.gradientTolerance < 0) throw UsageError(flag + " must be >= 0");
+        }
 
     const FormulaObjective objective(parsed.positional[0], names, constants);  // FormulaError -> exit 2
 
@@ -86,12 +98,16 @@ int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::os
 
     const bool withTrace = !parsed.has("summary");
     if (parsed.has("json")) {
+        study::Provenance provenance;
+        provenance.formula = parsed.positional[0];
         if (runs.size() == 1) {
-            out << runToJson(runs[0], names, withTrace).dump(2) << '\n';
+            nlohmann::json one = nlohmann::json{{"provenance", provenanceJson(provenance)}};
+            one.update(runToJson(runs[0], names, withTrace));
+            out << one.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         } else {
             nlohmann::json all = nlohmann::json::array();
             for (const solve::Run& r : runs) all.push_back(runToJson(r, names, withTrace));
-            out << nlohmann::json{{"runs", all}}.dump(2) << '\n';
+            out << nlohmann::json{{"provenance", provenanceJson(provenance)}, {"runs", all}}.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         }
         return exitCodeFor(runs);
     }

@@ -4,6 +4,7 @@
 #include "app/cli/run_report.h"
 #include "core/report/study_run.h"
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 #include "core/study/study.h"
 
 #include <nlohmann/json.hpp>
@@ -20,7 +21,7 @@ const char* kHelp =
     "Runs every enabled method of the study's lineup from the study's start point, with the\n"
     "study's stopping rules, and prints one row per method: iterations, evaluations (value,\n"
     "gradient, Hessian), final value, gradient norm, how the run ended, and what kind of point\n"
-    "it ended on (minimum, saddle of index k, maximum, degenerate).\n"
+    "it ended on (local minimum, saddle of index k, local maximum, degenerate).\n"
     "\n"
     "The study is checked in full first; a problem is reported with its place in the file,\n"
     "e.g. 'methods[2].options.initial_radius: must be > 0 (got -1)'. For a data-fit study the\n"
@@ -56,6 +57,8 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         rules.maxIterations =
             static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 1, 1000000));
 
+    // Without --json no record is printed: keep only the smallest trace.
+    if (!parsed.has("json")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
     report::StudyRuns result;
     try {
         report::RunControl control;
@@ -66,7 +69,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     }
     const std::vector<solve::Run>& runs = result.runs;
     if (parsed.has("json")) {
-        out << report::studyRunsJson(result).dump(2) << '\n';
+        out << report::studyRunsJson(result).dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return exitCodeFor(runs);
     }
 
@@ -82,6 +85,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     out << '\n';
     for (std::size_t k = 0; k < runs.size(); ++k)
         out << "  " << runs[k].label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+    out << '\n' << wrapText(study::cautionLine(), 100);
     return exitCodeFor(runs);
 }
 

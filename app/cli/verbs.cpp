@@ -1,6 +1,7 @@
 #include "app/cli/cli.h"
 #include "app/cli/build_id.h"
 #include "core/expr/expr.h"
+#include "core/study/provenance.h"
 
 #include <exception>
 #include <ostream>
@@ -32,8 +33,8 @@ static void printOverview(std::ostream& out) {
         for (std::size_t i = v.name.size(); i < 10; ++i) out << ' ';
         out << ' ' << v.summary << '\n';
     }
-    out << "\nExit codes: 0 success, 1 the work failed, 2 bad usage or bad input.\n"
-           "Results are only as good as the model and the data: verify them before relying on them.\n";
+    out << "\nExit codes: 0 success, 1 the work failed, 2 bad usage or bad input.\n\n"
+        << wrapText(study::cautionLine(), 90);
 }
 
 int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std::ostream& err) {
@@ -44,7 +45,7 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
         return 0;
     }
     if (args[0] == "--version") {
-        out << "saddlewise " << version() << " (" << buildId() << ")\n";
+        out << "saddlewise " << study::programVersion() << " (" << buildId() << ")\n";
         return 0;
     }
     const Verb* verb = nullptr;

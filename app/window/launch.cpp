@@ -1,6 +1,7 @@
 #include "app/window/launch.h"
 
 #include "app/window/main_window.h"
+#include "core/study/provenance.h"
 
 #include <QApplication>
 #include <QDir>
@@ -35,7 +36,7 @@ int launch(int argc, char** argv) {
     QApplication app(argc, argv);
     QApplication::setApplicationName("Saddlewise");
     QApplication::setOrganizationName("Saddlewise");
-    QApplication::setApplicationVersion("0.1.0");
+    QApplication::setApplicationVersion(QString::fromLatin1(study::programVersion()));
     MainWindow window;
     const QStringList args = QApplication::arguments();
     if (args.size() > 1) {

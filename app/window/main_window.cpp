@@ -7,6 +7,7 @@
 #include "app/window/objective_editor.h"
 #include "app/window/report_writer.h"
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
 #include "widgets/landscape_view.h"
 #include "widgets/local_model_view.h"
@@ -634,10 +635,11 @@ void MainWindow::updateTitle() {
 
 void MainWindow::about() {
     QMessageBox::about(this, tr("About Saddlewise"),
-                       tr("<b>Saddlewise</b> %1<br>A workbench for watching optimization methods step across an "
-                          "objective: exact gradients and Hessians, paths side by side, the local quadratic model "
-                          "and the Hessian's eigenvalues at every iterate.")
-                           .arg(QCoreApplication::applicationVersion()));
+                       tr("<b>Saddlewise</b> %1<p>Finds out why a fit or a minimization stalls, zig-zags or ends "
+                          "on a saddle: exact gradients and Hessians of your formula or model, several methods run "
+                          "side by side from the same start, and at every iterate the landscape, the local quadratic "
+                          "model and the Hessian's eigenvalues.</p><p><i>%2</i></p>")
+                           .arg(QCoreApplication::applicationVersion(), QString::fromUtf8(study::cautionText())));
 }
 
 // ---------------------------------------------------------------- objective, lineup, runs
@@ -722,8 +724,7 @@ RunRequest MainWindow::runRequest() const {
     RunRequest request;
     request.objective = objective_;
     request.start = start();
-    request.rules.maxIterations = study_.maxIterations;
-    request.rules.gradientTolerance = study_.gradientTolerance;
+    request.rules = study_.stoppingRules();  // every stopping rule of the study, as the run verb uses them
     int index = 0;
     for (const auto& e : study_.methods) {
         const int slot = index++;
@@ -1061,7 +1062,11 @@ bool MainWindow::exportStepsCsv(const QString& path, QString* error) {
         if (error) *error = tr("there are no runs to export yet");
         return false;
     }
-    const QByteArray text = widgets::StepsModel::toCsv(*snapshot_).toUtf8();
+    // Where the numbers came from, and the caution, as comment lines above the header.
+    const QString preamble = QStringLiteral("# %1\n# %2\n").arg(
+        QString::fromStdString(study::provenanceLine(study::provenanceOf(study_))),
+        QString::fromStdString(study::cautionLine()));
+    const QByteArray text = (preamble + widgets::StepsModel::toCsv(*snapshot_)).toUtf8();
     QSaveFile file(path);
     if (!file.open(QIODevice::WriteOnly) || file.write(text) != text.size() || !file.commit()) {
         if (error) *error = tr("cannot write %1: %2").arg(path, file.errorString());

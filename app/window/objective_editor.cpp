@@ -214,8 +214,8 @@ void ObjectiveEditor::buildFitPage(QWidget* page) {
         {"weighted", QT_TR_NOOP("½ Σ w r² (weights or standard deviations from a column)")},
         {"huber", QT_TR_NOOP("Huber: quadratic near zero, linear beyond the scale")},
         {"cauchy", QT_TR_NOOP("Cauchy: grows like log(1 + (r/scale)²)")},
-        {"bernoulli-logit", QT_TR_NOOP("Logistic regression: the model is the log-odds; response 0/1")},
-        {"poisson-log", QT_TR_NOOP("Poisson counts: the model is the log of the mean")}};
+        {"logistic", QT_TR_NOOP("Logistic: the model is the log-odds of a 0/1 response")},
+        {"poisson", QT_TR_NOOP("Poisson: the model is the log of the mean count")}};
     for (const auto& [id, tip] : losses) {
         loss_->addItem(QString::fromLatin1(id), QString::fromLatin1(id));
         loss_->setItemData(loss_->count() - 1, tr(tip), Qt::ToolTipRole);

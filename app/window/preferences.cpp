@@ -193,7 +193,7 @@ PreferencesDialog::PreferencesDialog(const Preferences& current, QWidget* parent
         return box;
     };
     speed_ = spin(kSpeed, tr(" steps/s"), tr("How many iterations per second Play shows"));
-    logColour_ = new QCheckBox(tr("Colour by log10(f − f_min)"), this);
+    logColour_ = new QCheckBox(tr("Colour by log10(f − lowest f on the plane)"), this);
     logColour_->setToolTip(tr("A log colour scale shows both a deep valley floor and its steep walls"));
     connect(logColour_, &QCheckBox::toggled, this, &PreferencesDialog::readControls);
     levels_ = spin(kLevels, QString(), tr("How many contour lines the landscape draws"));

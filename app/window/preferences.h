@@ -18,7 +18,7 @@ enum class PaletteChoice { System, Light, Dark };
 
 struct Preferences {
     int animationSpeed = 5;  // iterations per second while animating, 1..60
-    bool logColour = false;  // landscape colour by log10(f - f_min) instead of f
+    bool logColour = false;  // landscape colour by log10(f - lowest f on the plane) instead of f
     int contourLevels = 14;  // contour lines on the landscape, 2..100
     int gridCells = 200;     // landscape resolution, cells per side, 20..2000
     int maxIterations = 200; // iteration limit of a new study, 1..1000000

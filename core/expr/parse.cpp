@@ -10,11 +10,13 @@
 //     Eval() because muParser reports syntax errors only when it first evaluates;
 //  3. the bytecode (reverse Polish) read token by token into our graph.
 #include "core/expr/graph.h"
+#include "core/expr/number_text.h"
 
 #include <muParser.h>
 
 #include <algorithm>
 #include <cctype>
+#include <cstdint>
 #include <cstring>
 #include <cmath>
 #include <deque>
@@ -71,6 +73,121 @@ std::string joinNames(const std::vector<std::string>& names) {
 
 std::string argumentWord(int n) { return n == 1 ? "1 argument" : std::to_string(n) + " arguments"; }
 
+// At most this many unknown names (and declared variables) are listed in one message.
+constexpr std::size_t kMaxListedNames = 10;
+
+std::string cappedList(const std::vector<std::string>& names, bool quote) {
+    std::string out;
+    const std::size_t shown = std::min(names.size(), kMaxListedNames);
+    for (std::size_t i = 0; i < shown; ++i) out += (i ? ", " : "") + (quote ? quoted(names[i]) : names[i]);
+    if (names.size() > shown) out += " and " + std::to_string(names.size() - shown) + " more";
+    return out;
+}
+
+std::string hexByte(unsigned char c) {
+    static const char* digits = "0123456789ABCDEF";
+    return std::string("0x") + digits[c >> 4] + digits[c & 15];
+}
+
+std::string codePointText(std::uint32_t cp) {
+    static const char* digits = "0123456789ABCDEF";
+    std::string hex;
+    for (int shift = cp > 0xFFFF ? 20 : 12; shift >= 0; shift -= 4) hex += digits[(cp >> shift) & 15];
+    return "U+" + hex;
+}
+
+const char* controlName(unsigned char c) {
+    static const char* names[32] = {"NUL", "SOH", "STX", "ETX", "EOT", "ENQ", "ACK", "BEL", "BS", "TAB", "LF",
+                                    "VT",  "FF",  "CR",  "SO",  "SI",  "DLE", "DC1", "DC2", "DC3", "DC4", "NAK",
+                                    "SYN", "ETB", "CAN", "EM",  "SUB", "ESC", "FS",  "GS",  "RS",  "US"};
+    return c < 32 ? names[c] : "DEL";
+}
+
+// Hints for characters people paste from documents.
+std::string nonAsciiHint(std::uint32_t cp) {
+    switch (cp) {
+        case 0x00D7: case 0x22C5: case 0x00B7: case 0x2219: return "; write * to multiply";
+        case 0x2212: case 0x2013: case 0x2014: return "; write the ASCII '-'";
+        case 0x00F7: case 0x2215: return "; write / to divide";
+        case 0x00B2: return "; write ^2";
+        case 0x00B3: return "; write ^3";
+        case 0x2264: return "; write <=";
+        case 0x2265: return "; write >=";
+        case 0x2260: return "; write !=";
+        case 0x03C0: return "; write pi";
+        case 0x00A0: case 0x2009: case 0x202F: return "; a non-breaking or thin space: write a plain space";
+        default: return "";
+    }
+}
+
+// Step 0: every byte must be printable ASCII or plain white space. Control bytes, invalid
+// UTF-8 and non-ASCII characters are named by code and column (never echoed raw), so a NUL
+// cannot cut the message short and a pasted 'x²' or 'α' is not misread as another name.
+void checkCharacters(const std::string& text) {
+    const int size = static_cast<int>(text.size());
+    for (int i = 0; i < size;) {
+        const auto c = static_cast<unsigned char>(text[i]);
+        if (c == ' ' || c == '\t' || c == '\n' || c == '\r') {
+            ++i;
+            continue;
+        }
+        if (c < 0x20 || c == 0x7F)
+            throw FormulaError(std::string("control character ") + controlName(c) + " (" + codePointText(c) +
+                                   ") in the formula; formulas are plain text",
+                               text, i);
+        if (c < 0x80) {
+            switch (c) {
+                case '"':
+                case '\'':
+                    throw FormulaError("quotes have no meaning in a formula (names and numbers are written without them)",
+                                       text, i);
+                case '[':
+                case ']':
+                case '{':
+                case '}':
+                    throw FormulaError(std::string("'") + static_cast<char>(c) +
+                                           "' has no meaning in a formula; group with ( and )",
+                                       text, i);
+                case ';':
+                    throw FormulaError("';' has no meaning in a formula (one formula only; a comma separates "
+                                       "function arguments)",
+                                       text, i);
+                case '$': case '#': case '@': case '~': case '`': case '\\': case '%':
+                    throw FormulaError(std::string("'") + static_cast<char>(c) + "' has no meaning in a formula", text, i);
+                default:
+                    ++i;
+                    continue;
+            }
+        }
+        // UTF-8: decode one character or name the byte that is not UTF-8.
+        int length = c >= 0xF0 && c <= 0xF4 ? 4 : c >= 0xE0 ? 3 : c >= 0xC2 && c <= 0xDF ? 2 : 0;
+        if (c >= 0xF5) length = 0;
+        std::uint32_t cp = length == 2 ? c & 0x1F : length == 3 ? c & 0x0F : c & 0x07;
+        bool valid = length > 0 && i + length <= size;
+        for (int k = 1; valid && k < length; ++k) {
+            const auto next = static_cast<unsigned char>(text[i + k]);
+            if ((next & 0xC0) != 0x80) valid = false;
+            cp = (cp << 6) | (next & 0x3F);
+        }
+        if (valid && ((length == 3 && (cp < 0x800 || (cp >= 0xD800 && cp <= 0xDFFF))) ||
+                      (length == 4 && (cp < 0x10000 || cp > 0x10FFFF))))
+            valid = false;
+        if (!valid)
+            throw FormulaError("byte " + hexByte(c) + " is not valid UTF-8 text", text, i);
+        const std::string hint = nonAsciiHint(cp);
+        const bool inName = hint.empty() && ((i > 0 && isNameChar(text[i - 1])) ||
+                                             (i + length < size && isNameChar(text[i + length])));
+        // Invisible or direction-changing characters are named by code only.
+        const bool invisible = (cp >= 0x80 && cp <= 0xA0) || cp == 0xAD || (cp >= 0x200B && cp <= 0x200F) ||
+                               (cp >= 0x2028 && cp <= 0x202F) || (cp >= 0x2060 && cp <= 0x206F) || cp == 0xFEFF ||
+                               cp >= 0xFFF0;
+        throw FormulaError("non-ASCII character " + (invisible ? std::string() : "'" + text.substr(i, length) + "' ") +
+                               "(" + codePointText(cp) + ")" +
+                               (inName ? " in a name; names use ASCII letters, digits and _" : " in the formula") + hint,
+                           text, i);
+    }
+}
+
 // Step 1: our own scan, for the errors muParser reports badly or not at all.
 void prescan(const std::string& text, const std::vector<std::string>& symbols) {
     struct Open {
@@ -82,6 +199,7 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
     };
     std::vector<Open> open;
     std::vector<std::string> unknown;
+    std::vector<int> questions;  // positions of '?' still waiting for their ':'
     int firstUnknown = -1;
     const auto isSymbol = [&](const std::string& n) { return std::find(symbols.begin(), symbols.end(), n) != symbols.end(); };
     const int size = static_cast<int>(text.size());
@@ -93,6 +211,7 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
         }
         if (!open.empty() && ch != ')') open.back().empty = false;
         if (std::isdigit(static_cast<unsigned char>(ch)) || (ch == '.' && i + 1 < size && std::isdigit(static_cast<unsigned char>(text[i + 1])))) {
+            const int start = i;
             while (i < size && (std::isdigit(static_cast<unsigned char>(text[i])) || text[i] == '.')) ++i;
             if (i < size && (text[i] == 'e' || text[i] == 'E')) {
                 int j = i + 1;
@@ -100,8 +219,18 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
                 if (j < size && std::isdigit(static_cast<unsigned char>(text[j]))) {
                     i = j;
                     while (i < size && std::isdigit(static_cast<unsigned char>(text[i]))) ++i;
+                } else if (j >= size || !isNameChar(text[j])) {
+                    throw FormulaError("the number " + quoted(text.substr(start, j - start)) +
+                                           " has an exponent without digits (write e.g. 1e5)",
+                                       text, start);
                 }
             }
+            // The one number rule (number_text.h): overflow and underflow are out of range.
+            const std::string literal = text.substr(start, i - start);
+            double value = 0;
+            const NumberStatus status = readDecimal(literal, value, false);
+            if (status == NumberStatus::TooLarge || status == NumberStatus::TooSmall)
+                throw FormulaError("the number " + outOfRangeText(literal, status), text, start);
             continue;
         }
         if (isNameStart(ch)) {
@@ -122,7 +251,9 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
                 if (static_cast<int>(open.size()) > kMaxNestingDepth)
                     throw FormulaError("parentheses are nested more than " + std::to_string(kMaxNestingDepth) + " deep", text, next);
                 i = next + 1;
-            } else if (!isSymbol(name) && name != "pi" && name != "e" && !findFunction(name)) {
+            } else if (!isSymbol(name) && findFunction(name)) {
+                throw FormulaError(quoted(name) + " is a function: write " + name + "(...)", text, start);
+            } else if (!isSymbol(name) && name != "pi" && name != "e") {
                 if (std::find(unknown.begin(), unknown.end(), name) == unknown.end()) unknown.push_back(name);
                 if (firstUnknown < 0) firstUnknown = start;
             }
@@ -160,6 +291,24 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
             ++open.back().commas;
             open.back().empty = true;  // an argument must follow
             break;
+        case '?': questions.push_back(i); break;
+        case ':':
+            if (!questions.empty()) questions.pop_back();
+            break;
+        case '!':
+            if (i + 1 >= size || text[i + 1] != '=')
+                throw FormulaError("'!' only appears in '!=' (for 'not x' write x == 0)", text, i);
+            break;
+        case '&':
+        case '|': {
+            const char pair[3] = {ch, ch, 0};
+            if (i + 1 >= size || text[i + 1] != ch)
+                throw FormulaError(quoted(std::string(1, ch)) + " alone has no meaning; write " + quoted(pair) +
+                                       (ch == '&' ? " for 'and'" : " for 'or'"),
+                                   text, i);
+            ++i;  // the pair is one operator
+            break;
+        }
         case '=': {
             const bool partOfComparison = (i > 0 && std::strchr("<>!=", text[i - 1])) || (i + 1 < size && text[i + 1] == '=');
             if (!partOfComparison)
@@ -174,11 +323,17 @@ void prescan(const std::string& text, const std::vector<std::string>& symbols) {
     }
     if (!open.empty()) throw FormulaError("this parenthesis is never closed", text, open.back().position);
     if (!unknown.empty()) {
-        std::string reason = (unknown.size() == 1 ? "unknown name " : "unknown names ");
-        for (std::size_t k = 0; k < unknown.size(); ++k) reason += (k ? ", " : "") + quoted(unknown[k]);
-        reason += symbols.empty() ? " (no variables are declared)" : "; the variables are " + joinNames(symbols);
+        std::string reason = (unknown.size() == 1 ? "unknown name " : "unknown names ") + cappedList(unknown, true);
+        reason += symbols.empty() ? " (no variables are declared)" : "; the variables are " + cappedList(symbols, false);
         throw FormulaError(reason, text, firstUnknown);
     }
+    // An operator at the very end has nothing to work on (muParser calls "x--" an internal error).
+    int last = size - 1;
+    while (last >= 0 && std::isspace(static_cast<unsigned char>(text[last]))) --last;
+    if (last >= 0 && std::strchr("+-*/^<>=!&|?:,", text[last]))
+        throw FormulaError("the formula ends after " + quoted(std::string(1, text[last])) + "; something must follow it",
+                           text, last);
+    if (!questions.empty()) throw FormulaError("'?' needs a ':' part (c ? a : b)", text, questions.back());
 }
 
 std::string describeParserError(const mu::ParserError& e) {
@@ -202,8 +357,34 @@ std::string describeParserError(const mu::ParserError& e) {
     case mu::ecINVALID_CHARACTERS_FOUND: return "the formula contains characters that cannot be read";
     case mu::ecEXPRESSION_TOO_LONG: return "the formula is too long";
     case mu::ecIDENTIFIER_TOO_LONG: return "a name is too long (over 255 characters)";
-    default: return "cannot read the formula: " + e.GetMsg();
+    // Text in quotes (strings) is no part of our formulas; the character check refuses quotes
+    // first, so these are guards. muParser's own sentences never reach the user.
+    case mu::ecUNEXPECTED_STR:
+    case mu::ecSTRING_EXPECTED:
+    case mu::ecVAL_EXPECTED:
+    case mu::ecOPRT_TYPE_CONFLICT:
+    case mu::ecSTR_RESULT:
+    case mu::ecUNTERMINATED_STRING: return "text in quotes has no meaning in a formula";
+    case mu::ecINTERNAL_ERROR: return "cannot read the formula here (is an operator missing its operand?)";
+    default: return "cannot read the formula here";
     }
+}
+
+// muParser places some errors after the offending token (an unexpected sign in "(--x)" is
+// reported at the 'x'); move the position back onto the token when the text says so.
+int positionOfError(const mu::ParserError& e, const std::string& text) {
+    const int size = static_cast<int>(text.size());
+    // muParser may place an error one past the end (e.g. "1+"); the caret then sits after the text.
+    int position = e.GetPos() < 0 ? -1 : std::min(e.GetPos(), size);
+    if (e.GetCode() == mu::ecUNEXPECTED_EOF) return size;
+    const std::string token = e.GetToken();
+    if (e.GetCode() == mu::ecUNEXPECTED_OPERATOR && position >= 0 && !token.empty() &&
+        text.compare(position, token.size(), token) != 0) {
+        const int before = position - static_cast<int>(token.size());
+        if (before >= 0 && text.compare(before, token.size(), token) == 0) position = before;
+    }
+    if (e.GetCode() == mu::ecINTERNAL_ERROR && position >= size) position = size > 0 ? size - 1 : -1;
+    return position;
 }
 
 void checkSymbolNames(const std::vector<std::string>& symbols) {
@@ -219,13 +400,18 @@ void checkSymbolNames(const std::vector<std::string>& symbols) {
 }  // namespace
 
 Expression Expression::parse(const std::string& text, const std::vector<std::string>& symbols) {
-    if (text.size() > kMaxFormulaLength)
-        throw FormulaError("the formula has " + std::to_string(text.size()) + " characters; the limit is " +
+    if (text.size() > kMaxFormulaLength) {
+        const auto characters = std::count_if(text.begin(), text.end(),
+                                              [](char c) { return (static_cast<unsigned char>(c) & 0xC0) != 0x80; });
+        if (static_cast<std::size_t>(characters) <= kMaxFormulaLength) checkCharacters(text);  // names the non-ASCII
+        throw FormulaError("the formula has " + std::to_string(characters) + " characters; the limit is " +
                                std::to_string(kMaxFormulaLength),
-                           text.substr(0, 80), -1);
+                           "", -1);
+    }
     if (std::all_of(text.begin(), text.end(), [](char c) { return std::isspace(static_cast<unsigned char>(c)); }))
         throw FormulaError("the formula is empty", text, -1);
     checkSymbolNames(symbols);
+    checkCharacters(text);
     prescan(text, symbols);
 
     std::vector<double> values(symbols.size(), 0.5);
@@ -266,11 +452,16 @@ Expression Expression::parse(const std::string& text, const std::vector<std::str
         parser.SetExpr(text);
         parser.Eval();  // muParser reports syntax errors only here
     } catch (const mu::ParserError& e) {
-        // muParser may place an error one past the end (e.g. "1+"); the caret then sits after the text.
-        const int size = static_cast<int>(text.size());
-        int position = e.GetPos() < 0 ? -1 : std::min(e.GetPos(), size);
-        if (e.GetCode() == mu::ecUNEXPECTED_EOF) position = size;
-        throw FormulaError(describeParserError(e), text, position);
+        const int position = positionOfError(e, text);
+        std::string reason = describeParserError(e);
+        // Two signs in a row ("--x"): muParser takes only one.
+        if (e.GetCode() == mu::ecUNEXPECTED_OPERATOR && (e.GetToken() == "-" || e.GetToken() == "+") && position > 0) {
+            int previous = position - 1;
+            while (previous >= 0 && std::isspace(static_cast<unsigned char>(text[previous]))) --previous;
+            if (previous >= 0 && (text[previous] == '-' || text[previous] == '+'))
+                reason += " (two signs in a row: write -(-x) or just x)";
+        }
+        throw FormulaError(reason, text, position);
     }
     if (!strayNames.empty()) {
         auto pos = text.find(strayNames.front());

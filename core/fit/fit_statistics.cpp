@@ -19,6 +19,9 @@ constexpr double kNearlyDeficientCondition = 1e8;  // common practice, no publis
 constexpr double kUnidentifiableCorrelation = 0.99;
 constexpr double kScaleSpread = 1e6;
 constexpr double kPoorlyDetermined = 100;  // standard error / |estimate|; common practice, no published source
+// A parameter with a larger share than this in the (unit-norm) null space of the scaled
+// design is not determined by the data; common practice, no published source.
+constexpr double kNullSpaceShare = 1e-6;
 
 std::string num(double v, int digits = 4) {
     char buffer[40];
@@ -108,7 +111,7 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
     for (int j = 0; j < p; ++j)
         if (!(safeNorm[j] > 0)) safeNorm[j] = 1.0;
     Matrix normalized = design * safeNorm.cwiseInverse().asDiagonal();
-    Eigen::JacobiSVD<Matrix> svd(normalized, Eigen::ComputeThinV);
+    Eigen::JacobiSVD<Matrix> svd(normalized, Eigen::ComputeFullV);
     s.singularValues = svd.singularValues();
     const double sMax = s.singularValues.size() ? s.singularValues[0] : 0.0;
     const double rankTol = sMax * std::numeric_limits<double>::epsilon() * std::max(m, p);
@@ -120,6 +123,31 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
     const double sMin = s.singularValues.size() == p ? s.singularValues[p - 1] : 0.0;
     s.scaledCondition = sMin > 0 ? sMax / sMin : std::numeric_limits<double>::infinity();
 
+    // The null space of the scaled design: singular vectors with singular values at or below
+    // the rank tolerance, and every direction beyond min(m, p) when there are fewer rows.
+    const Matrix& fullV = svd.matrixV();
+    std::vector<Eigen::Index> nullColumns;
+    for (Eigen::Index k = 0; k < p; ++k)
+        if (k >= s.singularValues.size() || !(s.singularValues[k] > rankTol)) nullColumns.push_back(k);
+    // A zero column (the model does not depend on that parameter here) is a null direction too.
+    Matrix nullBasis(p, static_cast<Eigen::Index>(nullColumns.size()));
+    for (std::size_t k = 0; k < nullColumns.size(); ++k) nullBasis.col(static_cast<Eigen::Index>(k)) = fullV.col(nullColumns[k]);
+    s.notDetermined.assign(static_cast<std::size_t>(p), false);
+    std::vector<Eigen::Index> undetermined;
+    for (int j = 0; j < p; ++j) {
+        const bool zeroColumn = !(columnNorm[j] > 0);
+        if (zeroColumn || (nullBasis.cols() > 0 && nullBasis.row(j).norm() > kNullSpaceShare)) {
+            s.notDetermined[static_cast<std::size_t>(j)] = true;
+            undetermined.push_back(j);
+        }
+    }
+
+    // Residual degrees of freedom: rows minus the parameters the data determine (the rank of
+    // the scaled design), as for a rank-deficient linear model (common practice, e.g. R's lm:
+    // n - rank). With every parameter determined this is rows - parameters, as before.
+    s.degreesOfFreedom = m - (p - static_cast<int>(nullColumns.size()));
+    s.residualStandardDeviation = s.degreesOfFreedom > 0 ? std::sqrt(rss / s.degreesOfFreedom) : kNaN;
+
     if (def.loss == Loss::LeastSquares || def.loss == Loss::Weighted) {
         s.covarianceMethod = "s^2 (J'J)^-1";
         // (J'J)^+ = D^-1 V S^-2 V' D^-1 with J D^-1 = U S V' (column-scaled, so the pseudo-inverse
@@ -127,7 +155,7 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
         Vector invSq = Vector::Zero(s.singularValues.size());
         for (Eigen::Index i = 0; i < invSq.size(); ++i)
             if (s.singularValues[i] > rankTol) invSq[i] = 1.0 / (s.singularValues[i] * s.singularValues[i]);
-        const Matrix v = safeNorm.cwiseInverse().asDiagonal() * svd.matrixV();
+        const Matrix v = safeNorm.cwiseInverse().asDiagonal() * svd.matrixV().leftCols(invSq.size());
         const double s2 = s.degreesOfFreedom > 0 ? rss / s.degreesOfFreedom : kNaN;
         s.covariance = s2 * (v * invSq.asDiagonal() * v.transpose());
     } else {
@@ -163,6 +191,64 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
     s.criticalValue = s.likelihood ? normalQuantile(upperProbability)
                                    : (s.degreesOfFreedom > 0 ? studentTQuantile(upperProbability, s.degreesOfFreedom)
                                                              : kNaN);
+    // Combinations the data do determine: directions w among the undetermined parameters
+    // (in scaled units) orthogonal to the null space, i.e. the null space of N_U' (N_U: the
+    // null basis restricted to those parameters). In parameter units the coefficients are
+    // w_j / (1 / column norm_j) = w_j * norm_j.
+    if (!undetermined.empty() && nullBasis.cols() > 0) {
+        const auto u = static_cast<Eigen::Index>(undetermined.size());
+        Matrix restricted(u, nullBasis.cols());
+        for (Eigen::Index r = 0; r < u; ++r) restricted.row(r) = nullBasis.row(undetermined[static_cast<std::size_t>(r)]);
+        Eigen::JacobiSVD<Matrix> split(restricted, Eigen::ComputeFullU);
+        const Vector& values = split.singularValues();
+        int restrictedRank = 0;
+        for (Eigen::Index k = 0; k < values.size(); ++k)
+            if (values[k] > kNullSpaceShare) ++restrictedRank;
+        for (Eigen::Index k = restrictedRank; k < u; ++k) {
+            const Vector direction = split.matrixU().col(k);
+            DeterminedCombination c;
+            c.coefficients = Vector::Zero(p);
+            for (Eigen::Index r = 0; r < u; ++r) {
+                const Eigen::Index j = undetermined[static_cast<std::size_t>(r)];
+                c.coefficients[j] = direction[r] * safeNorm[j];
+            }
+            const double largest = c.coefficients.cwiseAbs().maxCoeff();
+            if (!(largest > 0)) continue;
+            c.coefficients /= largest;
+            for (int j = 0; j < p; ++j) {
+                if (std::fabs(c.coefficients[j]) < 1e-12) c.coefficients[j] = 0;
+            }
+            for (int j = 0; j < p; ++j)
+                if (c.coefficients[j] != 0) {
+                    if (c.coefficients[j] < 0) c.coefficients = -c.coefficients;
+                    break;
+                }
+            for (int j = 0; j < p; ++j) {
+                const double a = c.coefficients[j];
+                if (a == 0) continue;
+                const bool leading = c.text.empty();
+                const std::string name = s.names[static_cast<std::size_t>(j)];
+                const double magnitude = std::fabs(a);
+                const std::string term = std::fabs(magnitude - 1) < 1e-9 ? name : num(magnitude) + "*" + name;
+                c.text += leading ? (a < 0 ? "-" + term : term) : (a < 0 ? " - " : " + ") + term;
+            }
+            c.estimate = c.coefficients.dot(x);
+            const double variance = c.coefficients.dot(s.covariance * c.coefficients);
+            c.standardError = std::isfinite(variance) ? std::sqrt(std::max(0.0, variance)) : kNaN;
+            c.lower = c.estimate - s.criticalValue * c.standardError;
+            c.upper = c.estimate + s.criticalValue * c.standardError;
+            s.determinedCombinations.push_back(std::move(c));
+        }
+    }
+    // No error, interval, covariance or correlation for what the data cannot determine: the
+    // pseudo-inverse would give finite numbers that depend on the start.
+    for (Eigen::Index j : undetermined) {
+        s.standardErrors[j] = kNaN;
+        for (int i = 0; i < p; ++i) {
+            s.covariance(i, j) = s.covariance(j, i) = kNaN;
+            if (i != j) s.correlation(i, j) = s.correlation(j, i) = kNaN;
+        }
+    }
     s.lower = s.estimates - s.criticalValue * s.standardErrors;
     s.upper = s.estimates + s.criticalValue * s.standardErrors;
 
@@ -177,6 +263,29 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
                              std::to_string(p) + " (singular values with unit-norm columns: " +
                              listOf(s.singularValues) +
                              "). Some parameter combinations are not determined by these data.");
+    if (!undetermined.empty()) {
+        std::string names;
+        for (std::size_t k = 0; k < undetermined.size(); ++k)
+            names += (k ? (k + 1 == undetermined.size() ? " and " : ", ") : "") +
+                     s.names[static_cast<std::size_t>(undetermined[k])];
+        std::string sentence = (undetermined.size() == 1 ? "Parameter " + names + " is" : "Parameters " + names + " are") +
+                               " not determined by the data: no standard error or interval is given for " +
+                               (undetermined.size() == 1 ? "it" : "them") +
+                               ", and the estimate depends on the start.";
+        if (s.determinedCombinations.empty()) {
+            sentence += " The model does not depend on " + std::string(undetermined.size() == 1 ? "it" : "them") +
+                        " here in any way the data can see.";
+        } else {
+            sentence += " Near these estimates the data determine only ";
+            for (std::size_t k = 0; k < s.determinedCombinations.size(); ++k) {
+                const DeterminedCombination& c = s.determinedCombinations[k];
+                sentence += (k ? "; and " : "") + c.text + " = " + num(c.estimate, 6) +
+                            (std::isfinite(c.standardError) ? " (standard error " + num(c.standardError) + ")" : "");
+            }
+            sentence += ".";
+        }
+        s.warnings.push_back(sentence);
+    }
     else if (s.scaledCondition > kNearlyDeficientCondition)
         s.warnings.push_back("The Jacobian is nearly rank-deficient: condition number " + num(s.scaledCondition) +
                              " with unit-norm columns (singular values: " + listOf(s.singularValues) +
@@ -196,10 +305,20 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
                                  num(kPoorlyDetermined) + " times its estimate " + num(x[j]) +
                                  " (the model hardly depends on it here; try another start or model).");
     }
+    // Magnitudes: only parameters that are determined and not zero in effect count (zero
+    // within their uncertainty, or too small to change the model beyond rounding: a constant
+    // response leaves a slope of 3e-18 that says nothing about scaling).
+    const double modelNorm = model.norm();
+    auto zeroInEffect = [&](int j) {
+        const double a = std::fabs(x[j]), se = s.standardErrors[j];
+        if (std::isfinite(se) && std::isfinite(s.criticalValue) && a <= s.criticalValue * se) return true;
+        return a * dm.col(j).norm() <= 64 * std::numeric_limits<double>::epsilon() * modelNorm;
+    };
     int smallest = -1, largest = -1;
     for (int j = 0; j < p; ++j) {
         const double a = std::fabs(x[j]);
         if (!(a > 0) || !std::isfinite(a)) continue;
+        if (s.notDetermined[static_cast<std::size_t>(j)] || zeroInEffect(j)) continue;
         if (smallest < 0 || a < std::fabs(x[smallest])) smallest = j;
         if (largest < 0 || a > std::fabs(x[largest])) largest = j;
     }

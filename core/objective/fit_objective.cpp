@@ -23,8 +23,8 @@ const char* toString(Loss loss) {
         case Loss::Weighted: return "weighted";
         case Loss::Huber: return "huber";
         case Loss::Cauchy: return "cauchy";
-        case Loss::BernoulliLogit: return "bernoulli-logit";
-        case Loss::PoissonLog: return "poisson-log";
+        case Loss::BernoulliLogit: return "logistic";
+        case Loss::PoissonLog: return "poisson";
     }
     return "?";
 }
@@ -36,10 +36,13 @@ bool parseLoss(const std::string& text, Loss& loss) {
             loss = l;
             return true;
         }
+    // Former ids (docs/names.md): read, never written.
+    if (text == "bernoulli-logit") return loss = Loss::BernoulliLogit, true;
+    if (text == "poisson-log") return loss = Loss::PoissonLog, true;
     return false;
 }
 
-std::string lossList() { return "least-squares, weighted, huber, cauchy, bernoulli-logit, poisson-log"; }
+std::string lossList() { return "least-squares, weighted, huber, cauchy, logistic, poisson"; }
 bool isLikelihood(Loss loss) { return loss == Loss::BernoulliLogit || loss == Loss::PoissonLog; }
 bool hasResidualForm(Loss loss) { return loss == Loss::LeastSquares || loss == Loss::Weighted; }
 
@@ -596,10 +599,10 @@ FitObjective::FitObjective(std::shared_ptr<const Table> table, FitDefinition def
         const double yi = d.y[static_cast<Eigen::Index>(i)];
         if (def.loss == Loss::BernoulliLogit && !(yi >= 0 && yi <= 1))
             throw FitError("response column '" + def.response + "', " + lineOf(i) +
-                           ": the bernoulli-logit loss needs responses in [0, 1] (got " + numberText(yi) + ")");
+                           ": the logistic loss needs responses in [0, 1] (got " + numberText(yi) + ")");
         if (def.loss == Loss::PoissonLog && !(yi >= 0))
             throw FitError("response column '" + def.response + "', " + lineOf(i) +
-                           ": the poisson-log loss needs counts >= 0 (got " + numberText(yi) + ")");
+                           ": the poisson loss needs counts >= 0 (got " + numberText(yi) + ")");
     }
 
     // Every name in the model must be a parameter or a column.

@@ -13,9 +13,9 @@
 //                     column of standard deviations (one of them is required)
 //   huber  (scale c)  1/2 r^2 when |r| <= c, else c (|r| - c/2)      (Huber 1964)
 //   cauchy (scale c)  c^2/2 ln(1 + (r/c)^2)                          (the Lorentzian loss)
-//   bernoulli-logit   ln(1 + e^m) - y m, the negative log-likelihood of y in {0, 1} with
+//   logistic          ln(1 + e^m) - y m, the negative log-likelihood of y in {0, 1} with
 //                     P(y = 1) = 1 / (1 + e^-m): m is the linear predictor (logistic regression)
-//   poisson-log       e^m - y m + ln(y!), the negative log-likelihood of a count y with mean
+//   poisson           e^m - y m + ln(y!), the negative log-likelihood of a count y with mean
 //                     e^m: m is the linear predictor (log link)
 //
 // Derivatives are exact: the model's gradient and Hessian in the parameters are symbolic
@@ -43,10 +43,11 @@
 namespace sw {
 
 enum class Loss { LeastSquares, Weighted, Huber, Cauchy, BernoulliLogit, PoissonLog };
-const char* toString(Loss loss);  // "least-squares", "weighted", "huber", "cauchy", "bernoulli-logit", "poisson-log"
+const char* toString(Loss loss);  // "least-squares", "weighted", "huber", "cauchy", "logistic", "poisson"
+// Also reads the former ids "bernoulli-logit" and "poisson-log" (docs/names.md).
 bool parseLoss(const std::string& text, Loss& loss);
 std::string lossList();  // "least-squares, weighted, ..." for messages
-bool isLikelihood(Loss loss);       // bernoulli-logit, poisson-log
+bool isLikelihood(Loss loss);       // logistic, poisson
 bool hasResidualForm(Loss loss);    // least-squares, weighted
 
 // loss(y, m) and its first two derivatives in m, per unit weight (see the header comment).

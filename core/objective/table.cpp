@@ -1,5 +1,9 @@
 #include "core/objective/table.h"
 
+#include "core/expr/number_text.h"
+#include "core/objective/text_file.h"
+
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <deque>
@@ -82,11 +86,49 @@ char separatorChar(Separator s) {
 
 bool isBlank(char c) { return c == ' ' || c == '\t' || c == '\r'; }
 
-// Shortens a cell for a message.
+// Length of the valid UTF-8 character at s[i], or 0 when the byte there does not start one.
+std::size_t utf8Length(std::string_view s, std::size_t i) {
+    const auto c = static_cast<unsigned char>(s[i]);
+    if (c < 0x80) return 1;
+    const std::size_t length = c >= 0xF0 && c <= 0xF4 ? 4 : c >= 0xE0 && c <= 0xEF ? 3 : c >= 0xC2 && c <= 0xDF ? 2 : 0;
+    if (length == 0 || i + length > s.size()) return 0;
+    for (std::size_t k = 1; k < length; ++k)
+        if ((static_cast<unsigned char>(s[i + k]) & 0xC0) != 0x80) return 0;
+    return length;
+}
+
+// Shortens a cell for a message; control bytes and bytes that are not UTF-8 are shown by
+// code (\x00), never raw.
 std::string shown(std::string_view s) {
-    std::string t(s.substr(0, 40));
-    if (s.size() > 40) t += "...";
+    std::string t;
+    std::size_t i = 0, characters = 0;
+    while (i < s.size() && characters < 40) {
+        const std::size_t length = utf8Length(s, i);
+        const auto c = static_cast<unsigned char>(s[i]);
+        if (length == 0 || c < 0x20 || c == 0x7F) {
+            static const char* hex = "0123456789ABCDEF";
+            t += "\\x";
+            t += hex[c >> 4];
+            t += hex[c & 15];
+            ++i;
+        } else {
+            t.append(s.substr(i, length));
+            i += length;
+        }
+        ++characters;
+    }
+    if (i < s.size()) t += "...";
     return "'" + t + "'";
+}
+
+// The first byte that is not part of valid UTF-8 text, or npos.
+std::size_t firstInvalidUtf8(std::string_view s) {
+    for (std::size_t i = 0; i < s.size();) {
+        const std::size_t length = utf8Length(s, i);
+        if (length == 0) return i;
+        i += length;
+    }
+    return std::string_view::npos;
 }
 
 std::string_view trimmed(std::string_view s, char sep) {
@@ -242,17 +284,24 @@ private:
 
 bool looksMissing(std::string_view cell) { return cell.empty() || cell == "NA"; }
 
-// Strict number: optional sign, digits, '.', exponent; whole cell; finite.
-bool parseNumber(std::string_view cell, double& value) {
-    const char* first = cell.data();
-    const char* last = cell.data() + cell.size();
-    if (first != last && *first == '+') ++first;
-    if (first == last) return false;
-    // from_chars also reads "inf"/"nan"; only digits and '.' may start a number here.
-    const char lead = (*first == '-' && first + 1 != last) ? first[1] : *first;
-    if (!((lead >= '0' && lead <= '9') || lead == '.')) return false;
-    auto [ptr, ec] = std::from_chars(first, last, value);
-    return ec == std::errc() && ptr == last;
+// Before reading records: bytes a text table cannot hold, and line ends it would misread.
+void checkText(std::string_view text, const std::string& source) {
+    if (const auto nul = text.find('\0'); nul != std::string_view::npos) {
+        const TextPlace place = placeOfByte(std::string(text.substr(0, nul + 1)), nul);
+        throw TableError(source, place.line, 0, "",
+                         "a NUL byte at character " + std::to_string(place.column) +
+                             " of the line: this is not a text table (binary data?)");
+    }
+    // A carriage return not followed by a line feed: classic Mac line ends (CR only), which
+    // would read as one long line.
+    for (std::size_t p = text.find('\r'); p != std::string_view::npos; p = text.find('\r', p + 1)) {
+        if (p + 1 < text.size() && text[p + 1] == '\n') continue;
+        if (p + 1 == text.size()) break;  // a CR at the very end is harmless
+        const long line = 1 + static_cast<long>(std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(p), '\n'));
+        throw TableError(source, line, 0, "",
+                         "a line ends with a carriage return (CR) alone: the file has CR-only line ends (classic "
+                         "Mac); save it with LF or CRLF line ends");
+    }
 }
 
 }  // namespace
@@ -272,6 +321,7 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
         throw TableError(source, 1, 0, "", "the file is UTF-16 encoded; save it as UTF-8 (with or without BOM)");
     }
 
+    checkText(text, source);
     RecordReader reader(text, start, source);
     if (!reader.nextContentLine())
         throw TableError(source, 0, 0, "", "the table is empty (no header row; blank and '#' lines are ignored)");
@@ -292,6 +342,9 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
         std::string name(fields[c].quoted ? fields[c].text : trimmed(fields[c].text, sep));
         const int column = static_cast<int>(c) + 1;
         if (name.empty()) throw TableError(source, headerLine, column, "", "empty column name in the header row");
+        if (const auto bad = firstInvalidUtf8(name); bad != std::string::npos)
+            throw TableError(source, headerLine, column, "",
+                             "the column name " + shown(name) + " is not UTF-8 text (save the file as UTF-8)");
         for (std::size_t k = 0; k < c; ++k)
             if (table.columnNames[k] == name)
                 throw TableError(source, headerLine, column, name,
@@ -334,7 +387,12 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
                                      (cell.empty() ? std::string("empty cell") : "missing value " + shown(cell)) +
                                      " (the drop-incomplete option skips such rows)");
             }
-            if (!parseNumber(cell, row[c])) {
+            // The one number rule (core/expr/number_text.h): overflow and underflow are out of range.
+            const NumberStatus status = readDecimal(cell, row[c]);
+            if (status == NumberStatus::TooLarge || status == NumberStatus::TooSmall)
+                throw TableError(source, line, column, std::string(cell),
+                                 "column '" + table.columnNames[c] + "': " + outOfRangeText(cell, status));
+            if (status != NumberStatus::Ok) {
                 std::string reason = "column '" + table.columnNames[c] + "': " + shown(cell) + " is not a number";
                 if (cell.find(',') != std::string_view::npos) reason += " (use '.' as the decimal point)";
                 throw TableError(source, line, column, std::string(cell), reason);
@@ -360,13 +418,12 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
 }
 
 Table readTable(const std::string& path, const TableReadOptions& options) {
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw TableError(path, 0, 0, "", "cannot open the file for reading");
-    in.seekg(0, std::ios::end);
-    const std::streamoff size = in.tellg();
-    in.seekg(0, std::ios::beg);
-    std::string text(static_cast<std::size_t>(size < 0 ? 0 : size), '\0');
-    if (size > 0 && !in.read(text.data(), size)) throw TableError(path, 0, 0, "", "the file could not be read");
+    std::string text;
+    try {
+        text = readTextFile(path, kMaxTableBytes);  // pipes and /proc files too; stops at a NUL
+    } catch (const TextFileError& e) {
+        throw TableError(path, 0, 0, "", std::string("the data file ") + e.what());
+    }
     return parseTable(text, options, path);
 }
 

@@ -6,6 +6,7 @@
 #include "core/objective/fit_objective.h"
 #include "core/objective/formula_objective.h"
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 
 #include <openssl/evp.h>
 
@@ -113,20 +114,32 @@ std::string lossDescription(const std::string& loss) {
     if (loss == "weighted") return "weighted least squares: f = ½ Σ w (y − model)²";
     if (loss == "huber") return "Huber (robust): quadratic for small residuals, linear beyond the scale";
     if (loss == "cauchy") return "Cauchy (robust): f = Σ c²/2 ln(1 + (r/c)²)";
-    if (loss == "bernoulli-logit") return "Bernoulli likelihood with logit link (logistic regression); model = linear predictor";
-    if (loss == "poisson-log") return "Poisson likelihood with log link; model = linear predictor";
+    if (loss == "logistic" || loss == "bernoulli-logit") return "Bernoulli likelihood with logit link (logistic regression); model = linear predictor";
+    if (loss == "poisson" || loss == "poisson-log") return "Poisson likelihood with log link; model = linear predictor";
     return loss;
+}
+
+// The words of solve::describe(PointKind) for the ids of solve::toString(PointKind).
+std::string pointKindWords(const std::string& kind) {
+    if (kind == "minimum") return "local minimum";
+    if (kind == "maximum") return "local maximum";
+    if (kind == "degenerate") return "degenerate point";
+    if (kind == "not-critical") return "not a critical point";
+    if (kind == "unknown") return "not classified";
+    return kind;
 }
 
 std::string endPointText(const json& run) {
     const json& end = run.contains("end_point") ? run["end_point"] : json::object();
-    std::string kind = text(end, "kind", "unknown");
+    const std::string kind = text(end, "kind", "unknown");
+    std::string words = pointKindWords(kind);
     if (kind == "saddle" && end.contains("index") && end["index"].is_number())
-        kind += " (index " + std::to_string(end["index"].get<int>()) + ")";
-    if (kind == "unknown") return "not classified";
-    if (end.contains("critical") && end["critical"].is_boolean() && !end["critical"].get<bool>())
-        return "not stationary; curvature of a " + kind;
-    return kind;
+        words += " (index " + std::to_string(end["index"].get<int>()) + ")";
+    if (kind == "not-critical") {
+        const std::string curvature = text(end, "curvature", "unknown");
+        if (curvature != "unknown") words += " (curvature of a " + pointKindWords(curvature) + ")";
+    }
+    return words;
 }
 
 std::string evaluationsText(const json& run) {
@@ -219,10 +232,9 @@ Section cautionSection() {
     s.blocks.push_back(callout(
         "caution",
         {strong("Read before relying on these results. "),
-         plain("A fit is only as good as the model and the data, and a minimizer's answer only as good as its start, "
-               "its settings and its stopping rules: this report documents one set of them. Verify the results "
-               "independently before relying on them, and where safety is involved defer to the applicable codes and "
-               "to licensed professional practice.")}));
+         plain("This report documents one set of starts, settings and stopping rules; a minimizer's answer is only as "
+               "good as those. "),
+         plain(study::cautionText())}));
     return s;
 }
 
@@ -253,7 +265,7 @@ Section objectiveSection(const ReportInput& in) {
     const json& variables = st.contains("variables") ? st["variables"] : json::array();
     for (const json& v : variables)
         vars.rows.push_back({codeCell(text(v, "name")), numberCell(numberText(v["start"], kPointDigits)),
-                             numberCell(numberText(v["lower"], kPointDigits)), numberCell(numberText(v["upper"], kPointDigits))});
+                             numberCell(numberText(v["plot_from"], kPointDigits)), numberCell(numberText(v["plot_to"], kPointDigits))});
     s.blocks.push_back(table(vars));
     s.blocks.push_back(paragraph("The box is the region the landscape plot shows; the methods are not confined to it."));
 
@@ -404,7 +416,7 @@ Section endPointsSection(const ReportInput& in) {
     s.blocks.push_back(paragraph(
         "Where each method ended. Evaluations count values / gradients / Hessians. The end point is classified by the "
         "Hessian's eigenvalues there (a saddle's index is its number of negative eigenvalues); a point where the "
-        "gradient is not small is not stationary, and only its curvature is given."));
+        "gradient is not small enough is not a critical point, and only its curvature is given."));
     Table t{{"method", "final value f", "|∇f|", "end point", "iterations", "evaluations", "termination"}, {}, false};
     for (const json& run : runs) {
         std::vector<Cell> row;
@@ -461,83 +473,123 @@ Section endPointsSection(const ReportInput& in) {
     return s;
 }
 
-// Findings' parts, as issue 10's JSON may give them: iterations as a list or as a span
-// {first, last}; evidence as a number or {value, unit}; an outcome as a sentence or as
-// {termination, value, end_point}.
+// Findings (issue 10), read from the runs' JSON exactly as `run --json` prints them
+// (docs/findings.md): id, severity, title, iterations {first, last, focus, notable}, evidence
+// {name: number}, evidence_detail [{name, value, unit, meaning}], message, remedy {change
+// {kind, text, ...}, outcome {helped, text, termination, converged, value, gradient_norm, x,
+// end_point, end_index, critical, iterations, evaluations} | null} | null.
+
 std::string iterationsText(const json& j) {
-    std::string t;
-    if (j.is_array())
-        for (const json& k : j) t += (t.empty() ? "" : ", ") + numberText(k, 17);
-    else if (j.is_object() && j.contains("first"))
-        t = numberText(j["first"], 17) + (j.contains("last") && j["last"] != j["first"] ? "–" + numberText(j["last"], 17) : "");
-    else if (j.is_number())
-        t = numberText(j, 17);
-    return t.empty() ? "–" : t;
+    if (!j.is_object() || !j.contains("first") || !j["first"].is_number()) return "";
+    const std::string first = numberText(j["first"], 17);
+    const std::string last = j.contains("last") && j["last"].is_number() ? numberText(j["last"], 17) : first;
+    return first == last ? "iteration " + first : "iterations " + first + "–" + last;
 }
 
-std::string evidenceText(const json& v) {
-    if (v.is_number()) return numberText(v, 4);
-    if (v.is_string()) return v.get<std::string>();
-    if (v.is_object() && v.contains("value"))
-        return numberText(v["value"], 4) + (text(v, "unit").empty() ? "" : " " + text(v, "unit"));
-    return v.dump();
+// The evidence as rows: evidence_detail in its reading order, else the evidence object.
+std::vector<std::vector<Cell>> evidenceRows(const json& f) {
+    std::vector<std::vector<Cell>> rows;
+    if (f.contains("evidence_detail") && f["evidence_detail"].is_array() && !f["evidence_detail"].empty()) {
+        for (const json& e : f["evidence_detail"])
+            rows.push_back({codeCell(text(e, "name")), numberCell(numberText(e.value("value", json()), 4)),
+                            cell(text(e, "unit")), cell(text(e, "meaning"))});
+    } else if (f.contains("evidence") && f["evidence"].is_object()) {
+        for (const auto& [name, value] : f["evidence"].items())
+            rows.push_back({codeCell(name), numberCell(numberText(value, 4)), cell(""), cell("")});
+    }
+    return rows;
 }
 
-std::string outcomeText(const json& o) {
-    if (o.is_string()) return o.get<std::string>();
-    if (!o.is_object()) return o.dump();
-    std::string t = text(o, "message");
-    if (!t.empty()) return t;
-    t = text(o, "termination");
-    if (o.contains("value")) t += (t.empty() ? "" : ", ") + std::string("f = ") + numberText(o["value"], kValueDigits);
-    if (o.contains("end_point")) t += ", " + endPointText(o);
-    if (o.contains("iterations")) t += ", " + numberText(o["iterations"], 17) + " iterations";
+// What the remedy's rerun did, in numbers: how it ended, f, |∇f|, the end point, its cost.
+std::string outcomeNumbers(const json& o) {
+    std::string t = text(o, "termination");
+    if (o.contains("iterations") && o["iterations"].is_number())
+        t += (t.empty() ? "" : " after ") + numberText(o["iterations"], 17) + " iterations";
+    if (o.contains("value")) t += "; f = " + numberText(o["value"], kValueDigits);
+    if (o.contains("gradient_norm")) t += ", |∇f| = " + numberText(o["gradient_norm"], kGradientDigits);
+    if (o.contains("end_point") && o["end_point"].is_string()) {
+        json end = {{"kind", o["end_point"]}, {"index", o.value("end_index", 0)}};
+        t += "; end point: " + endPointText(json{{"end_point", end}});
+    }
+    if (o.contains("evaluations") && o["evaluations"].is_object())
+        t += "; evaluations " + evaluationsText(o);
     return t;
 }
 
-// Findings (issue 10) as the runs' JSON carries them: id, severity, iterations, evidence
-// (named numbers), message, remedy {change, outcome}.
+std::string capitalized(std::string t) {
+    if (!t.empty() && t[0] >= 'a' && t[0] <= 'z') t[0] = static_cast<char>(t[0] - 'a' + 'A');
+    return t;
+}
+
 Section findingsSection(const ReportInput& in) {
     Section s{"findings", "Findings", {}};
     const json& runs = runsOf(in);
-    bool any = false;
+    s.blocks.push_back(paragraph(
+        "What Saddlewise read in each run: a problem means the run's result should not be taken as it stands (not at "
+        "a minimum, stopped early, broke down, or a parameter combination the data do not determine); a note says how "
+        "the run behaved. Where a change could help, it was tried: a rerun from the same start with that one change, "
+        "and its result is given as it happened."));
+
+    // Overview: one row per run.
+    Table overview{{"method", "problems", "notes", "remedies tried", "helped"}, {}, false};
     for (const json& run : runs) {
         if (!run.contains("findings") || !run["findings"].is_array()) continue;
-        Text title = methodName(in.study, run);
-        s.blocks.push_back(heading(plainText(title)));
+        int problems = 0, notes = 0, tried = 0, helped = 0;
+        for (const json& f : run["findings"]) {
+            (text(f, "severity") == "problem" ? problems : notes) += 1;
+            if (f.contains("remedy") && f["remedy"].is_object() && f["remedy"].contains("outcome") &&
+                f["remedy"]["outcome"].is_object()) {
+                ++tried;
+                helped += f["remedy"]["outcome"].value("helped", false) ? 1 : 0;
+            }
+        }
+        overview.rows.push_back({{methodName(in.study, run), false}, numberCell(std::to_string(problems)),
+                                 numberCell(std::to_string(notes)), numberCell(std::to_string(tried)),
+                                 numberCell(std::to_string(helped))});
+    }
+    s.blocks.push_back(table(overview));
+
+    for (const json& run : runs) {
+        if (!run.contains("findings") || !run["findings"].is_array()) continue;
+        s.blocks.push_back(heading(plainText(methodName(in.study, run))));
         if (run["findings"].empty()) {
             s.blocks.push_back(paragraph("No findings: nothing unusual in this run."));
             continue;
         }
-        any = true;
-        Table t{{"finding", "iterations", "evidence", "explanation", "remedy tried"}, {}, true};
         for (const json& f : run["findings"]) {
-            std::string iterations = iterationsText(f.contains("iterations") ? f["iterations"] : json());
-            std::string evidence;
-            if (f.contains("evidence") && f["evidence"].is_object())
-                for (const auto& [name, value] : f["evidence"].items()) evidence += (evidence.empty() ? "" : "; ") + name + " = " + evidenceText(value);
-            std::string remedy = "none";
-            if (f.contains("remedy") && f["remedy"].is_object()) {
-                const json& r = f["remedy"];
+            const bool problem = text(f, "severity") == "problem";
+            Text head = {strong((problem ? "Problem: " : "Note: ") + capitalized(text(f, "title", text(f, "id")))),
+                         plain(" ("), code(text(f, "id"))};
+            const std::string at = iterationsText(f.value("iterations", json()));
+            head.push_back(plain(at.empty() ? ")" : ", " + at + ")"));
+            head.push_back(plain(". " + text(f, "message")));
+            s.blocks.push_back(callout(problem ? "warning" : "note", head));
+
+            std::vector<std::vector<Cell>> rows = evidenceRows(f);
+            if (!rows.empty()) s.blocks.push_back(table(Table{{"evidence", "value", "unit", "meaning"}, std::move(rows), true}));
+
+            std::vector<Field> remedy;
+            const json& r = f.contains("remedy") ? f["remedy"] : json();
+            if (!r.is_object()) {
+                remedy.push_back({"Remedy", {plain("none that a rerun could try")}});
+            } else {
                 const json& change = r.contains("change") ? r["change"] : json();
-                remedy = change.is_string() ? change.get<std::string>() : text(change, "text", change.dump());
-                if (r.contains("outcome") && !r["outcome"].is_null())
-                    remedy += " → " + outcomeText(r["outcome"]);
-                else
-                    remedy += " (not tried)";
+                remedy.push_back({"Remedy", {plain(change.is_object() ? text(change, "text", text(change, "kind"))
+                                                                      : change.is_string() ? change.get<std::string>()
+                                                                                           : std::string("–"))}});
+                const json& o = r.contains("outcome") ? r["outcome"] : json();
+                if (o.is_object()) {
+                    const bool helped = o.value("helped", false);
+                    remedy.push_back({"Result", {strong(helped ? "helped. " : "did not help. "), plain(text(o, "text"))}});
+                    const std::string numbers = outcomeNumbers(o);
+                    if (!numbers.empty()) remedy.push_back({"Rerun", {plain(numbers)}});
+                } else {
+                    remedy.push_back({"Result", {plain("not tried (the report was made without the reruns)")}});
+                }
             }
-            const std::string severity = text(f, "severity", "note");
-            std::vector<Cell> row;
-            row.push_back({{severity == "problem" ? strong(text(f, "id")) : code(text(f, "id")), plain(" " + severity)}, false});
-            row.push_back(cell(iterations.empty() ? "–" : iterations));
-            row.push_back(cell(evidence.empty() ? "–" : evidence));
-            row.push_back(cell(text(f, "message")));
-            row.push_back(cell(remedy));
-            t.rows.push_back(std::move(row));
+            s.blocks.push_back(fields(std::move(remedy)));
         }
-        s.blocks.push_back(table(t));
     }
-    if (!any && s.blocks.empty()) s.blocks.push_back(paragraph("No findings."));
     return s;
 }
 
@@ -577,6 +629,26 @@ Section fitStatisticsSection(const ReportInput& in) {
                           numberCell(numberText(bounds[0], kIntervalDigits)), numberCell(numberText(bounds[1], kIntervalDigits))});
     }
     s.blocks.push_back(table(t));
+
+    // Parameters the data cannot separate (null errors above) and the combinations they do determine.
+    if (fit.contains("not_determined") && fit["not_determined"].is_array() && !fit["not_determined"].empty()) {
+        std::string list;
+        for (const json& n : fit["not_determined"]) list += (list.empty() ? "" : ", ") + n.get<std::string>();
+        s.blocks.push_back(callout("warning", {strong("Not determined by the data: "), plain(list + "."),
+                                               plain(" Their standard errors and intervals are not given; the data "
+                                                     "determine only the combinations below.")}));
+        if (fit.contains("determined_combinations") && fit["determined_combinations"].is_array() &&
+            !fit["determined_combinations"].empty()) {
+            Table c{{"determined combination", "estimate", "standard error", "lower", "upper"}, {}, false};
+            for (const json& k : fit["determined_combinations"]) {
+                const json& ci = k.contains("confidence_interval") ? k["confidence_interval"] : json::array({nullptr, nullptr});
+                c.rows.push_back({codeCell(text(k, "text")), numberCell(numberText(k.value("estimate", json()), kPointDigits)),
+                                  numberCell(numberText(k.value("standard_error", json()), kErrorDigits)),
+                                  numberCell(numberText(ci[0], kIntervalDigits)), numberCell(numberText(ci[1], kIntervalDigits))});
+            }
+            s.blocks.push_back(table(c));
+        }
+    }
 
     std::vector<Field> f;
     f.push_back({"Rows, parameters, degrees of freedom",

@@ -65,7 +65,21 @@ json recordToJson(const solve::IterationRecord& r) {
             {"jacobian_rank", r.jacobianRank},
             {"jacobian_condition", number(r.jacobianCondition)},
             {"evaluations", countsJson(r.evaluations)},
-            {"note", r.note.text()}};
+            {"note", r.note.text()},
+            {"notable", r.notable}};
+}
+
+json provenanceJson(const study::Provenance& p) {
+    json j = {{"program", "Saddlewise"}, {"version", p.version}};
+    if (!p.title.empty()) j["study_title"] = p.title;
+    if (!p.formula.empty()) j["formula"] = p.formula;
+    if (!p.model.empty()) {
+        j["model"] = p.model;
+        j["loss"] = p.loss;
+        j["data"] = p.data;
+    }
+    j["caution"] = study::cautionText();
+    return j;
 }
 
 json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
@@ -84,9 +98,15 @@ json runToJson(const solve::Run& run, const std::vector<std::string>& names, boo
                {{"kind", solve::toString(run.endPoint.kind)},
                 {"index", run.endPoint.index},
                 {"critical", run.endPoint.critical},
+                {"curvature", solve::toString(run.endPoint.curvature)},
                 {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
                 {"tolerance", number(run.endPoint.tolerance)},
-                {"description", run.endPoint.description}}}};
+                {"stationary_distance", number(run.endPoint.stationaryDistance)},
+                {"stationary_bound", number(run.endPoint.stationaryBound)},
+                {"reason", run.endPoint.reason},
+                {"description", run.endPoint.description}}},
+              {"dropped_records", run.droppedRecords},
+              {"record_stride", run.recordStride}};
     if (withTrace) {
         json trace = json::array();
         for (const solve::IterationRecord& r : run.trace) trace.push_back(recordToJson(r));
@@ -105,7 +125,26 @@ json statisticsToJson(const fit::FitStatistics& st) {
                                      ? json::array({number(st.lower[i]), number(st.upper[i])})
                                      : json::array({nullptr, nullptr});
     }
+    // Parameters the data cannot separate have null errors and intervals; the combinations the
+    // data do determine are listed (core/fit/fit_statistics.h).
+    json undetermined = json::array(), combinations = json::array();
+    for (std::size_t k = 0; k < st.names.size(); ++k)
+        if (k < st.notDetermined.size() && st.notDetermined[k]) undetermined.push_back(st.names[k]);
+    for (const fit::DeterminedCombination& c : st.determinedCombinations) {
+        json coefficients = json::object();
+        for (std::size_t k = 0; k < st.names.size(); ++k) {
+            const auto i = static_cast<Eigen::Index>(k);
+            if (i < c.coefficients.size() && c.coefficients[i] != 0) coefficients[st.names[k]] = c.coefficients[i];
+        }
+        combinations.push_back({{"text", c.text},
+                                {"coefficients", coefficients},
+                                {"estimate", number(c.estimate)},
+                                {"standard_error", number(c.standardError)},
+                                {"confidence_interval", {number(c.lower), number(c.upper)}}});
+    }
     json j = {{"parameters", parameters},
+              {"not_determined", undetermined},
+              {"determined_combinations", combinations},
               {"standard_errors", errors},
               {"confidence_intervals", intervals},
               {"confidence_level", st.confidenceLevel},

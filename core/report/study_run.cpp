@@ -76,7 +76,7 @@ json studyRunsJson(const StudyRuns& r, bool withTrace) {
     json variables = json::array();
     json startPoint = json::object();
     for (const study::Variable& v : study.variables) {
-        variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+        variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
         startPoint[v.name] = v.start;
     }
     json studyJson = {{"file", r.studyPath},
@@ -115,6 +115,7 @@ json studyRunsJson(const StudyRuns& r, bool withTrace) {
     for (std::size_t k = 0; k < r.runs.size(); ++k) {
         json run = runToJson(r.runs[k], names, withTrace);
         run["options"] = study.methods[r.entries[k]].options;
+        if (k < r.findings.size() && !r.findings[k].is_null()) run["findings"] = r.findings[k];
         if (k < r.statistics.size()) {
             json fit = statisticsToJson(r.statistics[k]);
             fit["warnings"] = fit::fitWarnings(r.runs[k], r.statistics[k]);
@@ -122,7 +123,7 @@ json studyRunsJson(const StudyRuns& r, bool withTrace) {
         }
         runList.push_back(std::move(run));
     }
-    return {{"study", studyJson}, {"runs", runList}};
+    return {{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}};
 }
 
 int bestRun(const json& runsJson) {

@@ -26,6 +26,9 @@ struct StudyRuns {
     std::vector<std::size_t> entries;            // indices into study.methods of the enabled entries
     std::vector<solve::Run> runs;                // one per entry, in lineup order
     std::vector<fit::FitStatistics> statistics;  // data fits: one per run, at its end point; else empty
+    // Each run's findings as `run --json` prints them (issue 10's JSON array), filled by the
+    // caller (the rules live above core/report); empty when nobody looked.
+    std::vector<nlohmann::json> findings;
 };
 
 struct RunControl {
@@ -48,8 +51,8 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
 //          max_iterations, stopping {max_iterations, max_evaluations, gradient_tolerance,
 //          relative_gradient_tolerance, step_tolerance, function_tolerance},
 //          data (fits: file, checksum, rows, columns, response, model, loss, ...)
-//   runs:  run_json.h's runToJson, with options (as set in the study) and, for fits,
-//          fit: statisticsToJson plus warnings and converged.
+//   runs:  run_json.h's runToJson, with options (as set in the study), findings (when
+//          StudyRuns::findings holds them) and, for fits, fit: statisticsToJson plus warnings.
 nlohmann::json studyRunsJson(const StudyRuns& runs, bool withTrace = true);
 
 // Index into runs.runs of the run a report takes as the answer (its fit statistics, the

@@ -213,9 +213,9 @@ struct LevenbergMarquardtOptions {
     // which keeps the first steps from far starts on the data's scale (NIST StRD BoxBOD from
     // start 1 jumps onto a plateau with 100 and converges with 1).
     double initialRadiusFactor = 1;
-    double functionTolerance = 1e-15;   // relative reduction of |r|^2, actual and predicted
-    double stepTolerance = 1e-15;       // radius <= this * |D x|
-    double orthogonalityTolerance = 0;  // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
+    double reductionBelow = 1e-15;      // relative reduction of |r|^2, actual and predicted
+    double scaledRadiusBelow = 1e-15;   // radius <= this * |D x|
+    double columnCosineBelow = 0;       // max_j |J_j'r| / (|J_j| |r|) <= this (0 = off)
     double acceptRatio = 1e-4;          // rho above which a step is accepted
     double radiusTolerance = 0.1;       // |D p| within (1 +- this) radius
     // D from the column norms of J (Moré 1978; MINPACK mode 1), or D = I (MINPACK mode 2 with
@@ -246,14 +246,15 @@ public:
 
         if (fnormSq == 0) {
             record.note = "all residuals are zero";
-            return {Termination::FunctionTolerance, "converged: every residual is exactly zero"};
+            return {Termination::ZeroResiduals, "converged: every residual is exactly zero"};
         }
-        if (options_.orthogonalityTolerance > 0) {
+        if (options_.columnCosineBelow > 0) {
             const double cosine = maxColumnCosine();
-            if (cosine <= options_.orthogonalityTolerance)
-                return {Termination::GradientTolerance,
-                        "converged: residuals orthogonal to the Jacobian's columns (max cosine " + shortNumber(cosine) +
-                            " <= " + shortNumber(options_.orthogonalityTolerance) + ")"};
+            if (cosine <= options_.columnCosineBelow)
+                return {Termination::ColumnCosineBelow,
+                        "converged: residuals orthogonal to the Jacobian's columns (largest cosine " +
+                            shortNumber(cosine) + " <= column_cosine_below " +
+                            shortNumber(options_.columnCosineBelow) + ")"};
         }
 
         double lambda = 0;
@@ -321,22 +322,22 @@ public:
 
         // Convergence tests of MINPACK lmder (info 1, 2, 6, 7), in Moré's scaled norms.
         const double xScaledNorm = (scale_.asDiagonal() * state.x).norm();
-        const bool smallReduction = std::fabs(actual) <= options_.functionTolerance &&
-                                    predicted <= options_.functionTolerance && 0.5 * rho <= 1.0;
+        const bool smallReduction = std::fabs(actual) <= options_.reductionBelow &&
+                                    predicted <= options_.reductionBelow && 0.5 * rho <= 1.0;
         if (smallReduction)
-            return {Termination::FunctionTolerance,
+            return {Termination::ReductionBelow,
                     "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
-                        ", predicted " + shortNumber(predicted) + ") <= function tolerance " +
-                        shortNumber(options_.functionTolerance)};
-        if (radius_ <= options_.stepTolerance * xScaledNorm)
-            return {Termination::StepTolerance, "converged: trust radius " + shortNumber(radius_) +
-                                                    " <= step tolerance x |D x| = " +
-                                                    shortNumber(options_.stepTolerance * xScaledNorm)};
+                        ", predicted " + shortNumber(predicted) + ") <= reduction_below " +
+                        shortNumber(options_.reductionBelow)};
+        if (radius_ <= options_.scaledRadiusBelow * xScaledNorm)
+            return {Termination::ScaledRadiusBelow, "converged: trust radius " + shortNumber(radius_) +
+                                                        " <= scaled_radius_below x |D x| = " +
+                                                        shortNumber(options_.scaledRadiusBelow * xScaledNorm)};
         if (std::fabs(actual) <= kEps && predicted <= kEps && 0.5 * rho <= 1.0)
-            return {Termination::FunctionTolerance,
+            return {Termination::RoundingLimit,
                     "converged: no further reduction of the sum of squares is possible in double precision"};
         if (radius_ <= kEps * xScaledNorm)
-            return {Termination::StepTolerance,
+            return {Termination::RoundingLimit,
                     "converged: no further improvement of the parameters is possible in double precision"};
         if (!(radius_ > 0) || !std::isfinite(radius_))
             return {Termination::TrustRegionCollapsed, "the trust region collapsed (radius " + shortNumber(radius_) + ")"};
@@ -376,8 +377,8 @@ private:
 
 class GaussNewton final : public MethodState {
 public:
-    explicit GaussNewton(LineSearchSettings settings, double functionTolerance)
-        : settings_(settings), functionTolerance_(functionTolerance) {}
+    explicit GaussNewton(LineSearchSettings settings, double reductionBelow)
+        : settings_(settings), reductionBelow_(reductionBelow) {}
 
     void start(Evaluator& eval, State& state) override { evaluateWithJacobian(eval, state); }
 
@@ -387,7 +388,7 @@ public:
         const Vector unit = Vector::Ones(n);
         lin.compute(point_, unit);
         fillJacobianFacts(record, lin);
-        if (lin.residualNormSq == 0) return {Termination::FunctionTolerance, "converged: every residual is exactly zero"};
+        if (lin.residualNormSq == 0) return {Termination::ZeroResiduals, "converged: every residual is exactly zero"};
         Vector direction = lin.scaledStep(0);
         record.stepKind = StepKind::GaussNewton;
         if (lin.rank < n)
@@ -407,11 +408,11 @@ public:
         evaluateWithJacobian(eval, state);
         record.damping = kNaN;
         const double actual = before > 0 ? (before - state.value) / before : 0.0;
-        if (functionTolerance_ > 0 && std::fabs(actual) <= functionTolerance_ && predicted <= functionTolerance_)
-            return {Termination::FunctionTolerance,
+        if (reductionBelow_ > 0 && std::fabs(actual) <= reductionBelow_ && predicted <= reductionBelow_)
+            return {Termination::ReductionBelow,
                     "converged: relative reduction of the sum of squares (actual " + shortNumber(std::fabs(actual)) +
-                        ", predicted " + shortNumber(predicted) + ") <= function tolerance " +
-                        shortNumber(functionTolerance_)};
+                        ", predicted " + shortNumber(predicted) + ") <= reduction_below " +
+                        shortNumber(reductionBelow_)};
         return {};
     }
 
@@ -422,7 +423,7 @@ private:
     }
 
     LineSearchSettings settings_;
-    double functionTolerance_;
+    double reductionBelow_;
     Reduced point_;  // r at state.x, reduced
 };
 
@@ -441,12 +442,18 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         lm.info.options = {
             realOption("initial_radius_factor", "first trust radius = factor x |D x0| (factor when x0 = 0)", 1, 0,
                        1e300, true, false),
-            realOption("function_tolerance", "stop when the relative reduction of the sum of squares is below this",
-                       1e-15, 0, 1, false, true),
-            realOption("step_tolerance", "stop when the trust radius is below this x |D x|", 1e-15, 0, 1, false, true),
-            realOption("orthogonality_tolerance",
-                       "stop when every Jacobian column is this close to orthogonal to r (0 = off)", 0, 0, 1, false,
-                       true),
+            formerlyNamed(realOption("reduction_below",
+                                     "stop when the relative reduction of the sum of squares, actual and predicted, "
+                                     "is at most this",
+                                     1e-15, 0, 1, false, true),
+                          "function_tolerance"),
+            formerlyNamed(realOption("scaled_radius_below", "stop when the trust radius is at most this x |D x|", 1e-15,
+                                     0, 1, false, true),
+                          "step_tolerance"),
+            formerlyNamed(realOption("column_cosine_below",
+                                     "stop when the cosine between r and every column of J is at most this (0 = off)",
+                                     0, 0, 1, false, true),
+                          "orthogonality_tolerance"),
             realOption("accept_ratio", "accept a step when rho is at least this", 1e-4, 0, 0.25, false, true),
             choiceOption("scaling",
                          "jacobian: the region is scaled by the largest column norms of J seen so far (Moré); "
@@ -456,9 +463,9 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         lm.make = [specs = lm.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
             LevenbergMarquardtOptions o;
             o.initialRadiusFactor = optionNumber(specs, values, "initial_radius_factor");
-            o.functionTolerance = optionNumber(specs, values, "function_tolerance");
-            o.stepTolerance = optionNumber(specs, values, "step_tolerance");
-            o.orthogonalityTolerance = optionNumber(specs, values, "orthogonality_tolerance");
+            o.reductionBelow = optionNumber(specs, values, "reduction_below");
+            o.scaledRadiusBelow = optionNumber(specs, values, "scaled_radius_below");
+            o.columnCosineBelow = optionNumber(specs, values, "column_cosine_below");
             o.acceptRatio = optionNumber(specs, values, "accept_ratio");
             o.columnScaling = optionChoice(specs, values, "scaling") == "jacobian";
             return std::make_unique<LevenbergMarquardt>(o);
@@ -476,15 +483,17 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         gn.info.options.erase(std::remove_if(gn.info.options.begin(), gn.info.options.end(),
                                              [](const OptionSpec& s) { return s.name == "curvature"; }),
                               gn.info.options.end());
-        gn.info.options.push_back(realOption("function_tolerance",
-                                             "stop when the relative reduction of the sum of squares is below this",
-                                             1e-12, 0, 1, false, true));
+        gn.info.options.push_back(formerlyNamed(realOption("reduction_below",
+                                                           "stop when the relative reduction of the sum of squares, "
+                                                           "actual and predicted, is at most this",
+                                                           1e-12, 0, 1, false, true),
+                                                "function_tolerance"));
         gn.make = [specs = gn.info.options](const OptionValues& values) -> std::unique_ptr<MethodState> {
             LineSearchSettings s;
             s.sufficientDecrease = optionNumber(specs, values, "sufficient_decrease");
             s.backtrackFactor = optionNumber(specs, values, "backtrack_factor");
             s.maxTrials = static_cast<int>(optionNumber(specs, values, "max_trials"));
-            return std::make_unique<GaussNewton>(s, optionNumber(specs, values, "function_tolerance"));
+            return std::make_unique<GaussNewton>(s, optionNumber(specs, values, "reduction_below"));
         };
         list.push_back(std::move(gn));
     }

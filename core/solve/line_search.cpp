@@ -376,12 +376,14 @@ StepOutcome searchAndMove(Evaluator& eval, State& state, IterationRecord& record
         // When even the first trial promises a decrease below the rounding of f, no line search
         // can make progress: the point is a minimiser to working precision.
         const double promised = -settings.initialStep * state.gradient.dot(direction);
-        const double rounding = 1e-15 * (1.0 + std::abs(state.value));
+        // The floor is min(1, |f(x0)|) rather than 1, so f scaled by 1e-150 is not "flat to rounding".
+        const double rounding = 1e-15 * (state.valueFloor + std::abs(state.value));
         if (promised >= 0 && promised <= rounding)
-            return {Termination::FunctionTolerance,
+            return {Termination::RoundingLimit,
                     "converged: the line search cannot decrease f beyond rounding in iteration " +
                         std::to_string(state.iteration) + " (first trial promises " + shortNumber(promised) +
-                        " <= 1e-15 (1 + |f|))"};
+                        " <= 1e-15 (" + (state.valueFloor == 1.0 ? std::string("1") : shortNumber(state.valueFloor)) +
+                        " + |f|))"};
         return {Termination::LineSearchFailed, "line search failed in iteration " + std::to_string(state.iteration) +
                                                    ": " + found.message};
     }

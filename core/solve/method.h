@@ -59,6 +59,9 @@ struct State {
     Matrix hessian;
     bool hasHessian = false;
     int iteration = 0;
+    // Absolute floor for "within rounding of f" tests: min(1, |f(x0)|), so a problem of
+    // ordinary size keeps the floor 1 and f scaled by 1e-150 gets a floor of its own size.
+    double valueFloor = 1.0;
 };
 
 struct StepOutcome {
@@ -77,9 +80,9 @@ public:
     // to x_{k+1} with its value, gradient (and Hessian when needsHessian). A rejected
     // trust-region step leaves state.x unchanged and sets record.accepted = false.
     virtual StepOutcome iterate(Evaluator& eval, State& state, IterationRecord& record) = 0;
-    // Derivative-free methods report their own convergence measure (e.g. simplex size);
-    // return true when converged and say why.
-    virtual bool ownConvergence(std::string* /*why*/) const { return false; }
+    // Derivative-free methods report their own convergence measure (e.g. simplex size):
+    // the termination kind of that test when converged (and say why), else Running.
+    virtual Termination ownConvergence(std::string* /*why*/) const { return Termination::Running; }
 };
 
 using MethodFactory = std::function<std::unique_ptr<MethodState>(const OptionValues&)>;
@@ -113,6 +116,8 @@ OptionSpec integerOption(std::string name, std::string description, int defaultV
 OptionSpec choiceOption(std::string name, std::string description, std::vector<std::string> choices,
                         int defaultIndex);
 OptionSpec flagOption(std::string name, std::string description, bool defaultValue);
+// The spec with a former name added (read, never written; docs/names.md).
+OptionSpec formerlyNamed(OptionSpec spec, std::string formerName);
 // shortNumber (record.h) formats numbers for notes and messages.
 // "(x=1, y=2)" with the objective's variable names (at most 8 shown).
 std::string pointText(const Vector& x, const std::vector<std::string>& names);

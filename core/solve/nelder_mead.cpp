@@ -22,12 +22,15 @@ enum class StartSimplex {
 };
 
 struct NelderMeadOptions {
-    double initialSize = 0.05;       // edge of the start simplex (see StartSimplex)
+    // The two defaults are our own, measured on the Moré-Garbow-Hillstrom catalogue (fewest value
+    // evaluations over all eleven problems, smoothed over neighbouring settings; docs/BENCHMARKS.md,
+    // "Nelder-Mead start simplex"; pinned by Catalogue.NelderMeadStartSimplexDefaultsAreTheMeasuredBest).
+    double initialSize = 0.3;        // edge of the start simplex (see StartSimplex)
     StartSimplex startSimplex = StartSimplex::Relative;
-    double zeroSize = 0.00025;       // Relative: the edge along a coordinate that is 0 in x0
-    bool adaptive = false;           // Gao & Han (2012) parameters
-    double simplexTolerance = 1e-8;  // converged when every vertex is this close to the best (max norm)...
-    double valueTolerance = 1e-12;   // ...and every value is this close to the best
+    double zeroSize = 0.1;           // Relative: the edge along a coordinate that is 0 in x0
+    bool dimensionScaledMoves = false;  // Gao & Han (2012) parameters
+    double simplexSizeBelow = 1e-8;     // converged when every vertex is this close to the best (max norm)...
+    double valueSpreadBelow = 1e-12;    // ...and every value is this close to the best
 };
 
 // What each move adds to the record's note (the numbers are formatted only when it is read).
@@ -47,9 +50,9 @@ public:
         // Lagarias et al. (1998): reflection 1, expansion 2, contraction 1/2, shrink 1/2.
         // Gao & Han (2012): 1, 1 + 2/n, 3/4 - 1/(2n), 1 - 1/n.
         reflection_ = 1;
-        expansion_ = options_.adaptive ? 1 + 2 / dn : 2;
-        contraction_ = options_.adaptive ? 0.75 - 1 / (2 * dn) : 0.5;
-        shrink_ = options_.adaptive && n > 1 ? 1 - 1 / dn : 0.5;
+        expansion_ = options_.dimensionScaledMoves ? 1 + 2 / dn : 2;
+        contraction_ = options_.dimensionScaledMoves ? 0.75 - 1 / (2 * dn) : 0.5;
+        shrink_ = options_.dimensionScaledMoves && n > 1 ? 1 - 1 / dn : 0.5;
         simplex_ = state.x.replicate(1, n + 1);
         values_.assign(static_cast<std::size_t>(n + 1), state.value);
         order_.resize(static_cast<std::size_t>(n + 1));
@@ -119,15 +122,16 @@ public:
         return {};
     }
 
-    bool ownConvergence(std::string* why) const override {
+    Termination ownConvergence(std::string* why) const override {
         const double size = size_, spread = spread_;
-        if (size <= options_.simplexTolerance && spread <= options_.valueTolerance) {
+        if (size <= options_.simplexSizeBelow && spread <= options_.valueSpreadBelow) {
             if (why)
-                *why = "converged: simplex size " + shortNumber(size) + " <= " + shortNumber(options_.simplexTolerance) +
-                       " and value spread " + shortNumber(spread) + " <= " + shortNumber(options_.valueTolerance);
-            return true;
+                *why = "converged: simplex size " + shortNumber(size) + " <= simplex_size_below " +
+                       shortNumber(options_.simplexSizeBelow) + " and value spread " + shortNumber(spread) +
+                       " <= value_spread_below " + shortNumber(options_.valueSpreadBelow);
+            return Termination::SimplexSizeBelow;
         }
-        return false;
+        return Termination::Running;
     }
 
 private:
@@ -222,16 +226,21 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
     info.needsGradient = false;
     info.options = {
         realOption("initial_size", "edge of the start simplex along axis i: this times x_i (relative) or times max(1, |x_i|) (absolute)",
-                   0.05, 0, kUnbounded, true, false),
+                   0.3, 0, kUnbounded, true, false),
         choiceOption("start_simplex", "relative: the edges scale with x0 (a zero coordinate moves by zero_size); absolute: never below initial_size",
                      {"relative", "absolute"}, 0),
-        realOption("zero_size", "relative start simplex: the edge along a coordinate that is 0 in x0", 0.00025, 0,
+        realOption("zero_size", "relative start simplex: the edge along a coordinate that is 0 in x0", 0.1, 0,
                    kUnbounded, true, false),
-        flagOption("adaptive", "dimension-dependent expansion/contraction/shrink (Gao & Han 2012)", false),
-        realOption("simplex_tolerance", "converged when all vertices are this close to the best (max norm)", 1e-8, 0,
-                   kUnbounded, false, false),
-        realOption("value_tolerance", "... and all their values this close to the best value", 1e-12, 0, kUnbounded,
-                   false, false),
+        formerlyNamed(flagOption("dimension_scaled_moves",
+                                 "expansion, contraction and shrink depend on the dimension n (Gao & Han 2012)", false),
+                      "adaptive"),
+        formerlyNamed(realOption("simplex_size_below",
+                                 "converged when every vertex is at most this far from the best (max norm)...", 1e-8,
+                                 0, kUnbounded, false, false),
+                      "simplex_tolerance"),
+        formerlyNamed(realOption("value_spread_below", "... and every vertex's value at most this far from the best",
+                                 1e-12, 0, kUnbounded, false, false),
+                      "value_tolerance"),
     };
     const std::vector<OptionSpec> specs = info.options;
     return {{info,
@@ -241,9 +250,9 @@ std::vector<MethodRegistration> derivativeFreeMethods() {
                  o.startSimplex = optionChoice(specs, v, "start_simplex") == "absolute" ? StartSimplex::Absolute
                                                                                         : StartSimplex::Relative;
                  o.zeroSize = optionNumber(specs, v, "zero_size");
-                 o.adaptive = optionFlag(specs, v, "adaptive");
-                 o.simplexTolerance = optionNumber(specs, v, "simplex_tolerance");
-                 o.valueTolerance = optionNumber(specs, v, "value_tolerance");
+                 o.dimensionScaledMoves = optionFlag(specs, v, "dimension_scaled_moves");
+                 o.simplexSizeBelow = optionNumber(specs, v, "simplex_size_below");
+                 o.valueSpreadBelow = optionNumber(specs, v, "value_spread_below");
                  return std::make_unique<NelderMead>(o);
              },
              {}}};

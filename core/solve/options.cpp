@@ -1,6 +1,8 @@
 // Checking and reading method options given as text.
 #include "core/solve/options.h"
 
+#include "core/expr/number_text.h"
+
 #include <charconv>
 #include <cmath>
 #include <stdexcept>
@@ -23,14 +25,16 @@ std::string trimmed(const std::string& s) {
     return b == std::string::npos ? std::string() : s.substr(b, e - b + 1);
 }
 
-// Locale-free strict parse; false when the whole text is not one finite number.
-bool parseReal(const std::string& text, double& value) {
-    std::string t = trimmed(text);
-    const char* first = t.data();
-    const char* last = t.data() + t.size();
-    if (first != last && *first == '+') ++first;
-    auto [ptr, ec] = std::from_chars(first, last, value);
-    return !t.empty() && ec == std::errc() && ptr == last && std::isfinite(value);
+// Locale-free strict parse by the one number rule (core/expr/number_text.h).
+NumberStatus readReal(const std::string& text, double& value) { return readDecimal(trimmed(text), value); }
+bool parseReal(const std::string& text, double& value) { return readReal(text, value) == NumberStatus::Ok; }
+
+// An option's text for a message: at most 40 bytes, control bytes as '?'.
+std::string shownValue(const std::string& text) {
+    std::string shown = text.substr(0, 40);
+    for (char& c : shown)
+        if (static_cast<unsigned char>(c) < 0x20 || c == 0x7F) c = '?';
+    return text.size() > 40 ? shown + "..." : shown;
 }
 
 bool parseFlag(const std::string& text, bool& value) {
@@ -86,16 +90,39 @@ const OptionSpec* findOption(const std::vector<OptionSpec>& specs, const std::st
     return nullptr;
 }
 
+const OptionSpec* findOptionOrFormer(const std::vector<OptionSpec>& specs, const std::string& name) {
+    if (const OptionSpec* spec = findOption(specs, name)) return spec;
+    for (const OptionSpec& s : specs)
+        for (const std::string& former : s.formerNames)
+            if (former == name) return &s;
+    return nullptr;
+}
+
+std::string renameFormerOptions(const std::vector<OptionSpec>& specs, OptionValues& values) {
+    for (const OptionSpec& spec : specs)
+        for (const std::string& former : spec.formerNames) {
+            const auto it = values.find(former);
+            if (it == values.end()) continue;
+            if (values.count(spec.name))
+                return "option " + spec.name + " is given twice, also under its former name " + former +
+                       "; keep one";
+            std::string text = std::move(it->second);
+            values.erase(it);
+            values.emplace(spec.name, std::move(text));
+        }
+    return "";
+}
+
 std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValues& values) {
     for (const auto& [name, text] : values) {
-        const OptionSpec* spec = findOption(specs, name);
+        const OptionSpec* spec = findOptionOrFormer(specs, name);
         if (!spec) {
             if (specs.empty()) return "unknown option '" + name + "'; this method takes no options";
             std::string known;
             for (std::size_t i = 0; i < specs.size(); ++i) known += (i ? ", " : "") + specs[i].name;
             return "unknown option '" + name + "'; this method's options: " + known;
         }
-        const std::string got = " (got '" + text + "')";
+        const std::string got = " (got '" + shownValue(text) + "')";
         switch (spec->type) {
             case OptionSpec::Type::Boolean: {
                 bool flag = false;
@@ -111,7 +138,11 @@ std::string checkOptions(const std::vector<OptionSpec>& specs, const OptionValue
             case OptionSpec::Type::Integer:
             case OptionSpec::Type::Real: {
                 double v = 0;
-                if (!parseReal(text, v))
+                const NumberStatus status = readReal(text, v);
+                if (status == NumberStatus::TooLarge || status == NumberStatus::TooSmall)
+                    return "option " + name + ": " + outOfRangeText(trimmed(text), status) + "; it must be " +
+                           spec->rangeText();
+                if (status != NumberStatus::Ok)
                     return "option " + name + ": must be a finite number, " + spec->rangeText() + got;
                 if (spec->type == OptionSpec::Type::Integer && v != std::floor(v))
                     return "option " + name + ": must be a whole number, " + spec->rangeText() + got;
@@ -154,16 +185,21 @@ bool optionFlag(const std::vector<OptionSpec>& specs, const OptionValues& values
 }
 
 std::string StoppingRules::check() const {
-    if (maxIterations < 0) return "max_iterations must be >= 0 (got " + std::to_string(maxIterations) + ")";
+    if (maxIterations < 0 || maxIterations > kMaxIterationLimit)
+        return "max_iterations must be from 0 to " + std::to_string(kMaxIterationLimit) + " (got " +
+               std::to_string(maxIterations) + ")";
+    if (traceMemoryLimit < kMinTraceMemory)
+        return "the trace memory limit must be at least " + std::to_string(kMinTraceMemory) + " bytes (got " +
+               std::to_string(traceMemoryLimit) + ")";
     if (maxEvaluations < 1) return "max_evaluations must be >= 1 (got " + std::to_string(maxEvaluations) + ")";
     if (!(gradientTolerance >= 0) || !std::isfinite(gradientTolerance))
-        return "gradient_tolerance must be a finite number >= 0 (got " + numberText(gradientTolerance) + ")";
+        return "gradient_norm_below must be a finite number >= 0 (got " + numberText(gradientTolerance) + ")";
     if (!(relativeGradientTolerance >= 0) || !(relativeGradientTolerance < 1))
-        return "relative_gradient_tolerance must be in [0, 1) (got " + numberText(relativeGradientTolerance) + ")";
+        return "gradient_ratio_below must be in [0, 1) (got " + numberText(relativeGradientTolerance) + ")";
     if (!(stepTolerance >= 0) || !std::isfinite(stepTolerance))
-        return "step_tolerance must be a finite number >= 0 (got " + numberText(stepTolerance) + ")";
+        return "relative_step_below must be a finite number >= 0 (got " + numberText(stepTolerance) + ")";
     if (!(functionTolerance >= 0) || !std::isfinite(functionTolerance))
-        return "function_tolerance must be a finite number >= 0 (got " + numberText(functionTolerance) + ")";
+        return "relative_change_below must be a finite number >= 0 (got " + numberText(functionTolerance) + ")";
     if (spectrumMaxDimension < 0)
         return "spectrum_max_dimension must be >= 0 (got " + std::to_string(spectrumMaxDimension) + ")";
     return "";

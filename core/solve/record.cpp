@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <limits>
 #include <string>
 
 namespace sw::solve {
@@ -37,9 +38,16 @@ const char* toString(StepKind kind) {
 const char* toString(Termination t) {
     switch (t) {
         case Termination::Running: return "running";
-        case Termination::GradientTolerance: return "gradient-tolerance";
-        case Termination::StepTolerance: return "step-tolerance";
-        case Termination::FunctionTolerance: return "function-tolerance";
+        case Termination::GradientTolerance: return "gradient-norm-below";
+        case Termination::StepTolerance: return "relative-step-below";
+        case Termination::FunctionTolerance: return "relative-change-below";
+        case Termination::GradientRatioBelow: return "gradient-ratio-below";
+        case Termination::ReductionBelow: return "reduction-below";
+        case Termination::ScaledRadiusBelow: return "scaled-radius-below";
+        case Termination::ColumnCosineBelow: return "column-cosine-below";
+        case Termination::ZeroResiduals: return "zero-residuals";
+        case Termination::RoundingLimit: return "rounding-limit";
+        case Termination::SimplexSizeBelow: return "simplex-size-below";
         case Termination::IterationLimit: return "iteration-limit";
         case Termination::EvaluationLimit: return "evaluation-limit";
         case Termination::LineSearchFailed: return "line-search-failed";
@@ -52,8 +60,31 @@ const char* toString(Termination t) {
 }
 
 bool isConvergence(Termination t) {
-    return t == Termination::GradientTolerance || t == Termination::StepTolerance ||
-           t == Termination::FunctionTolerance;
+    switch (t) {
+        case Termination::GradientTolerance:
+        case Termination::StepTolerance:
+        case Termination::FunctionTolerance:
+        case Termination::GradientRatioBelow:
+        case Termination::ReductionBelow:
+        case Termination::ScaledRadiusBelow:
+        case Termination::ColumnCosineBelow:
+        case Termination::ZeroResiduals:
+        case Termination::RoundingLimit:
+        case Termination::SimplexSizeBelow: return true;
+        default: return false;
+    }
+}
+
+const char* describe(PointKind k) {
+    switch (k) {
+        case PointKind::Unknown: return "not classified";
+        case PointKind::Minimum: return "local minimum";
+        case PointKind::Saddle: return "saddle";
+        case PointKind::Maximum: return "local maximum";
+        case PointKind::Degenerate: return "degenerate point";
+        case PointKind::NotCritical: return "not a critical point";
+    }
+    return "not classified";
 }
 
 const char* toString(PointKind k) {
@@ -63,6 +94,7 @@ const char* toString(PointKind k) {
         case PointKind::Saddle: return "saddle";
         case PointKind::Maximum: return "maximum";
         case PointKind::Degenerate: return "degenerate";
+        case PointKind::NotCritical: return "not-critical";
     }
     return "unknown";
 }
@@ -195,7 +227,8 @@ EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance) {
     }
     end.eigenvalues = solver.eigenvalues();  // ascending
     const double largest = end.eigenvalues.cwiseAbs().maxCoeff();
-    end.tolerance = relativeTolerance * std::max(1.0, largest);
+    // Relative to the Hessian alone: f scaled by 1e-150 has the same class as f.
+    end.tolerance = relativeTolerance * largest;
     int negative = 0, positive = 0, zero = 0;
     for (double l : end.eigenvalues) {
         if (std::abs(l) <= end.tolerance) ++zero;
@@ -210,14 +243,84 @@ EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance) {
                           " within " + shortNumber(end.tolerance) + " of zero (" + eig + ")";
     } else if (negative == 0) {
         end.kind = PointKind::Minimum;
-        end.description = "minimum (" + eig + ")";
+        end.description = "local minimum (" + eig + ")";
     } else if (positive == 0) {
         end.kind = PointKind::Maximum;
-        end.description = "maximum (" + eig + ")";
+        end.description = "local maximum (" + eig + ")";
     } else {
         end.kind = PointKind::Saddle;
         end.description = "saddle of index " + std::to_string(negative) + " (" + eig + ")";
     }
+    end.curvature = end.kind;
+    return end;
+}
+
+namespace {
+
+const char* nonFiniteWord(double v) { return std::isnan(v) ? "nan" : (v > 0 ? "inf" : "-inf"); }
+
+EndPoint notClassified(std::string reason) {
+    EndPoint end;
+    end.kind = PointKind::Unknown;
+    end.critical = false;
+    end.reason = reason;
+    end.description = "not classified: " + reason;
+    return end;
+}
+
+}  // namespace
+
+EndPoint classifyEndPoint(const Matrix& hessian, const Vector& x, double value, const Vector& gradient) {
+    // Nothing is claimed from numbers that are not finite (a diverged run's end, value inf).
+    if (!x.allFinite()) return notClassified("the end point is not finite");
+    if (!std::isfinite(value))
+        return notClassified(std::string("the value at the end point is ") + nonFiniteWord(value));
+    if (gradient.size() != x.size()) return notClassified("no gradient at the end point");
+    if (!gradient.allFinite()) return notClassified("the gradient at the end point is not finite");
+    EndPoint end = classifyPoint(hessian);
+    if (end.curvature == PointKind::Unknown) {
+        end.reason = end.description.rfind("not classified: ", 0) == 0 ? end.description.substr(16) : end.description;
+        return end;
+    }
+    // Stationarity that does not scale with f: the distance to the stationary point of the
+    // local quadratic model, |H^+ g|, with eigenvalues below 1e-8 max|lambda| raised to that
+    // floor (a direction without curvature but with slope is then far, not infinitely near).
+    // Multiplying f by c multiplies g and H by c and leaves the distance unchanged.
+    Eigen::SelfAdjointEigenSolver<Matrix> eigen(hessian);
+    double distanceSquared = 0;
+    if (eigen.info() == Eigen::Success) {
+        const Vector& lambda = eigen.eigenvalues();
+        const double largest = lambda.cwiseAbs().maxCoeff();
+        const double floor = 1e-8 * largest;
+        const Vector slope = eigen.eigenvectors().transpose() * gradient;
+        for (Eigen::Index i = 0; i < lambda.size(); ++i) {
+            const double curvature = std::max(std::abs(lambda[i]), floor);
+            if (slope[i] == 0) continue;
+            const double d = curvature > 0 ? slope[i] / curvature : std::numeric_limits<double>::infinity();
+            distanceSquared += d * d;
+        }
+    } else {
+        distanceSquared = std::numeric_limits<double>::infinity();
+    }
+    end.stationaryDistance = std::sqrt(distanceSquared);
+    end.stationaryBound = kStationaryRelativeDistance * (1.0 + x.norm());
+    if (end.stationaryDistance <= end.stationaryBound) {
+        end.critical = true;
+        return end;
+    }
+    end.kind = PointKind::NotCritical;
+    end.critical = false;
+    std::string curvatureText = toString(end.curvature);
+    if (end.curvature == PointKind::Saddle) curvatureText += " of index " + std::to_string(end.index);
+    end.reason = std::isfinite(end.stationaryDistance)
+                     ? "gradient norm " + shortNumber(gradient.norm()) +
+                           "; the stationary point of the local quadratic model is " +
+                           shortNumber(end.stationaryDistance, 3) + " away (more than 1e-3 (1 + |x|) = " +
+                           shortNumber(end.stationaryBound, 3) + ")"
+                     : "gradient norm " + shortNumber(gradient.norm()) +
+                           " where the Hessian has no curvature (the local model has no stationary point)";
+    end.description = "not a critical point: " + end.reason + "; the curvature there is that of a " + curvatureText +
+                      " (eigenvalues " + listOf(end.eigenvalues) + ")";
     return end;
 }
 

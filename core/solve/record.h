@@ -125,13 +125,27 @@ struct IterationRecord {
 
     EvaluationCounts evaluations;    // cumulative, including this iteration's work
     Note note;                       // short, readable ("BFGS update skipped: y's <= 0"); note.text()
+    // Kept through thinning (see Run::droppedRecords): a rejected step, a change of step kind
+    // from the record before, or a non-finite value, gradient or trial.
+    bool notable = false;
 };
 
+// How a run ended. Each convergence test has its own kind and its own id, named after the
+// setting that fires it (docs/names.md lists the former ids).
 enum class Termination {
     Running,
-    GradientTolerance,   // |g| <= gtol, or |g| <= rtol * |g0|
-    StepTolerance,
-    FunctionTolerance,
+    GradientTolerance,   // "gradient-norm-below": |g| <= stopping.gradient_norm_below
+    StepTolerance,       // "relative-step-below": |x_{k+1} - x_k| <= stopping.relative_step_below (1 + |x_k|)
+    FunctionTolerance,   // "relative-change-below": |f_{k+1} - f_k| <= stopping.relative_change_below (1 + |f_k|)
+    GradientRatioBelow,  // "gradient-ratio-below": |g| <= stopping.gradient_ratio_below |g0|
+    ReductionBelow,      // "reduction-below": least squares, relative reduction of |r|^2 (actual and
+                         //   predicted) <= the method's reduction_below
+    ScaledRadiusBelow,   // "scaled-radius-below": Levenberg-Marquardt, radius <= scaled_radius_below |D x|
+    ColumnCosineBelow,   // "column-cosine-below": Levenberg-Marquardt, residuals orthogonal to J's columns
+    ZeroResiduals,       // "zero-residuals": every residual is exactly zero
+    RoundingLimit,       // "rounding-limit": no decrease of f (or improvement of x) is possible in
+                         //   double precision
+    SimplexSizeBelow,    // "simplex-size-below": Nelder-Mead's simplex and its value spread are small
     IterationLimit,
     EvaluationLimit,
     LineSearchFailed,
@@ -140,24 +154,50 @@ enum class Termination {
     StoppedByCaller,
     Failed,              // a method-specific breakdown (message says which)
 };
-const char* toString(Termination t);  // kebab-case, e.g. "gradient-tolerance"
-bool isConvergence(Termination t);    // gradient, step or function tolerance
+const char* toString(Termination t);  // kebab-case, e.g. "gradient-norm-below"
+bool isConvergence(Termination t);    // any of the convergence tests above
 
-enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate };
-const char* toString(PointKind k);    // "minimum", "saddle", ...
+// NotCritical: the end point failed the stationarity test (see classifyEndPoint), so no class
+// is claimed; EndPoint::curvature still says what the Hessian looks like there.
+enum class PointKind { Unknown, Minimum, Saddle, Maximum, Degenerate, NotCritical };
+const char* toString(PointKind k);    // id for JSON: "minimum", "saddle", ..., "not-critical"
+// For people: "local minimum", "saddle", "local maximum", "degenerate point", "not a critical
+// point" ("not classified"). The Hessian test at an end point is local, and the words say so.
+const char* describe(PointKind k);
 
 struct EndPoint {
     PointKind kind = PointKind::Unknown;
     int index = 0;                    // number of negative eigenvalues
     Vector eigenvalues;               // ascending
     double tolerance = kNaN;          // |lambda| below this counts as zero
-    bool critical = true;             // false when the gradient there is not small: kind is then only the curvature
+    // True only when the point passed the stationarity test with finite numbers; kind is then
+    // the class of the critical point. False: kind is NotCritical (or Unknown when nothing
+    // could be tested) and reason says why.
+    bool critical = false;
+    PointKind curvature = PointKind::Unknown;  // the Hessian's own class, critical or not
+    // The stationarity measure: the distance from the point to the stationary point of its
+    // local quadratic model, |H^+ g| (eigenvalues below 1e-8 max|lambda| count as that floor);
+    // unchanged when f is multiplied by a constant. NaN when not computed.
+    double stationaryDistance = kNaN;
+    double stationaryBound = kNaN;    // the test: stationaryDistance <= this = 1e-3 (1 + |x|)
+    std::string reason;               // why not critical ("" when critical)
     std::string description;          // e.g. "saddle of index 1 (eigenvalues -2, 2)"
 };
 
-// Classifies a critical point by the eigenvalues of the symmetric Hessian.
-// An eigenvalue counts as zero when |lambda| <= relativeTolerance * max(1, max|lambda|).
+// Classifies a point by the eigenvalues of the symmetric Hessian, as if it were critical
+// (kind = curvature; critical is left false: only classifyEndPoint tests stationarity).
+// An eigenvalue counts as zero when |lambda| <= relativeTolerance * max|lambda| (relative to
+// the Hessian itself, so multiplying f by a constant does not change the class).
 EndPoint classifyPoint(const Matrix& hessian, double relativeTolerance = 1e-8);
+
+// The relative distance below which an end point counts as stationary (see EndPoint).
+inline constexpr double kStationaryRelativeDistance = 1e-3;
+
+// Classifies a run's end point x (value f, gradient g, exact Hessian H). A class is given only
+// when f, g and H are finite and the point is stationary by a test that does not scale with f:
+// |H^+ g| <= 1e-3 (1 + |x|) (the local model's stationary point is that close). Otherwise the
+// kind is NotCritical (or Unknown when something is not finite) with the reason.
+EndPoint classifyEndPoint(const Matrix& hessian, const Vector& x, double value, const Vector& gradient);
 
 struct Run {
     std::string methodId;
@@ -170,8 +210,20 @@ struct Run {
     double gradientNorm = kNaN;
     EvaluationCounts evaluations;
     EndPoint endPoint;
-    int iterations() const { return trace.empty() ? 0 : static_cast<int>(trace.size()) - 1; }
+    // Thinning: when the records would pass the stopping rules' traceMemoryLimit, records in the
+    // middle of the trace are dropped. Always kept: the first record, the last
+    // kTraceKeptTail records, notable records (IterationRecord::notable; when even they
+    // outgrow the limit, every other one), ordinary records whose iteration is a multiple of
+    // recordStride, and the records added since the last thinning. A record's own `iteration`
+    // field says which iterate it is.
+    long droppedRecords = 0;          // 0: the trace is complete
+    long recordStride = 1;            // ordinary records kept: every recordStride-th iteration
+    long droppedNotableRecords = 0;   // of droppedRecords, how many were notable
+    int iterations() const { return trace.empty() ? 0 : trace.back().iteration; }
     bool finished() const { return termination != Termination::Running; }
 };
+
+// Records at the end of a trace never dropped by thinning.
+inline constexpr std::size_t kTraceKeptTail = 50;
 
 }  // namespace sw::solve

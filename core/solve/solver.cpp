@@ -44,6 +44,9 @@ public:
         // iteration limit instead would ask for megabytes per run.
         run_.trace.reserve(static_cast<std::size_t>(std::min(rules_.maxIterations, 128)) + 1);
         evaluatePoint();
+        // The absolute floor of "within rounding of f" tests: |f(x0)|, at most 1. A problem of
+        // ordinary size keeps the floor 1; f scaled by 1e-150 gets a floor of its own size.
+        state_.valueFloor = std::isfinite(state_.value) ? std::min(1.0, std::abs(state_.value)) : 1.0;
         if (eval_.sawNonFinite()) {
             appendPointRecord();
             finish(Termination::NonFinite, "not finite at the start point: " + eval_.nonFinite() + " at " +
@@ -130,6 +133,16 @@ private:
 
     // Appends the record of the current point, built in place (a record is a few hundred bytes).
     void appendPointRecord() {
+        if (!run_.trace.empty()) {
+            // The step fields of the previous record are final now: is it one findings need?
+            IterationRecord& last = run_.trace.back();
+            const bool kindChanged = run_.trace.size() >= 2 && run_.trace[run_.trace.size() - 2].stepKind != last.stepKind;
+            bool nonFinite = !std::isfinite(last.value) || !last.gradient.allFinite();
+            for (const LineSearchTrial& t : last.trials) nonFinite = nonFinite || !std::isfinite(t.value);
+            last.notable = last.notable || !last.accepted || kindChanged || nonFinite;
+            traceBytes_ += recordBytes(last);
+            if (traceBytes_ > rules_.traceMemoryLimit) thinTrace();
+        }
         IterationRecord& r = run_.trace.emplace_back();
         r.iteration = state_.iteration;
         r.x = state_.x;
@@ -149,14 +162,74 @@ private:
         }
     }
 
+    // Heap and inline bytes of one record, for the trace memory limit.
+    static std::size_t recordBytes(const IterationRecord& r) {
+        constexpr std::size_t kBlock = 16;  // allocator overhead per heap block
+        auto vectorBytes = [](const Vector& v) {
+            return v.size() ? static_cast<std::size_t>(v.size()) * sizeof(double) + kBlock : std::size_t{0};
+        };
+        std::size_t bytes = sizeof(IterationRecord) + vectorBytes(r.x) + vectorBytes(r.gradient) + vectorBytes(r.step) +
+                            vectorBytes(r.hessianEigenvalues);
+        if (r.trials.capacity()) bytes += r.trials.capacity() * sizeof(LineSearchTrial) + kBlock;
+        if (r.dampingName.capacity() > 15) bytes += r.dampingName.capacity() + kBlock;
+        return bytes;
+    }
+
+    // Drops records from the middle of the trace until it takes at most half the memory limit
+    // (so thinning runs once per half-limit of new records: amortised constant work per step).
+    // Kept: record 0, the last kTraceKeptTail records, notable records, and ordinary records
+    // whose iteration is a multiple of the stride. The first pass uses the stride as it is
+    // (records added since the last thinning that are off it go); the stride doubles only
+    // while that is not enough. When notable records alone outgrow a quarter of the limit,
+    // every other one of them goes too.
+    void thinTrace() {
+        std::vector<IterationRecord>& trace = run_.trace;
+        const std::size_t target = rules_.traceMemoryLimit / 2;
+        bool firstPass = true;
+        while (traceBytes_ > target && trace.size() > kTraceKeptTail + 2) {
+            const std::size_t end = trace.size() - kTraceKeptTail;  // records [1, end) may go
+            std::size_t ordinaryBytes = 0, notableBytes = 0;
+            for (std::size_t i = 1; i < end; ++i) (trace[i].notable ? notableBytes : ordinaryBytes) += recordBytes(trace[i]);
+            const bool thinNotable = notableBytes > rules_.traceMemoryLimit / 4 || ordinaryBytes == 0;
+            if (!thinNotable && !firstPass) {
+                if (run_.recordStride > (long{1} << 40)) break;  // beyond any iteration count
+                run_.recordStride *= 2;
+            }
+            firstPass = false;
+            std::size_t write = 1;
+            long notableOrdinal = 0;
+            for (std::size_t read = 1; read < trace.size(); ++read) {
+                IterationRecord& r = trace[read];
+                bool keep = read >= end;
+                if (!keep && r.notable) keep = !thinNotable || (notableOrdinal++ % 2 == 0);
+                else if (!keep) keep = r.iteration % run_.recordStride == 0;
+                if (!keep) {
+                    traceBytes_ -= std::min(traceBytes_, recordBytes(r));
+                    ++run_.droppedRecords;
+                    if (r.notable) ++run_.droppedNotableRecords;
+                    continue;
+                }
+                if (write != read) trace[write] = std::move(r);
+                ++write;
+            }
+            if (write == trace.size()) {
+                if (thinNotable) break;  // nothing could go
+                continue;                // the stride doubles on the next pass
+            }
+            trace.erase(trace.begin() + static_cast<std::ptrdiff_t>(write), trace.end());
+        }
+    }
+
     bool stoppedAtCurrentPoint(double stepNorm, bool accepted, const Vector& previousX = {},
                                double valueChange = kNaN, double previousValue = kNaN) {
         std::string why;
         if (gradientSmallEnough(why)) return finish(Termination::GradientTolerance, why), true;
+        if (gradientReducedEnough(why)) return finish(Termination::GradientRatioBelow, why), true;
         if (accepted && stepTooSmall(stepNorm, previousX, why)) return finish(Termination::StepTolerance, why), true;
         if (accepted && functionChangeTooSmall(valueChange, previousValue, why))
             return finish(Termination::FunctionTolerance, why), true;
-        if (method_->ownConvergence(&why)) return finish(Termination::StepTolerance, why), true;
+        if (const Termination own = method_->ownConvergence(&why); own != Termination::Running)
+            return finish(own, why), true;
         if (iterationLimitReached(why)) return finish(Termination::IterationLimit, why), true;
         if (evaluationLimitReached(why)) return finish(Termination::EvaluationLimit, why), true;
         return false;
@@ -166,13 +239,19 @@ private:
         if (!info_.needsGradient) return false;  // derivative-free methods judge by their own measure
         const double norm = run_.trace.back().gradientNorm;
         if (norm <= rules_.gradientTolerance) {
-            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient tolerance " +
+            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient_norm_below " +
                   shortNumber(rules_.gradientTolerance);
             return true;
         }
-        if (rules_.relativeGradientTolerance > 0 && norm <= rules_.relativeGradientTolerance * initialGradientNorm_) {
-            why = "converged: gradient norm " + shortNumber(norm) + " <= relative tolerance " +
-                  shortNumber(rules_.relativeGradientTolerance) + " x initial gradient norm " +
+        return false;
+    }
+
+    bool gradientReducedEnough(std::string& why) const {
+        if (!info_.needsGradient || !(rules_.relativeGradientTolerance > 0)) return false;
+        const double norm = run_.trace.back().gradientNorm;
+        if (norm <= rules_.relativeGradientTolerance * initialGradientNorm_) {
+            why = "converged: gradient norm " + shortNumber(norm) + " <= gradient_ratio_below " +
+                  shortNumber(rules_.relativeGradientTolerance) + " x the start's gradient norm " +
                   shortNumber(initialGradientNorm_);
             return true;
         }
@@ -186,7 +265,7 @@ private:
         if (stepNorm > rules_.stepTolerance * (1.0 + previousX.lpNorm<1>())) return false;
         const double scale = 1.0 + previousX.norm();
         if (stepNorm <= rules_.stepTolerance * scale) {
-            why = "converged on step: step norm " + shortNumber(stepNorm) + " <= step tolerance " +
+            why = "converged on step: step norm " + shortNumber(stepNorm) + " <= relative_step_below " +
                   shortNumber(rules_.stepTolerance) + " x (1 + |x|) = " + shortNumber(rules_.stepTolerance * scale);
             return true;
         }
@@ -197,7 +276,7 @@ private:
         if (!(rules_.functionTolerance > 0) || !(change >= 0)) return false;
         const double bound = rules_.functionTolerance * (1.0 + std::abs(previousValue));
         if (change <= bound) {
-            why = "converged on function change: |f change| " + shortNumber(change) + " <= function tolerance " +
+            why = "converged on function change: |f change| " + shortNumber(change) + " <= relative_change_below " +
                   shortNumber(rules_.functionTolerance) + " x (1 + |f|) = " + shortNumber(bound);
             return true;
         }
@@ -221,43 +300,52 @@ private:
     }
 
     void finish(Termination kind, std::string message) {
+        // Convergence is claimed only for a stopping test that held with finite numbers.
+        if (isConvergence(kind) && !(std::isfinite(state_.value) && state_.x.allFinite() &&
+                                     (state_.gradient.size() != state_.x.size() || state_.gradient.allFinite()))) {
+            message = "failed: " + message + ", but the value or gradient there is not finite";
+            kind = Termination::Failed;
+        }
         run_.termination = kind;
         run_.message = std::move(message);
         run_.x = state_.x;
         run_.value = state_.value;
         run_.gradientNorm = run_.trace.empty() ? kNaN : run_.trace.back().gradientNorm;
         run_.evaluations = eval_.counts();
-        if (!run_.trace.empty()) run_.trace.back().evaluations = eval_.counts();
+        if (!run_.trace.empty()) {
+            IterationRecord& last = run_.trace.back();
+            last.evaluations = eval_.counts();
+            last.notable = last.notable || !std::isfinite(last.value) || !last.gradient.allFinite();
+        }
         classifyEndPoint();
+        // A stopping test can hold away from a critical point (an absolute gradient tolerance on
+        // a tiny objective, a step tolerance on a slow method): say so beside the claim.
+        if (isConvergence(run_.termination) && run_.endPoint.kind == PointKind::NotCritical)
+            run_.message += "; but the end point is not a critical point (" + run_.endPoint.reason + ")";
     }
 
     void classifyEndPoint() {
         const int n = static_cast<int>(state_.x.size());
         if (n > kClassifyMaxDimension) {
-            run_.endPoint.description = "not classified: " + std::to_string(n) + " variables is above the limit of " +
-                                        std::to_string(kClassifyMaxDimension) + " for an eigendecomposition";
+            run_.endPoint.reason = std::to_string(n) + " variables is above the limit of " +
+                                   std::to_string(kClassifyMaxDimension) + " for an eigendecomposition";
+            run_.endPoint.description = "not classified: " + run_.endPoint.reason;
             return;
         }
-        if (!state_.x.allFinite()) {
-            run_.endPoint.description = "not classified: the end point is not finite";
+        if (!state_.x.allFinite() || !std::isfinite(state_.value)) {
+            run_.endPoint = solve::classifyEndPoint(Matrix(), state_.x, state_.value, state_.gradient);
             return;
         }
         Matrix h;
+        Vector g = state_.gradient;
         if (state_.hasHessian && state_.hessian.rows() == n) {
             h = state_.hessian;
         } else {
-            Vector g;
             objective_.valueGradientHessian(state_.x, g, h);  // exact Hessian; not counted
         }
-        run_.endPoint = classifyPoint(h);
-        // Curvature alone does not make a critical point: say so when the gradient is not small.
-        const double gn = run_.gradientNorm;
-        if (run_.endPoint.kind != PointKind::Unknown && std::isfinite(gn) &&
-            gn > std::max(1e-4, std::sqrt(rules_.gradientTolerance)) * (1.0 + std::abs(run_.value))) {
-            run_.endPoint.critical = false;
-            run_.endPoint.description += "; not a critical point (gradient norm " + shortNumber(gn) +
-                                         "), so this is only the local curvature";
-        }
+        if (g.size() != n) objective_.valueGradient(state_.x, g);
+        // A class only where the point is stationary by a test that does not scale with f.
+        run_.endPoint = solve::classifyEndPoint(h, state_.x, state_.value, g);
     }
 
     const MethodInfo& info_;  // the registration's, which lives as long as the program
@@ -271,6 +359,7 @@ private:
     Run run_;
     bool begun_ = false;
     double initialGradientNorm_ = kNaN;
+    std::size_t traceBytes_ = 0;  // recordBytes of every record but the last
 };
 
 std::string firstNonFinite(const Vector& v, const std::vector<std::string>& names) {
@@ -297,9 +386,23 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
         result.error = "method " + methodId + ": " + why;
         return result;
     }
+    // Values under a former option name (docs/names.md) are read under the current one.
+    OptionValues renamed;
+    const OptionValues* current = &options;
+    for (const auto& entry : options)
+        if (!findOption(info.options, entry.first)) {
+            renamed = options;
+            if (std::string why = renameFormerOptions(info.options, renamed); !why.empty()) {
+                result.error = "method " + methodId + ": " + why;
+                return result;
+            }
+            current = &renamed;
+            break;
+        }
+    const OptionValues& chosen = *current;
     // Every method's defaults pass its own check (tested), so only chosen options need it.
-    if (registration->check && !options.empty()) {
-        if (std::string why = registration->check(options); !why.empty()) {
+    if (registration->check && !chosen.empty()) {
+        if (std::string why = registration->check(chosen); !why.empty()) {
             result.error = "method " + methodId + ": " + why;
             return result;
         }
@@ -350,7 +453,7 @@ SolverOrError makeSolver(const std::string& methodId, const Objective& objective
             return result;
         }
     }
-    std::unique_ptr<MethodState> method = registration->make(options);
+    std::unique_ptr<MethodState> method = registration->make(chosen);
     if (!method) {
         result.error = "method " + methodId + " could not be set up";
         return result;

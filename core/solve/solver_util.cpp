@@ -63,6 +63,11 @@ OptionSpec flagOption(std::string name, std::string description, bool defaultVal
     return s;
 }
 
+OptionSpec formerlyNamed(OptionSpec spec, std::string formerName) {
+    spec.formerNames.push_back(std::move(formerName));
+    return spec;
+}
+
 std::string pointText(const Vector& x, const std::vector<std::string>& names) {
     std::string text = "(";
     const Eigen::Index shown = std::min<Eigen::Index>(x.size(), 8);

@@ -111,7 +111,7 @@ Trial evaluateTrial(Evaluator& eval, const State& state, const Vector& step, dou
     const double actual = state.value - t.value;
     record.actualDecrease = actual;
     record.predictedDecrease = predicted;
-    const double rounding = 100 * kEps * (1.0 + std::abs(state.value));
+    const double rounding = 100 * kEps * (state.valueFloor + std::abs(state.value));
     if (std::abs(actual) <= rounding && std::abs(predicted) <= rounding) {
         t.withinRounding = true;
         t.ratio = 1.0;

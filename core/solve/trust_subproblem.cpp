@@ -143,7 +143,7 @@ double cubicModelDecrease(const Vector& g, const Matrix& b, double sigma, const 
     return quadraticModelDecrease(g, b, p) - sigma / 3.0 * norm * norm * norm;
 }
 
-SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
+static SubproblemResult doglegUnscaled(const Vector& g, const Matrix& b, double radius, double up) {
     SubproblemResult result;
     const Eigen::Index n = g.size();
     const double gnorm = g.norm();
@@ -176,7 +176,7 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
     if (newton.allFinite() && newton.norm() <= radius) {
         result.step = newton;
         result.kind = StepKind::Interior;
-        if (shifted) result.note.add("shifted Newton point inside the region (B not positive definite: path built on B + {3} I)", tau);
+        if (shifted) result.note.add("shifted Newton point inside the region (B not positive definite: path built on B + {3} I)", tau * up);
         else result.note.add("Newton point inside the region");
     } else {
         const Vector cauchy = -(gnorm * gnorm / curvature) * g;
@@ -184,7 +184,7 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
             result.step = (radius / gnorm) * gradientDirection;
             result.kind = StepKind::Cauchy;
             result.onBoundary = true;
-            if (shifted) result.note.add("Cauchy point on the boundary (B not positive definite: path built on B + {3} I)", tau);
+            if (shifted) result.note.add("Cauchy point on the boundary (B not positive definite: path built on B + {3} I)", tau * up);
             else result.note.add("Cauchy point on the boundary");
         } else {
             double tauMinus = 0, tauPlus = 0;
@@ -195,7 +195,7 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
             result.onBoundary = true;
             if (shifted)
                 result.note.add("dogleg path meets the boundary at {3} of the way from Cauchy to Newton point "
-                                "(B not positive definite: path built on B + {3} I)", t, tau);
+                                "(B not positive definite: path built on B + {3} I)", t, tau * up);
             else result.note.add("dogleg path meets the boundary at {3} of the way from Cauchy to Newton point", t);
         }
     }
@@ -203,7 +203,7 @@ SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
     return result;
 }
 
-SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, int maxIterations) {
+static SubproblemResult steihaugUnscaled(const Vector& g, const Matrix& b, double radius, int maxIterations, double up) {
     SubproblemResult result;
     const Eigen::Index n = g.size();
     const double gnorm = g.norm();
@@ -240,8 +240,8 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
             result.step = z + tau * d;
             result.kind = StepKind::NegativeCurvature;
             result.onBoundary = true;
-            result.note.add("CG met curvature d'Bd = {3} <= 0 at inner iteration {}; followed to the boundary", curvature,
-                            j + 1);
+            result.note.add("CG met curvature d'Bd = {3} <= 0 at inner iteration {}; followed to the boundary",
+                            curvature * up * up * up, j + 1);
             finished = true;
             break;
         }
@@ -280,7 +280,7 @@ SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, i
     return result;
 }
 
-SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double radius) {
+static SubproblemResult exactUnscaled(const Vector& g, const Matrix& b, double radius, double up) {
     SubproblemResult result;
     const double gnorm = g.norm();
     {
@@ -312,7 +312,7 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
                     result.onBoundary = true;
                     result.multiplier = lambda;
                     result.innerIterations = it;
-                    result.note.add("boundary step, lambda = {3} after {} Cholesky-Newton iterations", lambda, it);
+                    result.note.add("boundary step, lambda = {3} after {} Cholesky-Newton iterations", lambda * up, it);
                     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
                     return result;
                 }
@@ -364,7 +364,7 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
                 result.onBoundary = true;
                 result.multiplier = lo;
                 result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it to the boundary",
-                                lambda1);
+                                lambda1 * up);
             }
             result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
             return result;
@@ -383,12 +383,12 @@ SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double r
     result.onBoundary = true;
     result.multiplier = lambda;
     result.innerIterations = iterations;
-    result.note.add("boundary step, lambda = {3} after {} secular-equation iterations", lambda, iterations);
+    result.note.add("boundary step, lambda = {3} after {} secular-equation iterations", lambda * up, iterations);
     result.predictedDecrease = quadraticModelDecrease(g, b, result.step);
     return result;
 }
 
-SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
+static SubproblemResult cubicUnscaled(const Vector& g, const Matrix& b, double sigma, double up) {
     SubproblemResult result;
     result.kind = StepKind::Cubic;
     const double gnorm = g.norm();
@@ -414,7 +414,7 @@ SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
             result.step = partial + tau * eb.q.col(0);
             result.hardCase = true;
             result.multiplier = lo;
-            result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it", lambda1);
+            result.note.add("hard case: g is orthogonal to the eigenvector of lambda_min = {3}; moved along it", lambda1 * up);
             result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
             return result;
         }
@@ -427,10 +427,65 @@ SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
     result.step = eb.step(delta);
     result.multiplier = lambda;
     result.innerIterations = iterations;
-    result.note.add("cubic model minimiser, lambda = sigma |p| = {3} after {} secular-equation iterations", lambda,
+    result.note.add("cubic model minimiser, lambda = sigma |p| = {3} after {} secular-equation iterations", lambda * up,
                     iterations);
     result.predictedDecrease = cubicModelDecrease(g, b, sigma, result.step);
     return result;
+}
+
+// Exact rescaling (scale invariance of the subproblems). Multiplying g and B (and the cubic
+// weight sigma) by c leaves the step unchanged and multiplies the model decrease and the
+// multiplier by c. When the entries of g and B lie outside [2^-100, 2^100], they are scaled by
+// the power of two that brings the largest into [0.5, 1): exact (no rounding), and the
+// products inside (g'Bg, |g|^3 of the Cauchy point, d'Bd of CG) can no longer overflow or
+// underflow. At f = 1e150 (x^2 + y^2) the CG curvature d'Bd was 1e450 = inf, which made the
+// step 0 and the run "converge on step" at the start. Inside the range nothing changes (bit
+// for bit), so the published-problem catalogue keeps its iteration counts.
+namespace {
+
+int modelScaleExponent(const Vector& g, const Matrix& b) {
+    const double largest = std::max(g.size() ? g.cwiseAbs().maxCoeff() : 0.0, b.size() ? b.cwiseAbs().maxCoeff() : 0.0);
+    if (!(largest > 0) || !std::isfinite(largest)) return 0;
+    int exponent = 0;
+    std::frexp(largest, &exponent);  // largest = m 2^exponent, m in [0.5, 1)
+    return (exponent > 100 || exponent < -100) ? exponent : 0;
+}
+
+template <class Solve>
+SubproblemResult rescaled(const Vector& g, const Matrix& b, Solve solve) {
+    const int exponent = modelScaleExponent(g, b);
+    if (exponent == 0) return solve(g, b, 1.0, 1.0);
+    const double down = std::ldexp(1.0, -exponent), up = std::ldexp(1.0, exponent);
+    SubproblemResult result = solve(g * down, b * down, down, up);
+    result.predictedDecrease *= up;
+    result.multiplier *= up;
+    return result;
+}
+
+}  // namespace
+
+SubproblemResult doglegStep(const Vector& g, const Matrix& b, double radius) {
+    return rescaled(g, b, [&](const Vector& sg, const Matrix& sb, double, double up) {
+        return doglegUnscaled(sg, sb, radius, up);
+    });
+}
+
+SubproblemResult steihaugStep(const Vector& g, const Matrix& b, double radius, int maxIterations) {
+    return rescaled(g, b, [&](const Vector& sg, const Matrix& sb, double, double up) {
+        return steihaugUnscaled(sg, sb, radius, maxIterations, up);
+    });
+}
+
+SubproblemResult exactTrustRegionStep(const Vector& g, const Matrix& b, double radius) {
+    return rescaled(g, b, [&](const Vector& sg, const Matrix& sb, double, double up) {
+        return exactUnscaled(sg, sb, radius, up);
+    });
+}
+
+SubproblemResult cubicStep(const Vector& g, const Matrix& b, double sigma) {
+    return rescaled(g, b, [&](const Vector& sg, const Matrix& sb, double down, double up) {
+        return cubicUnscaled(sg, sb, sigma * down, up);
+    });
 }
 
 }  // namespace sw::solve

@@ -2,6 +2,8 @@
 // was saved with (SHA-256, FIPS 180-4, through OpenSSL's EVP interface).
 #include "core/study/study.h"
 
+#include "core/objective/text_file.h"
+
 #include <openssl/evp.h>
 
 #include <filesystem>
@@ -17,7 +19,25 @@ std::string directoryOf(const std::string& studyPath) {
     return parent.empty() ? std::string(".") : parent.string();
 }
 
+// A study's data must be a regular file of at most kMaxTableBytes: its checksum names one
+// fixed file, and a device such as /dev/zero would never end.
+void checkDataFile(const std::string& path, const std::string& shownPath) {
+    std::error_code ec;
+    const fs::file_status status = fs::status(path, ec);
+    if (fs::is_directory(status))
+        throw StudyError("objective.data", "'" + shownPath + "' is a directory; give the data file (a CSV table)");
+    if (fs::exists(status) && !fs::is_regular_file(status))
+        throw StudyError("objective.data", "'" + shownPath +
+                                               "' is not a regular file (a study's data must be a file, so that its "
+                                               "checksum names fixed contents)");
+    const std::uintmax_t size = fs::file_size(path, ec);
+    if (!ec && size > kMaxTableBytes)
+        throw StudyError("objective.data", "'" + shownPath + "' is " + std::to_string(size) + " bytes; the limit is " +
+                                               byteSizeText(kMaxTableBytes));
+}
+
 std::string fileChecksum(const std::string& path) {
+    checkDataFile(path, path);
     std::ifstream in(path, std::ios::binary);
     if (!in) throw StudyError("file", "cannot open '" + path + "' to compute its checksum");
     std::unique_ptr<EVP_MD_CTX, decltype(&EVP_MD_CTX_free)> context(EVP_MD_CTX_new(), &EVP_MD_CTX_free);

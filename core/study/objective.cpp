@@ -11,6 +11,7 @@
 namespace sw::study {
 
 std::string resolveDataPath(const std::string& dataPath, const std::string& baseDirectory);  // checksum.cpp
+void checkDataFile(const std::string& path, const std::string& shownPath);                 // checksum.cpp
 
 std::vector<std::string> Study::variableNames() const {
     std::vector<std::string> names;
@@ -41,8 +42,11 @@ namespace {
 std::shared_ptr<const Objective> makeFitObjective(const Study& study, const DataFit& fit,
                                                   const std::string& baseDirectory) {
     const std::string path = resolveDataPath(fit.dataPath, baseDirectory);
-    if (!std::filesystem::exists(path))
+    std::error_code ec;
+    const auto status = std::filesystem::status(path, ec);
+    if (!std::filesystem::exists(status))
         throw StudyError("objective.data", "the data file '" + fit.dataPath + "' is missing (looked for " + path + ")");
+    checkDataFile(path, fit.dataPath);
     const std::string now = fileChecksum(path);
     if (now != fit.checksum)
         throw StudyError("objective.checksum",

@@ -17,6 +17,13 @@ namespace sw::study {
 inline constexpr const char* kFormatName = "saddlewise-study";
 inline constexpr int kFormatVersion = 1;
 
+// Stated limits (docs/robustness.md); a study over one is refused with the field, the value
+// and the limit. The file size limit is kMaxStudyBytes (core/objective/text_file.h, 16 MiB);
+// a data file must be a regular file of at most kMaxTableBytes (1 GiB).
+inline constexpr std::size_t kMaxStudyNesting = 32;    // levels of [ and { (a study needs 4)
+inline constexpr std::size_t kMaxMethodEntries = 1000;  // entries in "methods"
+inline constexpr std::size_t kMaxVariables = 1000;      // entries in "variables"
+
 // A problem in a study, with its place in the document, e.g.
 // "methods[2].options.initial_radius: must be > 0 (got -1)".
 class StudyError : public std::runtime_error {
@@ -32,7 +39,7 @@ private:
 struct Variable {
     std::string name;
     double start = 0;
-    double lower = -1, upper = 1;  // plot range
+    double lower = -1, upper = 1;  // plot range ("plot_from", "plot_to"), not a bound on the variable
     bool operator==(const Variable&) const = default;
 };
 
@@ -102,11 +109,14 @@ struct Study {
 //              or { "data": "table.csv", "checksum": "sha256:...", "model": "...", "response": "y",
 //                   "loss": "least-squares", "weights" | "sigma": "column", "scale": 1,
 //                   "separator": "auto", "drop_incomplete_rows": false },
-//     "variables": [ { "name": "x", "start": -1, "lower": -2, "upper": 2 }, ... ],
+//     "variables": [ { "name": "x", "start": -1, "plot_from": -2, "plot_to": 2 }, ... ],
 //     "methods": [ { "label": "...", "method": "bfgs", "options": { "name": value },
 //                    "colour": "#rrggbb", "marker": "circle", "enabled": true }, ... ],
-//     "stopping": { "max_iterations": 200, "max_evaluations": 100000, "gradient_tolerance": 1e-8,
-//                   "relative_gradient_tolerance": 0, "step_tolerance": 1e-14, "function_tolerance": 0 },
+//     "stopping": { "max_iterations": 200, "max_evaluations": 100000, "gradient_norm_below": 1e-8,
+//                   "gradient_ratio_below": 0, "relative_step_below": 1e-14, "relative_change_below": 0 },
+// Former key names are read and saved under the current ones (docs/names.md): variables'
+// "lower"/"upper", the stopping tolerances' "*_tolerance", the loss ids "bernoulli-logit" and
+// "poisson-log", and method options' former names.
 //     "view": { "plot_x": "x", "plot_y": "y", "log_colour": false, "contour_count": 14, "grid_cells": 200 } }
 // verifyData = false (added) skips reading the data file of a data-fit study (it may be
 // missing or changed), so a window can open the study and let the user locate or accept the

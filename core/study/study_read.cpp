@@ -8,9 +8,11 @@
 #include "core/study/study.h"
 
 #include "core/expr/expr.h"
+#include "core/expr/number_text.h"
 #include "core/objective/fit_objective.h"
 #include "core/objective/formula_objective.h"
 #include "core/objective/table.h"
+#include "core/objective/text_file.h"
 #include "core/solve/method.h"
 #include "core/solve/solver.h"
 
@@ -21,7 +23,9 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <limits>
 #include <set>
+#include <unordered_set>
 #include <sstream>
 
 namespace sw::study {
@@ -102,6 +106,13 @@ public:
 
     std::string at(const std::string& key) const { return place_.empty() ? key : place_ + "." + key; }
     bool has(const std::string& key) const { return value_.contains(key); }
+    // The key a value is given under: its name, or its former name (docs/names.md), which is
+    // read but never written. Both at once is an error.
+    std::string keyOrFormer(const std::string& key, const std::string& former) const {
+        if (has(key) && has(former))
+            fail(at(former), "is the former name of \"" + key + "\", which is also given; keep one");
+        return has(former) ? former : key;
+    }
     const Json& get(const std::string& key) const {
         if (!has(key)) fail(at(key), "missing (required)");
         return value_.at(key);
@@ -173,36 +184,172 @@ std::string lineAndColumn(const std::string& text, std::size_t byte) {
     return "line " + std::to_string(line) + ", column " + std::to_string(column);
 }
 
-Json parseDocument(const std::string& text) {
-    // Repeated keys in one object would silently keep one of the values: refuse them.
-    std::vector<std::set<std::string>> seen;
-    std::string duplicate;
-    Json::parser_callback_t watch = [&](int, nlohmann::json::parse_event_t event, Json& parsed) {
-        if (event == nlohmann::json::parse_event_t::object_start)
-            seen.emplace_back();
-        else if (event == nlohmann::json::parse_event_t::object_end && !seen.empty())
-            seen.pop_back();
-        else if (event == nlohmann::json::parse_event_t::key && !seen.empty() && duplicate.empty() &&
-                 !seen.back().insert(parsed.get<std::string>()).second)
-            duplicate = parsed.get<std::string>();
+// Builds the document from nlohmann-json's SAX events, checking as it goes what a DOM parse
+// would not: the nesting depth (a study is 4 levels deep; 10^5 levels would exhaust the stack
+// of anything recursive later), repeated keys (which would silently keep one value), and the
+// number rule (core/expr/number_text.h: overflow and underflow are "out of range", named by
+// field). The first problem stops the parse and is reported with its field path.
+class DocumentBuilder {
+public:
+    using number_integer_t = Json::number_integer_t;
+    using number_unsigned_t = Json::number_unsigned_t;
+    using number_float_t = Json::number_float_t;
+    using string_t = Json::string_t;
+    using binary_t = Json::binary_t;
+
+    explicit DocumentBuilder(const std::string& text) : text_(text) {}
+
+    bool null() { return put(Json(nullptr)); }
+    bool boolean(bool value) { return put(Json(value)); }
+    bool number_integer(number_integer_t value) { return put(Json(value)); }
+    bool number_unsigned(number_unsigned_t value) { return put(Json(value)); }
+    bool number_float(number_float_t value, const string_t& literal) {
+        double checked = 0;
+        const NumberStatus status = readDecimal(literal, checked, false);
+        if (status == NumberStatus::TooLarge || status == NumberStatus::TooSmall)
+            return fail(path(), outOfRangeText(literal, status));
+        return put(Json(value));
+    }
+    bool string(string_t& value) { return put(Json(std::move(value))); }
+    bool binary(binary_t&) { return fail(path(), "binary data is not JSON text"); }
+    bool start_object(std::size_t) { return open(Json::object(), false); }
+    bool key(string_t& name) {
+        Level& top = levels_.back();
+        if (!top.keys.insert(name).second)
+            return fail(joined(name), "this key appears twice in one object; each key may appear once");
+        top.key = std::move(name);
         return true;
-    };
-    Json document;
-    try {
-        document = Json::parse(text, watch);
-    } catch (const nlohmann::json::parse_error& e) {
-        // e.byte is 1-based: the position of the last character read.
+    }
+    bool end_object() { return close(); }
+    bool start_array(std::size_t) { return open(Json::array(), true); }
+    bool end_array() { return close(); }
+    bool parse_error(std::size_t byte, const std::string&, const nlohmann::detail::exception& e) {
+        if (!error_.empty()) return false;
+        if (e.id == 406) {  // number overflow: the literal is in the message between quotes
+            std::string literal = e.what();
+            const auto open = literal.find('\''), close = literal.rfind('\'');
+            literal = open != std::string::npos && close > open ? literal.substr(open + 1, close - open - 1) : "a number";
+            return fail(path(), outOfRangeText(literal, NumberStatus::TooLarge));
+        }
+        // byte is 1-based: the position of the last character read.
         std::string problem = e.what();
         const auto column = problem.find("column ");
         const auto colon = column == std::string::npos ? std::string::npos : problem.find(": ", column);
         if (colon != std::string::npos) problem = problem.substr(colon + 2);
-        const auto bracket = problem.find("[json.exception");
-        if (bracket == 0) problem = problem.substr(problem.find(']') + 2);
-        throw StudyError(lineAndColumn(text, e.byte > 0 ? e.byte - 1 : 0), "not valid JSON: " + problem);
+        if (problem.find("[json.exception") == 0) problem = problem.substr(problem.find(']') + 2);
+        return fail(lineAndColumn(text_, byte > 0 ? byte - 1 : 0), "not valid JSON: " + problem);
     }
-    if (!duplicate.empty())
-        throw StudyError(duplicate, "this key appears twice in one object; each key may appear once");
-    return document;
+
+    Json& document() { return root_; }
+    const std::string& errorPlace() const { return errorPlace_; }
+    const std::string& error() const { return error_; }
+
+private:
+    struct Level {
+        Json* value;
+        bool isArray;
+        std::size_t index = 0;  // arrays: the next element's index
+        std::string key;        // objects: the key whose value comes next
+        std::unordered_set<std::string> keys;
+    };
+
+    // The place of levels_[0, count) followed by the value that comes next in the last of
+    // them, e.g. "methods[2].options.initial_radius". An outer array's open element is its
+    // last one (index - 1); the innermost array's next element is at index.
+    std::string placeOf(std::size_t count, std::size_t limit = std::string::npos) const {
+        std::string place = !levels_.empty() && levels_[0].isArray ? "document" : "";
+        for (std::size_t i = 0; i < count && i < levels_.size(); ++i) {
+            if (i == limit) return place + "...";
+            const Level& level = levels_[i];
+            const bool innermost = i + 1 == levels_.size();
+            if (level.isArray) place += "[" + std::to_string(innermost || level.index == 0 ? level.index : level.index - 1) + "]";
+            else place += (place.empty() ? "" : ".") + level.key;
+        }
+        return place.empty() ? "document" : place;
+    }
+    std::string path() const { return placeOf(levels_.size()); }
+    std::string joined(const std::string& name) const {
+        const std::string parent = levels_.size() > 1 ? placeOf(levels_.size() - 1) : "";
+        return parent.empty() ? name : parent + "." + name;
+    }
+
+    Json* insert(Json&& value) {
+        if (levels_.empty()) {
+            root_ = std::move(value);
+            return &root_;
+        }
+        Level& top = levels_.back();
+        if (top.isArray) {
+            top.value->push_back(std::move(value));
+            ++top.index;
+            return &top.value->back();
+        }
+        Json& slot = (*top.value)[top.key];
+        slot = std::move(value);
+        return &slot;
+    }
+    bool put(Json&& value) {
+        insert(std::move(value));
+        return true;
+    }
+    bool open(Json&& container, bool isArray) {
+        if (levels_.size() >= kMaxStudyNesting) {
+            // Where the limit was crossed: the first kMaxStudyNesting + 1 deep bracket.
+            std::size_t depth = 0, at = 0;
+            bool inString = false;
+            for (std::size_t i = 0; i < text_.size(); ++i) {
+                const char c = text_[i];
+                if (inString) {
+                    if (c == '\\') ++i;
+                    else if (c == '"') inString = false;
+                } else if (c == '"') {
+                    inString = true;
+                } else if (c == '[' || c == '{') {
+                    if (++depth > kMaxStudyNesting) {
+                        at = i;
+                        break;
+                    }
+                } else if (c == ']' || c == '}') {
+                    --depth;
+                }
+            }
+            return fail(placeOf(levels_.size(), 3),
+                        "nested more than " + std::to_string(kMaxStudyNesting) + " levels deep at " +
+                            lineAndColumn(text_, at) + " (a study needs 4)");
+        }
+        Json* value = insert(std::move(container));
+        levels_.push_back({value, isArray, 0, {}, {}});
+        return true;
+    }
+    bool close() {
+        levels_.pop_back();
+        return true;
+    }
+    bool fail(std::string place, std::string problem) {
+        if (error_.empty()) {
+            errorPlace_ = std::move(place);
+            error_ = std::move(problem);
+        }
+        return false;
+    }
+
+    const std::string& text_;
+    Json root_;
+    std::vector<Level> levels_;
+    std::string errorPlace_, error_;
+};
+
+Json parseDocument(const std::string& text) {
+    // Text that is not JSON at all: say what it is instead of an "invalid literal".
+    if (const auto nul = text.find('\0'); nul != std::string::npos)
+        throw StudyError(lineAndColumn(text, nul), "a NUL byte: a study file is JSON text (is this a binary file?)");
+    DocumentBuilder builder(text);
+    const bool parsed = Json::sax_parse(text, &builder);
+    if (!parsed || !builder.error().empty()) {
+        if (builder.error().empty()) throw StudyError("document", "not valid JSON");
+        throw StudyError(builder.errorPlace(), builder.error());
+    }
+    return std::move(builder.document());
 }
 
 void readHeader(const Json& document) {
@@ -217,14 +364,15 @@ void readHeader(const Json& document) {
                                        "\", got " + shown(format) + ")");
     if (!document.contains("version")) throw StudyError("version", "missing (required)");
     const Json& version = document.at("version");
-    if (!version.is_number_integer() && !version.is_number_unsigned())
+    // Compared as a double so a huge version (above 2^63, or written 1e30) reads as what it is.
+    const double v = version.is_number() ? version.get<double>() : std::nan("");
+    if (!version.is_number() || v != std::floor(v))
         throw StudyError("version", "must be a whole number (got " + shown(version) + ")");
-    const long long v = version.get<long long>();
     if (v > kFormatVersion)
-        throw StudyError("version", "this file is format version " + std::to_string(v) +
+        throw StudyError("version", "this file is format version " + shown(version) +
                                         "; this Saddlewise reads up to " + std::to_string(kFormatVersion) +
                                         " - update Saddlewise");
-    if (v < 1) throw StudyError("version", "must be 1 or more (got " + std::to_string(v) + ")");
+    if (v < 1) throw StudyError("version", "must be 1 or more (got " + shown(version) + ")");
 }
 
 std::vector<Variable> readVariables(const Json& document) {
@@ -234,24 +382,28 @@ std::vector<Variable> readVariables(const Json& document) {
     if (list.size() < 2)
         throw StudyError("variables", "a study needs at least two variables (the landscape plots two; got " +
                                           std::to_string(list.size()) + ")");
+    if (list.size() > kMaxVariables)
+        throw StudyError("variables", "has " + std::to_string(list.size()) + " entries; the limit is " +
+                                          std::to_string(kMaxVariables));
+    std::unordered_set<std::string> names;
     std::vector<Variable> variables;
     for (std::size_t k = 0; k < list.size(); ++k) {
         const std::string place = item("variables", k);
-        ObjectReader in(list[k], place, {"name", "start", "lower", "upper"});
+        ObjectReader in(list[k], place, {"name", "start", "plot_from", "plot_to", "lower", "upper"});
         in.rejectUnknownKeys();
+        const std::string from = in.keyOrFormer("plot_from", "lower"), to = in.keyOrFormer("plot_to", "upper");
         Variable v;
         v.name = in.text("name", "", true);
         if (!isName(v.name))
             ObjectReader::fail(in.at("name"),
                                "'" + v.name + "' is not a valid name (letters, digits, _; not starting with a digit)");
-        for (const Variable& earlier : variables)
-            if (earlier.name == v.name) ObjectReader::fail(in.at("name"), "'" + v.name + "' is named twice");
+        if (!names.insert(v.name).second) ObjectReader::fail(in.at("name"), "'" + v.name + "' is named twice");
         v.start = in.number("start", 0, true);
-        v.lower = in.number("lower", 0, true);
-        v.upper = in.number("upper", 0, true);
+        v.lower = in.number(from, 0, true);
+        v.upper = in.number(to, 0, true);
         if (!(v.lower < v.upper))
-            ObjectReader::fail(in.at("lower"), "must be below upper (got lower " + numberText(v.lower) + ", upper " +
-                                                   numberText(v.upper) + ")");
+            ObjectReader::fail(in.at(from), "must be below " + to + " (got " + from + " " + numberText(v.lower) + ", " +
+                                                to + " " + numberText(v.upper) + ")");
         variables.push_back(v);
     }
     return variables;
@@ -311,7 +463,12 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
     if (!document.contains("methods")) throw StudyError("methods", "missing (required; may be an empty list [])");
     const Json& list = document.at("methods");
     if (!list.is_array()) throw StudyError("methods", "must be a list [...] (got " + jsonTypeName(list) + ")");
+    if (list.size() > kMaxMethodEntries)
+        throw StudyError("methods", "has " + std::to_string(list.size()) + " entries; the limit is " +
+                                        std::to_string(kMaxMethodEntries));
     std::vector<MethodEntry> entries;
+    entries.reserve(list.size());
+    std::unordered_set<std::string> labels;  // a hash set: the check stays linear in the entries
     for (std::size_t k = 0; k < list.size(); ++k) {
         const std::string place = item("methods", k);
         ObjectReader in(list[k], place, {"label", "method", "options", "colour", "marker", "enabled"});
@@ -328,18 +485,16 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                                                     "objective has none (a formula, or a fit with another loss)");
         entry.label = in.text("label", entry.method);
         if (entry.label.empty()) ObjectReader::fail(in.at("label"), "must not be empty");
-        for (const MethodEntry& earlier : entries)
-            if (earlier.label == entry.label)
-                ObjectReader::fail(in.at("label"), "'" + entry.label +
-                                                       "' is already used by an earlier entry; labels "
-                                                       "must be unique (they name the runs)");
+        if (!labels.insert(entry.label).second)
+            ObjectReader::fail(in.at("label"), "'" + entry.label +
+                                                   "' is already used by an earlier entry; labels "
+                                                   "must be unique (they name the runs)");
         if (in.has("options")) {
             ObjectReader options(in.get("options"), in.at("options"), {});
             for (const auto& option : in.get("options").items()) {
                 const std::string optionPlace = options.at(option.key());
-                const solve::OptionSpec* spec = nullptr;
-                for (const solve::OptionSpec& s : info->options)
-                    if (s.name == option.key()) spec = &s;
+                // A former option name (docs/names.md) is read, and kept under the current name.
+                const solve::OptionSpec* spec = solve::findOptionOrFormer(info->options, option.key());
                 if (!spec) {
                     std::vector<std::string> names;
                     for (const solve::OptionSpec& s : info->options) names.push_back(s.name);
@@ -348,9 +503,12 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                                            (names.empty() ? "; it takes no options" : "; its options: " + join(names)));
                 }
                 const std::string text = optionText(*spec, option.value(), optionPlace);
-                const std::string problem = solve::checkOptions(info->options, {{option.key(), text}});
-                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, option.key()));
-                entry.options[option.key()] = text;
+                const std::string problem = solve::checkOptions(info->options, {{spec->name, text}});
+                if (!problem.empty()) ObjectReader::fail(optionPlace, withoutOptionPrefix(problem, spec->name));
+                if (entry.options.count(spec->name))
+                    ObjectReader::fail(optionPlace, "is the same option as \"" + spec->name +
+                                                        "\" (its former or current name), which is also given; keep one");
+                entry.options[spec->name] = text;
             }
             for (const solve::MethodRegistration& registration : solve::registrations())
                 if (registration.info.id == entry.method && registration.check) {
@@ -373,24 +531,32 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
 
 void readStopping(const Json& document, Study& study) {
     if (!document.contains("stopping")) return;
+    // The tolerances are named after the test each sets (docs/names.md); the former names
+    // are read too.
     ObjectReader in(document.at("stopping"), "stopping",
-                    {"max_iterations", "max_evaluations", "gradient_tolerance", "relative_gradient_tolerance",
-                     "step_tolerance", "function_tolerance"});
+                    {"max_iterations", "max_evaluations", "gradient_norm_below", "gradient_ratio_below",
+                     "relative_step_below", "relative_change_below", "gradient_tolerance",
+                     "relative_gradient_tolerance", "step_tolerance", "function_tolerance"});
     in.rejectUnknownKeys();
     study.maxIterations = static_cast<int>(in.integer("max_iterations", study.maxIterations, 1, 1000000));
     study.maxEvaluations = in.integer("max_evaluations", study.maxEvaluations, 1, 1000000000);
+    // Tolerances: any number >= 0 (every finite double is a valid tolerance; a number too large
+    // for a double is refused while reading the JSON), the relative one below 1.
+    constexpr double kNoLimit = std::numeric_limits<double>::infinity();
     auto nonNegative = [&](const std::string& key, double fallback, double below) {
         const double v = in.number(key, fallback);
         if (!(v >= 0) || !(v < below))
-            ObjectReader::fail(in.at(key), "must be >= 0" +
-                                               (below < 1e300 ? " and < " + numberText(below) : std::string()) +
+            ObjectReader::fail(in.at(key), "must be >= 0" + (below < kNoLimit ? " and < " + numberText(below) : std::string()) +
                                                " (got " + numberText(v) + ")");
         return v;
     };
-    study.gradientTolerance = nonNegative("gradient_tolerance", study.gradientTolerance, 1e308);
-    study.relativeGradientTolerance = nonNegative("relative_gradient_tolerance", study.relativeGradientTolerance, 1);
-    study.stepTolerance = nonNegative("step_tolerance", study.stepTolerance, 1e308);
-    study.functionTolerance = nonNegative("function_tolerance", study.functionTolerance, 1e308);
+    study.gradientTolerance =
+        nonNegative(in.keyOrFormer("gradient_norm_below", "gradient_tolerance"), study.gradientTolerance, kNoLimit);
+    study.relativeGradientTolerance = nonNegative(in.keyOrFormer("gradient_ratio_below", "relative_gradient_tolerance"),
+                                                  study.relativeGradientTolerance, 1);
+    study.stepTolerance = nonNegative(in.keyOrFormer("relative_step_below", "step_tolerance"), study.stepTolerance, kNoLimit);
+    study.functionTolerance =
+        nonNegative(in.keyOrFormer("relative_change_below", "function_tolerance"), study.functionTolerance, kNoLimit);
     const std::string problem = study.stoppingRules().check();
     if (!problem.empty()) ObjectReader::fail("stopping", problem);
 }
@@ -472,6 +638,7 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
         Loss loss;
         if (!parseLoss(fit.loss, loss))
             ObjectReader::fail(objective.at("loss"), "must be one of: " + lossList() + " (got \"" + fit.loss + "\")");
+        fit.loss = toString(loss);  // a former id (docs/names.md) is saved under the current one
         if (objective.has("weights") && objective.has("sigma"))
             ObjectReader::fail(objective.at("sigma"), "give either \"weights\" or \"sigma\", not both");
         if (objective.has("sigma")) {
@@ -504,12 +671,16 @@ Study fromJson(const std::string& text, const std::string& baseDirectory, bool v
 }
 
 Study loadFile(const std::string& path, bool verifyData) {
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw StudyError("file", "cannot open '" + path + "' for reading");
-    std::ostringstream text;
-    text << in.rdbuf();
-    if (in.bad()) throw StudyError("file", "cannot read '" + path + "'");
-    return fromJson(text.str(), directoryOf(path), verifyData);
+    std::string text;
+    try {
+        // A stream (pipe, /dev/stdin) is read like a file; a NUL stops the reading at once.
+        text = readTextFile(path, kMaxStudyBytes);
+    } catch (const TextFileError& e) {
+        throw StudyError("file", "'" + path + "' " + e.what() + (std::string(e.what()).find("directory") != std::string::npos
+                                                                      ? " (give the study's .json file)"
+                                                                      : ""));
+    }
+    return fromJson(text, directoryOf(path), verifyData);
 }
 
 }  // namespace sw::study

@@ -80,7 +80,7 @@ std::string toJson(const Study& study) {
 
     Json variables = Json::array();
     for (const Variable& v : study.variables)
-        variables.push_back({{"name", v.name}, {"start", v.start}, {"lower", v.lower}, {"upper", v.upper}});
+        variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
     document["variables"] = variables;
 
     Json methods = Json::array();
@@ -98,10 +98,10 @@ std::string toJson(const Study& study) {
 
     document["stopping"] = {{"max_iterations", study.maxIterations},
                             {"max_evaluations", study.maxEvaluations},
-                            {"gradient_tolerance", study.gradientTolerance},
-                            {"relative_gradient_tolerance", study.relativeGradientTolerance},
-                            {"step_tolerance", study.stepTolerance},
-                            {"function_tolerance", study.functionTolerance}};
+                            {"gradient_norm_below", study.gradientTolerance},
+                            {"gradient_ratio_below", study.relativeGradientTolerance},
+                            {"relative_step_below", study.stepTolerance},
+                            {"relative_change_below", study.functionTolerance}};
 
     auto variableName = [&](int index) {
         return index >= 0 && index < static_cast<int>(study.variables.size()) ? study.variables[index].name

@@ -66,9 +66,9 @@ std::unique_ptr<sw::FitObjective> objective(int threads = 0) {
 sw::Vector start() { return Eigen::Map<const sw::Vector>(kStart.data(), static_cast<Eigen::Index>(kStart.size())); }
 
 sw::solve::OptionValues settings(bool unitScaling) {
-    sw::solve::OptionValues options{{"function_tolerance", "1e-12"},
-                                    {"step_tolerance", "1e-12"},
-                                    {"orthogonality_tolerance", "1e-12"}};
+    sw::solve::OptionValues options{{"reduction_below", "1e-12"},
+                                    {"scaled_radius_below", "1e-12"},
+                                    {"column_cosine_below", "1e-12"}};
     if (unitScaling) {
         options["scaling"] = "none";
         options["initial_radius_factor"] = "100";

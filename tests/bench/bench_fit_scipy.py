@@ -60,12 +60,12 @@ def scipy_fit(t, y, method, x_scale):
 # diag = 1/x_scale (x_scale=1.0: a plain ball, MINPACK mode 2) or by the column norms of J
 # (x_scale='jac', mode 1, Moré 1978), starts at radius factor * |diag * x0| with factor = 100,
 # and stops on ftol, xtol, gtol. Ours: scaling none/jacobian, initial_radius_factor,
-# function/step/orthogonality tolerances.
+# reduction_below, scaled_radius_below, column_cosine_below.
 PAIRS = (
     ("lm", 1.0, "MinpackUnitScaling",
-     "scaling=none, initial_radius_factor=100, function/step/orthogonality tolerance 1e-12"),
+     "scaling=none, initial_radius_factor=100, reduction/scaled radius/column cosine below 1e-12"),
     ("lm", "jac", "JacobianScaling",
-     "scaling=jacobian, initial_radius_factor=1 (our defaults), function/step/orthogonality tolerance 1e-12"),
+     "scaling=jacobian, initial_radius_factor=1 (our defaults), reduction/scaled radius/column cosine below 1e-12"),
     ("trf", 1.0, "JacobianScaling", "as above (our defaults)"),
 )
 

@@ -65,8 +65,8 @@ void printProblemsJson() {
     // Nelder-Mead stops on its own simplex test; SciPy gets the same (xatol, fatol) as ours.
     if (const sw::solve::MethodInfo* nm = sw::solve::findMethod("nelder-mead")) {
         for (const sw::solve::OptionSpec& o : nm->options) {
-            if (o.name == "simplex_tolerance") out["simplex_tolerance"] = o.defaultValue;
-            if (o.name == "value_tolerance") out["value_tolerance"] = o.defaultValue;
+            if (o.name == "simplex_size_below") out["simplex_size_below"] = o.defaultValue;
+            if (o.name == "value_spread_below") out["value_spread_below"] = o.defaultValue;
         }
     }
     for (const MethodPair& m : kPairs) out["pairs"].push_back({{"ours", m.ours}, {"scipy", m.scipy}});

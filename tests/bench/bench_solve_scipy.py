@@ -177,7 +177,7 @@ def main():
             if key not in our_runs:
                 continue
             mine = our_runs[key]
-            simplex = (problems.get("simplex_tolerance", 1e-8), problems.get("value_tolerance", 1e-12))
+            simplex = (problems.get("simplex_size_below", 1e-8), problems.get("value_spread_below", 1e-12))
             seconds, result = time_per_solve(pair["scipy"], funcs, x0, problems["gtol"], simplex)
             ratio = seconds / mine["seconds"]
             scipy_iterations = int(getattr(result, "nit", -1))

@@ -3,10 +3,12 @@
 // the samples' stated true values (samples/make_samples.py), checked loosely: the noise is
 // real, so the estimates must fall within a few standard errors.
 #include "app/cli/cli.h"
+#include "core/study/provenance.h"
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 #include <sstream>
@@ -55,9 +57,10 @@ TEST(FitVerb, FitsTheSensorSampleAndPrintsJsonWithEveryKey) {
 
 TEST(FitVerb, FitsTheGerminationSampleWithTheLogisticLoss) {
     Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture + b2*chill_days", "--response",
-                     "germinated", "--loss", "bernoulli-logit", "--start", "b0=0,b1=0,b2=0", "--json", "--summary"});
+                     "germinated", "--loss", "logistic", "--start", "b0=0,b1=0,b2=0", "--json", "--summary"});
     ASSERT_EQ(o.code, 0) << o.err;
     const auto j = nlohmann::json::parse(o.out);
+    EXPECT_EQ(j["loss"], "logistic");
     EXPECT_TRUE(j.contains("log_likelihood"));
     EXPECT_TRUE(j.contains("deviance"));
     EXPECT_FALSE(j.contains("trace"));
@@ -68,17 +71,69 @@ TEST(FitVerb, FitsTheGerminationSampleWithTheLogisticLoss) {
     }
 }
 
-TEST(FitVerb, HumanReportEndsWithTheCaution) {
+std::string oneLine(std::string text) {
+    std::replace(text.begin(), text.end(), '\n', ' ');
+    return text;
+}
+
+TEST(FitVerb, HumanReportShowsTheEquationTheEstimatesAndEndsWithTheCaution) {
     Outcome o = run({"--data", kSensor, "--model", "a - b*exp(-minutes/tau)", "--response", "temp", "--start",
-                     "a=40,b=20,tau=5"});
+                     "a=40,b=20,tau=5", "--summary"});
     ASSERT_EQ(o.code, 0) << o.err;
     EXPECT_NE(o.out.find("comma-separated (detected)"), std::string::npos);
-    EXPECT_NE(o.out.find("95% interval (t, 118 dof)"), std::string::npos);
-    EXPECT_NE(o.out.find("Std. error"), std::string::npos);
-    const std::string caution = "defer to local codes and licensed practice where safety is involved.\n";
-    ASSERT_GE(o.out.size(), caution.size());
-    EXPECT_EQ(o.out.substr(o.out.size() - caution.size()), caution);
-    EXPECT_NE(o.out.find("a fit is only as good as the model and the data"), std::string::npos);
+    EXPECT_NE(o.out.find("Equation:  temp = a - b*exp(-minutes/tau) + error"), std::string::npos) << o.out;
+    EXPECT_NE(o.out.find("95% intervals from the t distribution with 118 degrees of freedom"), std::string::npos);
+    EXPECT_NE(o.out.find("standard error"), std::string::npos);
+    EXPECT_EQ(o.out.find("Std. error"), std::string::npos);
+    EXPECT_NE(o.out.find("Correlations between estimates, strongest first"), std::string::npos);
+    EXPECT_NE(o.out.find("residual standard deviation"), std::string::npos);
+    // The estimates table: one row per parameter, in the order given, each with its interval.
+    const auto a = o.out.find("\n  a "), b = o.out.find("\n  b "), tau = o.out.find("\n  tau ");
+    ASSERT_NE(a, std::string::npos) << o.out;
+    EXPECT_LT(a, b);
+    EXPECT_LT(b, tau);
+    const std::string tail = "practice.\n";
+    ASSERT_GE(o.out.size(), tail.size());
+    EXPECT_EQ(o.out.substr(o.out.size() - tail.size()), tail);
+    EXPECT_NE(oneLine(o.out).find("where safety is involved defer to the applicable codes and standards and to "
+                                  "licensed professional practice."),
+              std::string::npos)
+        << o.out;
+}
+
+// A likelihood fit is judged by its deviance, not by squared differences from the linear predictor.
+TEST(FitVerb, LogisticAndPoissonReportsGiveTheDevianceNotASumOfSquares) {
+    for (const std::string loss : {"logistic", "poisson"}) {
+        SCOPED_TRACE(loss);
+        const std::string response = loss == "logistic" ? "germinated" : "chill_days";
+        Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture", "--response", response, "--loss", loss,
+                         "--start", "b0=0,b1=0", "--summary"});
+        ASSERT_EQ(o.code, 0) << o.err;
+        EXPECT_NE(o.out.find("deviance"), std::string::npos) << o.out;
+        EXPECT_NE(o.out.find("log-likelihood"), std::string::npos) << o.out;
+        EXPECT_EQ(o.out.find("residual sum of squares"), std::string::npos) << o.out;
+        EXPECT_EQ(o.out.find("residual standard deviation"), std::string::npos) << o.out;
+        EXPECT_NE(o.out.find(loss == "logistic" ? "log(p / (1 - p)) = b0 + b1*moisture, where p = P(germinated = 1)"
+                                                : "log(mean of chill_days) = b0 + b1*moisture"),
+                  std::string::npos)
+            << o.out;
+        EXPECT_NE(o.out.find("95% intervals from the normal distribution"), std::string::npos) << o.out;
+    }
+}
+
+TEST(FitVerb, JsonCarriesProvenanceAndTheCaution) {
+    Outcome o = run({"--data", kSensor, "--model", "a - b*exp(-minutes/tau)", "--response", "temp", "--start",
+                     "a=40,b=20,tau=5", "--json", "--summary"});
+    ASSERT_EQ(o.code, 0) << o.err;
+    const auto p = nlohmann::json::parse(o.out)["provenance"];
+    EXPECT_EQ(p["program"], "Saddlewise");
+    EXPECT_EQ(p["version"], sw::study::programVersion());
+    std::ostringstream version, ignored;
+    sw::cli::runCommandLine({"--version"}, version, ignored);
+    EXPECT_EQ(version.str(), "saddlewise " + p["version"].get<std::string>() + "\n");
+    EXPECT_EQ(p["model"], "temp = a - b*exp(-minutes/tau)");
+    EXPECT_EQ(p["loss"], "least-squares");
+    EXPECT_NE(p["caution"].get<std::string>().find("licensed professional practice"), std::string::npos);
 }
 
 TEST(FitVerb, WarnsWhenABadStartLeavesAParameterUndetermined) {
@@ -115,7 +170,7 @@ TEST(FitVerb, RejectsBadOptionsWithTheirValidChoices) {
     };
     Outcome loss = with({"--loss", "square"});
     EXPECT_EQ(loss.code, 2);
-    EXPECT_NE(loss.err.find("least-squares, weighted, huber, cauchy, bernoulli-logit, poisson-log"), std::string::npos);
+    EXPECT_NE(loss.err.find("least-squares, weighted, huber, cauchy, logistic, poisson"), std::string::npos);
     Outcome sep = with({"--separator", "pipe"});
     EXPECT_EQ(sep.code, 2);
     EXPECT_NE(sep.err.find("auto, comma, semicolon, tab"), std::string::npos);
@@ -130,12 +185,24 @@ TEST(FitVerb, RejectsBadOptionsWithTheirValidChoices) {
     EXPECT_NE(weighted.err.find("needs a weights column"), std::string::npos) << weighted.err;
     Outcome noFile = run({"--data", "/nonexistent.csv", "--model", "a*x", "--response", "y", "--start", "a=1"});
     EXPECT_EQ(noFile.code, 2);
-    EXPECT_NE(noFile.err.find("cannot open"), std::string::npos);
+    EXPECT_NE(noFile.err.find("/nonexistent.csv: the data file does not exist"), std::string::npos) << noFile.err;
 }
 
 TEST(FitVerb, DescribesItselfInHelp) {
     std::ostringstream out, err;
     EXPECT_EQ(sw::cli::runCommandLine({"fit", "--help"}, out, err), 0);
     EXPECT_NE(out.str().find("--drop-incomplete"), std::string::npos);
-    EXPECT_NE(out.str().find("bernoulli-logit"), std::string::npos);
+    EXPECT_NE(out.str().find("logistic"), std::string::npos);
+}
+
+// The former loss ids still work on the command line and are reported under the current ids.
+TEST(FitVerb, ReadsTheFormerLossIdsAndReportsTheCurrentOnes) {
+    for (const auto& [former, current] : {std::pair<std::string, std::string>{"bernoulli-logit", "logistic"},
+                                          {"poisson-log", "poisson"}}) {
+        const std::string response = current == "logistic" ? "germinated" : "chill_days";
+        Outcome o = run({"--data", kGermination, "--model", "b0 + b1*moisture", "--response", response, "--loss",
+                         former, "--start", "b0=0,b1=0", "--json", "--summary"});
+        ASSERT_EQ(o.code, 0) << former << ": " << o.err;
+        EXPECT_EQ(nlohmann::json::parse(o.out)["loss"], current);
+    }
 }

@@ -56,7 +56,7 @@ TEST(MinimizeVerb, JsonHasEveryDocumentedKey) {
                             "evaluations", "end_point", "trace"})
         EXPECT_TRUE(j.contains(key)) << key;
     EXPECT_EQ(j["method"], "bfgs");
-    EXPECT_EQ(j["termination"], "gradient-tolerance");
+    EXPECT_EQ(j["termination"], "gradient-norm-below");
     EXPECT_NEAR(j["x"][0].get<double>(), 1.0, 1e-6);
     EXPECT_NEAR(j["x"][1].get<double>(), 1.0, 1e-6);
     for (const char* key : {"value", "gradient", "hessian"}) EXPECT_TRUE(j["evaluations"].contains(key)) << key;
@@ -80,7 +80,7 @@ TEST(MinimizeVerb, SeveralMethodsPrintAComparisonTable) {
                              "newton", "--method", "nelder-mead", "--max-iterations", "500", "--summary"});
     ASSERT_EQ(r.code, 0) << r.err;
     for (const char* word : {"method", "iterations", "evals v/g/h", "final value", "termination", "end point", "bfgs",
-                             "newton", "nelder-mead", "minimum"})
+                             "newton", "nelder-mead", "local minimum"})
         EXPECT_NE(r.out.find(word), std::string::npos) << word << "\n" << r.out;
 }
 
@@ -97,8 +97,9 @@ TEST(MinimizeVerb, SeveralMethodsInJsonAreARunsArray) {
 TEST(MinimizeVerb, SingleMethodTextHasATableAndASummary) {
     Result r = runInProcess({"minimize", "x^2-y^2", "--from", "x=0.3,y=-0.2", "--method", "newton"});
     ASSERT_EQ(r.code, 0) << r.err;
-    EXPECT_NE(r.out.find("|g|"), std::string::npos) << r.out;
-    EXPECT_NE(r.out.find("termination:   gradient-tolerance"), std::string::npos) << r.out;
+    EXPECT_NE(r.out.find("|∇f|"), std::string::npos) << r.out;  // the window's notation
+    EXPECT_EQ(r.out.find("|g|"), std::string::npos) << r.out;
+    EXPECT_NE(r.out.find("termination:   gradient-norm-below"), std::string::npos) << r.out;
     EXPECT_NE(r.out.find("saddle of index 1"), std::string::npos) << r.out;
 }
 
@@ -112,6 +113,42 @@ TEST(MinimizeVerb, OptionsQualifiedAndUnqualified) {
     r = runInProcess({"minimize", kRosenbrock, "--from", "x=-1.2,y=1", "--method", "bfgs", "--option", "lbfgs.memory=3"});
     EXPECT_EQ(r.code, 2);
     EXPECT_NE(r.err.find("not among the --method choices"), std::string::npos) << r.err;
+}
+
+// Former names (docs/names.md) are read as the current ones; both at once is a usage error.
+TEST(MinimizeVerb, ReadsFormerOptionNamesAsTheCurrentOnes) {
+    auto iterations = [](const Result& r) { return nlohmann::json::parse(r.out)["iterations"].get<int>(); };
+    const std::vector<std::string> base = {"minimize", kRosenbrock, "--from", "x=-1.2,y=1", "--method", "nelder-mead",
+                                           "--json", "--summary"};
+    auto with = [&](std::vector<std::string> extra) {
+        std::vector<std::string> args = base;
+        args.insert(args.end(), extra.begin(), extra.end());
+        return runInProcess(args);
+    };
+    const Result current = with({"--option", "dimension_scaled_moves=true"});
+    const Result former = with({"--option", "adaptive=true"});
+    const Result qualified = with({"--option", "nelder-mead.adaptive=true"});
+    ASSERT_EQ(current.code, 0) << current.err;
+    ASSERT_EQ(former.code, 0) << former.err;
+    ASSERT_EQ(qualified.code, 0) << qualified.err;
+    EXPECT_EQ(iterations(former), iterations(current));
+    EXPECT_EQ(iterations(qualified), iterations(current));
+    EXPECT_EQ(nlohmann::json::parse(current.out)["termination"], "simplex-size-below");
+    const Result both = with({"--option", "adaptive=true", "--option", "dimension_scaled_moves=false"});
+    EXPECT_EQ(both.code, 2);
+    EXPECT_NE(both.err.find("name the same option (dimension_scaled_moves)"), std::string::npos) << both.err;
+
+    const Result gradient = runInProcess({"minimize", kRosenbrock, "--from", "x=-1.2,y=1", "--method", "bfgs",
+                                          "--gradient-tolerance", "1e-3", "--json", "--summary"});
+    const Result renamed = runInProcess({"minimize", kRosenbrock, "--from", "x=-1.2,y=1", "--method", "bfgs",
+                                         "--gradient-norm-below", "1e-3", "--json", "--summary"});
+    ASSERT_EQ(gradient.code, 0) << gradient.err;
+    EXPECT_EQ(iterations(gradient), iterations(renamed));
+    EXPECT_LE(nlohmann::json::parse(renamed.out)["gradient_norm"].get<double>(), 1e-3);
+    const Result twice = runInProcess({"minimize", kRosenbrock, "--from", "x=-1.2,y=1", "--method", "bfgs",
+                                       "--gradient-tolerance", "1e-3", "--gradient-norm-below", "1e-3"});
+    EXPECT_EQ(twice.code, 2);
+    EXPECT_NE(twice.err.find("former name of --gradient-norm-below"), std::string::npos) << twice.err;
 }
 
 TEST(MinimizeVerb, BadOptionValueNamesOptionAndRange) {

@@ -93,6 +93,47 @@ TEST(RunVerb, SamplesHaveDistinctColoursAndMarkersAndNotes) {
     }
 }
 
+// A label that names a Newton variant names the method it runs: "Newton" is pure Newton,
+// "damped Newton" is damped-newton, "Gauss-Newton" is gauss-newton (docs/names.md). Notes state
+// the scenario and the expected result, as a working tool's words, not as lessons.
+TEST(RunVerb, SampleLabelsMatchTheirMethodsAndNotesStateTheExpectedResult) {
+    for (const fs::path& path : sampleStudies()) {
+        SCOPED_TRACE(path.filename().string());
+        const Json study = Json::parse(std::ifstream(path));
+        for (const Json& entry : study["methods"]) {
+            std::string label = entry.value("label", entry["method"].get<std::string>());
+            std::string lower;
+            for (char c : label) {
+                lower += c == ' ' ? '-' : static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+            }
+            if (lower.find("newton") != std::string::npos) {
+                EXPECT_EQ(lower, entry["method"]) << label;
+            }
+        }
+        const std::string notes = study["notes"];
+        EXPECT_NE(notes.find("Expected result:"), std::string::npos);
+        for (const char* lesson : {"What to look for", "try editing", "Compare the", "Select an iterate"})
+            EXPECT_EQ(notes.find(lesson), std::string::npos) << lesson;
+    }
+}
+
+TEST(RunVerb, ResultsCarryProvenanceAndTheCaution) {
+    const std::string path = std::string(SW_SOURCE_DIR) + "/samples/two-valve-saddles.json";
+    const Json study = Json::parse(std::ifstream(path));
+    const Outcome json = runSaddlewise("run " + quoted(path) + " --json");
+    ASSERT_EQ(json.exitCode, 0);
+    const Json provenance = Json::parse(json.out)["provenance"];
+    EXPECT_EQ(provenance["program"], "Saddlewise");
+    EXPECT_FALSE(provenance["version"].get<std::string>().empty());
+    EXPECT_EQ(provenance["study_title"], study["title"]);
+    EXPECT_EQ(provenance["formula"], study["objective"]["formula"]);
+    EXPECT_NE(provenance["caution"].get<std::string>().find("defer to the applicable codes"), std::string::npos);
+    const Outcome text = runSaddlewise("run " + quoted(path));
+    ASSERT_EQ(text.exitCode, 0);
+    EXPECT_NE(text.out.find("\nCaution: A result is only as good as its model and its data"), std::string::npos)
+        << text.out;
+}
+
 // What each formula sample is meant to show (see its notes) actually happens.
 TEST(RunVerb, TheSaddleSampleShowsNewtonStoppingOnASaddleWhileOthersEscape) {
     const Outcome outcome =

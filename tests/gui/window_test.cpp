@@ -7,6 +7,7 @@
 #include "app/window/lineup_editor.h"
 #include "app/window/main_window.h"
 #include "app/window/objective_editor.h"
+#include "core/study/provenance.h"
 #include "widgets/landscape_view.h"
 #include "widgets/local_model_view.h"
 #include "widgets/progress_view.h"
@@ -213,7 +214,18 @@ private slots:
         QVERIFY2(window.exportStepsCsv(csv, &error), qPrintable(error));
         QFile file(csv);
         QVERIFY(file.open(QIODevice::ReadOnly));
-        const QStringList lines = QString::fromUtf8(file.readAll()).split('\n', Qt::SkipEmptyParts);
+        QStringList lines = QString::fromUtf8(file.readAll()).split('\n', Qt::SkipEmptyParts);
+        // Two comment lines first: provenance (version, study title, objective) and the caution.
+        QVERIFY(lines.size() > 2);
+        QVERIFY2(lines[0].startsWith("# Saddlewise " + QString::fromLatin1(sw::study::programVersion())),
+                 qPrintable(lines[0]));
+        QVERIFY(!window.study().title.empty());
+        QCOMPARE(lines[0], "# " + QString::fromStdString(sw::study::provenanceLine(sw::study::provenanceOf(window.study()))));
+        QVERIFY(lines[0].contains(QString::fromStdString(window.study().title)));
+        QVERIFY2(lines[1].startsWith("# Caution: ") && lines[1].contains("licensed professional practice"),
+                 qPrintable(lines[1]));
+        lines.removeFirst();
+        lines.removeFirst();
         std::size_t records = 0;
         for (const auto& t : window.snapshot()->tracks) records += t.run->trace.size();
         QCOMPARE(static_cast<std::size_t>(lines.size()), records + 1);

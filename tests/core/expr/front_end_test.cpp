@@ -172,9 +172,12 @@ TEST(FrontEnd, SyntaxErrorsSurfaceAtParseTime) {
     mu::Parser p;
     EXPECT_NO_THROW(p.SetExpr("1+"));
     EXPECT_THROW(p.Eval(), mu::ParserError);
+    // Our own scan now names this one before muParser evaluates (at the operator).
     auto e = errorOf("1+");
-    EXPECT_EQ(e.reason(), "the formula ends too early");
-    EXPECT_EQ(e.position(), 2);
+    EXPECT_EQ(e.reason(), "the formula ends after '+'; something must follow it");
+    EXPECT_EQ(e.position(), 1);
+    auto open = errorOf("sin(");
+    EXPECT_EQ(open.reason(), "this parenthesis is never closed");
 }
 
 TEST(FormulaErrors, SyntaxErrorHasPositionAndCaret) {
@@ -275,7 +278,8 @@ TEST(FormulaErrors, UnbalancedParentheses) {
 
 TEST(FormulaErrors, ConditionalWithoutElse) {
     auto e = errorOf("x > 0 ? 1");
-    EXPECT_EQ(e.reason(), "'?' needs a ':' part");
+    EXPECT_EQ(e.reason(), "'?' needs a ':' part (c ? a : b)");
+    EXPECT_EQ(e.position(), 6);  // at the '?' (muParser gives no position)
     auto c = errorOf("x : 1");
     EXPECT_EQ(c.reason(), "':' without a '?' before it");
 }
@@ -336,6 +340,80 @@ TEST(FormulaErrors, CaretCountsCharactersNotBytes) {
     auto e = errorOf("\xC3\xA9 + *", {});
     EXPECT_GE(e.position(), 0);
     FormulaError manual("bad", "\xC3\xA9+*", 3);
-    // position 3 is the byte of '*'; the caret is under it, after two characters.
-    EXPECT_EQ(manual.withCaret(), "bad (at column 4)\n  \xC3\xA9+*\n    ^");
+    // position 3 is the byte of '*', the third character: column 3, caret after two characters.
+    EXPECT_EQ(manual.withCaret(), "bad (at column 3)\n  \xC3\xA9+*\n    ^");
+}
+
+// Issue 17: messages that misled, and muParser's own sentences that reached the user.
+TEST(FormulaErrors, CharactersAreNamedByCodeAndColumn) {
+    auto greek = errorOf("t\xCE\xB1 + x");
+    EXPECT_EQ(greek.reason(), "non-ASCII character '\xCE\xB1' (U+03B1) in a name; names use ASCII letters, digits and _");
+    EXPECT_EQ(greek.position(), 1);
+    auto nul = errorOf(std::string("x\0+y", 4));
+    EXPECT_EQ(nul.reason(), "control character NUL (U+0000) in the formula; formulas are plain text");
+    EXPECT_EQ(nul.position(), 1);
+    // The echo shows the NUL as a control picture; the message is not cut short.
+    EXPECT_EQ(nul.withCaret(), std::string(nul.what()) + "\n  x\xE2\x90\x80+y\n   ^");
+    EXPECT_EQ(errorOf("x+\xff").reason(), "byte 0xFF is not valid UTF-8 text");
+    EXPECT_EQ(errorOf("x\xE2\x88\x92y").reason(), "non-ASCII character '\xE2\x88\x92' (U+2212) in the formula; write the ASCII '-'");
+    EXPECT_EQ(errorOf("x\xE2\x80\x8By").reason(), "non-ASCII character (U+200B) in a name; names use ASCII letters, digits and _");
+    EXPECT_EQ(errorOf("x + \"a\"").position(), 4);
+    EXPECT_EQ(errorOf("x;y").reason(), "';' has no meaning in a formula (one formula only; a comma separates function arguments)");
+}
+
+TEST(FormulaErrors, FunctionsUsedAsNamesAndSignsAndEndings) {
+    EXPECT_EQ(errorOf("sin + x").reason(), "'sin' is a function: write sin(...)");
+    auto signs = errorOf("(--x)");
+    EXPECT_EQ(signs.position(), 2);  // the second sign (muParser says 3)
+    EXPECT_NE(signs.reason().find("two signs in a row"), std::string::npos);
+    auto end = errorOf("x--");
+    EXPECT_EQ(end.reason(), "the formula ends after '-'; something must follow it");
+    EXPECT_EQ(end.position(), 2);
+    EXPECT_EQ(errorOf("x &y").reason(), "'&' alone has no meaning; write '&&' for 'and'");
+    EXPECT_EQ(errorOf("!x").reason(), "'!' only appears in '!=' (for 'not x' write x == 0)");
+    EXPECT_NO_THROW(Expression::parse("x != 1 && y || x", {"x", "y"}));
+}
+
+TEST(FormulaErrors, NumbersOutOfRangeFollowTheOneRule) {
+    auto big = errorOf("x*1e400");
+    EXPECT_NE(big.reason().find("1e400 is out of range"), std::string::npos) << big.reason();
+    EXPECT_EQ(big.position(), 2);
+    auto tiny = errorOf("x + 1e-400");
+    EXPECT_NE(tiny.reason().find("1e-400 is out of range"), std::string::npos) << tiny.reason();
+    EXPECT_EQ(eval("1e-310*1e10"), 1e-310 * 1e10);  // a subnormal literal is a number
+    EXPECT_EQ(errorOf("2*1e").reason(), "the number '1e' has an exponent without digits (write e.g. 1e5)");
+}
+
+TEST(FormulaErrors, LongListsOfUnknownNamesAreCapped) {
+    std::string text = "x";
+    for (int i = 0; i < 1500; ++i) text += "+a" + std::to_string(i);
+    std::vector<std::string> many;
+    for (int i = 0; i < 30; ++i) many.push_back("v" + std::to_string(i));
+    many.push_back("x");
+    try {
+        Expression::parse(text, many);
+        FAIL();
+    } catch (const FormulaError& e) {
+        EXPECT_NE(e.reason().find("'a9' and 1490 more"), std::string::npos) << e.reason();
+        EXPECT_NE(e.reason().find("v9 and 21 more"), std::string::npos) << e.reason();
+        EXPECT_LT(e.reason().size(), 300u);
+        EXPECT_LT(e.withCaret().size(), 600u);  // the echo is a window around the place
+    }
+}
+
+TEST(FormulaErrors, MuParsersOwnSentencesNeverReachTheUser) {
+    for (const char* text : {"x--", "\"", "x+\"a\"", "x>0 ? 1", "x ? : 1", "sin", "1e", "x $ 1", "x ** 2", "()", "(",
+                             ")", "x,", ",x", "1..2", "x 2", "(x)(x)", "sin(x)x", "x ? 1 : 2 : 3", "+-x", "x^^2", "--x",
+                             "x*-", "x/", "min(x,)", "atan2(,x)", "x ? 1 :", "(x ? 1)", "x = = 1"}) {
+        try {
+            Expression::parse(text, {"x"});
+            ADD_FAILURE() << "no error for " << text;
+        } catch (const FormulaError& e) {
+            const std::string m = e.what();
+            for (const char* theirs : {"Internal error", "Unterminated string", "No suitable overload", "Unexpected token",
+                                       "found at position", "cannot read the formula:", "ApplyBinOprt"})
+                EXPECT_EQ(m.find(theirs), std::string::npos) << text << " -> " << m;
+            EXPECT_GE(e.position(), 0) << text << " -> " << m;  // every one has a place
+        }
+    }
 }

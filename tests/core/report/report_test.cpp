@@ -154,26 +154,74 @@ TEST(Report, TheBestRunIsTheLowestConvergedOne) {
     EXPECT_EQ(report::bestRun(json{{"runs", json::array()}}), -1);
 }
 
-// Findings as issue 10 defines them in `run --json`: id, severity, iterations, evidence
-// (named numbers), message, remedy {change, outcome}. A hand-made run carries them here.
+// Findings in the shape `run --json` prints them (docs/findings.md, issue 10): a problem with
+// its evidence and a remedy that was rerun, a problem whose remedy was not tried, a note
+// without a remedy, and a run without findings.
 TEST(Report, FindingsInTheRunsAreShownWithTheirEvidenceAndRemedyOutcome) {
     const report::StudyRuns runs = runSample("two-valve-saddles.json");
     report::ReportInput in = inputFor(runs);
-    json& newton = in.results["runs"][0];
-    newton["findings"] = json::array({{{"id", "saddle-end"},
-                                       {"severity", "problem"},
-                                       {"iterations", {3}},
-                                       {"evidence", {{"negative_eigenvalues", 1}, {"eigenvalue", -2.9}}},
-                                       {"message", "Ended on a saddle of index 1."},
-                                       {"remedy", {{"change", "method saddle-free-newton"},
-                                                   {"outcome", "reached a minimum, f = -0.2468"}}}}});
+    const json saddle = {
+        {"id", "saddle-end"},
+        {"severity", "problem"},
+        {"title", "ended on a saddle"},
+        {"iterations", {{"first", 4}, {"last", 4}, {"focus", 4}, {"notable", json::array()}}},
+        {"evidence", {{"negative_eigenvalues", 1.0}, {"smallest_eigenvalue", -3.8309518948}}},
+        {"evidence_detail",
+         json::array({{{"name", "negative_eigenvalues"}, {"value", 1.0}, {"unit", ""}, {"meaning", "k: eigenvalues below zero"}},
+                      {{"name", "smallest_eigenvalue"}, {"value", -3.8309518948}, {"unit", "curvature"},
+                       {"meaning", "most negative curvature"}}})},
+        {"message", "The run ended on a saddle point, not a minimum."},
+        {"mark", nullptr},
+        {"remedy",
+         {{"change", {{"kind", "switch-method"}, {"method", "trust-region-exact"}, {"text", "switch to trust-region-exact"}}},
+          {"outcome",
+           {{"helped", true},
+            {"text", "Tried: it converged after 7 iterations at f = 0.46875, a minimum - it helped."},
+            {"termination", "gradient-tolerance"},
+            {"converged", true},
+            {"value", 0.46875},
+            {"gradient_norm", 2.58e-13},
+            {"end_point", "minimum"},
+            {"end_index", 0},
+            {"critical", true},
+            {"iterations", 7},
+            {"evaluations", {{"value", 7}, {"gradient", 0}, {"hessian", 7}}}}}}}};
+    json untried = saddle;
+    untried["id"] = "uphill-newton";
+    untried["title"] = "uphill Newton step";
+    untried["iterations"] = {{"first", 1}, {"last", 3}, {"focus", 1}, {"notable", {1, 3}}};
+    untried["remedy"]["outcome"] = nullptr;
+    const json note = {{"id", "convergence-rate"},
+                       {"severity", "note"},
+                       {"title", "observed convergence rate"},
+                       {"iterations", {{"first", 0}, {"last", 5}, {"focus", 5}, {"notable", json::array()}}},
+                       {"evidence", {{"order", 1.6152}}},
+                       {"evidence_detail", json::array()},
+                       {"message", "The last iterations converged superlinearly (estimated order 1.6)."},
+                       {"mark", nullptr},
+                       {"remedy", nullptr}};
+    in.results["runs"][0]["findings"] = json::array({saddle, untried, note});
     in.results["runs"][1]["findings"] = json::array();
     const report::Document d = report::buildReport(in);
     ASSERT_NE(d.section("findings"), nullptr);
     const std::string text = allText(*d.section("findings"));
-    for (const char* piece : {"saddle-end", "problem", "eigenvalue = -2.9", "Ended on a saddle of index 1.",
-                              "method saddle-free-newton → reached a minimum, f = -0.2468", "No findings"})
+    for (const char* piece :
+         {"Problem: Ended on a saddle", "saddle-end", "iteration 4)", "The run ended on a saddle point, not a minimum.",
+          "negative_eigenvalues", "-3.831", "most negative curvature", "switch to trust-region-exact", "helped.",
+          "Tried: it converged after 7 iterations at f = 0.46875, a minimum - it helped.",
+          "gradient-tolerance after 7 iterations; f = 0.46875, |∇f| = 2.58e-13; end point: local minimum; evaluations 7 / 0 / 7",
+          "uphill-newton", "iterations 1–3", "not tried", "Note: Observed convergence rate", "order", "1.615",
+          "none that a rerun could try", "No findings: nothing unusual in this run."})
         EXPECT_NE(text.find(piece), std::string::npos) << piece;
+    // The overview counts problems, notes, remedies tried and those that helped.
+    const report::Block* overview = nullptr;
+    for (const report::Block& b : d.section("findings")->blocks)
+        if (b.kind == report::Block::Kind::Table && !b.table.header.empty() && b.table.header[0] == "method") overview = &b;
+    ASSERT_NE(overview, nullptr);
+    ASSERT_GE(overview->table.rows.size(), 2u);
+    std::vector<std::string> first;
+    for (const report::Cell& c : overview->table.rows[0]) first.push_back(report::plainText(c.text));
+    EXPECT_EQ(std::vector<std::string>(first.begin() + 1, first.end()), (std::vector<std::string>{"2", "1", "1", "1"}));
 }
 
 // Surveys as issue 11 defines them: critical points {x, value, kind, index, eigenvalues,

@@ -239,7 +239,7 @@ TEST(MakeSolver, RejectsBadStoppingRules) {
     rules.gradientTolerance = -1;
     SolverOrError made = makeSolver("gradient-descent", f, point(0, 0), {}, rules);
     EXPECT_FALSE(made.solver);
-    EXPECT_NE(made.error.find("gradient_tolerance"), std::string::npos) << made.error;
+    EXPECT_NE(made.error.find("gradient_norm_below"), std::string::npos) << made.error;
 }
 
 TEST(Solve, ConvenienceReturnsAFailedRunWithTheReason) {

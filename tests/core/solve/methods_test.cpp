@@ -1,6 +1,7 @@
 // Each method of this file's families on small problems whose answers are known by hand:
 // a convex quadratic (minimiser (0.2, 0.4), f* = -0.3; common practice, no published source)
 // and Rosenbrock's function (minimiser (1, 1), f* = 0; Rosenbrock 1960, value from memory).
+#include "core/objective/formula_objective.h"
 #include "core/solve/method.h"
 #include "core/solve/line_search.h"
 #include "core/solve/quasi_newton.h"
@@ -77,7 +78,7 @@ TEST(NelderMead, FindsTheQuadraticsMinimiserFromValuesAlone) {
     StoppingRules rules;
     rules.maxIterations = 1000;
     solve::Run run = solve("nelder-mead", f, point(2, -1), {}, rules);
-    EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
+    EXPECT_EQ(run.termination, Termination::SimplexSizeBelow) << run.message;
     EXPECT_NE(run.message.find("simplex size"), std::string::npos);
     EXPECT_NEAR(run.x[0], 0.2, 1e-6);
     EXPECT_NEAR(run.x[1], 0.4, 1e-6);
@@ -94,10 +95,11 @@ TEST(NelderMead, EveryRecordShowsTheGradientAtItsOwnPoint) {
     const FunctionObjective f = problems::rosenbrock();
     StoppingRules rules;
     rules.maxIterations = 200;
-    // From (1.5, 2) the relative start simplex's vertex (1.5, 2.1) is better than the start.
-    solve::Run run = solve("nelder-mead", f, point(1.5, 2), {}, rules);
+    // From (1.5, 1.8) the relative start simplex's vertex (1.5, 2.34) is better than the start
+    // (f = 1.06 against 20.5).
+    solve::Run run = solve("nelder-mead", f, point(1.5, 1.8), {}, rules);
     ASSERT_GE(run.trace.size(), 50u);
-    EXPECT_NE(run.trace.front().x, point(1.5, 2));
+    EXPECT_NE(run.trace.front().x, point(1.5, 1.8));
     int kept = 0;
     for (std::size_t k = 0; k < run.trace.size(); ++k) {
         const IterationRecord& r = run.trace[k];
@@ -111,16 +113,36 @@ TEST(NelderMead, EveryRecordShowsTheGradientAtItsOwnPoint) {
     EXPECT_EQ(run.evaluations.gradient, 0);
 }
 
-TEST(NelderMead, AdaptiveParametersAlsoSolveRosenbrock) {
+TEST(NelderMead, DimensionScaledMovesAlsoSolveRosenbrock) {
     const FunctionObjective f = problems::rosenbrock();
     StoppingRules rules;
     rules.maxIterations = 2000;
-    for (const char* adaptive : {"false", "true"}) {
-        solve::Run run = solve("nelder-mead", f, point(-1.2, 1), {{"adaptive", adaptive}}, rules);
-        EXPECT_EQ(run.termination, Termination::StepTolerance) << run.message;
-        EXPECT_NEAR(run.x[0], 1, 1e-6) << adaptive;
-        EXPECT_NEAR(run.x[1], 1, 1e-6) << adaptive;
+    for (const char* scaled : {"false", "true"}) {
+        solve::Run run = solve("nelder-mead", f, point(-1.2, 1), {{"dimension_scaled_moves", scaled}}, rules);
+        EXPECT_EQ(run.termination, Termination::SimplexSizeBelow) << run.message;
+        EXPECT_EQ(std::string(toString(run.termination)), "simplex-size-below");
+        EXPECT_NEAR(run.x[0], 1, 1e-6) << scaled;
+        EXPECT_NEAR(run.x[1], 1, 1e-6) << scaled;
     }
+}
+
+// The option's former name (docs/names.md) is read as the current one: the same run, step for step.
+// Four variables: for n = 2 the dimension-scaled moves equal the classic ones (Gao & Han 2012).
+TEST(NelderMead, ReadsTheFormerNameOfDimensionScaledMoves) {
+    const FormulaObjective f("(a - 1)^2 + 2*(b + 1)^2 + 3*(c - 2)^2 + (d - a)^2 + 0.5*(b - c)^2", {"a", "b", "c", "d"});
+    const Vector start = (Vector(4) << 1.5, 0.5, -1, 2).finished();
+    StoppingRules rules;
+    rules.maxIterations = 2000;
+    const solve::Run current = solve("nelder-mead", f, start, {{"dimension_scaled_moves", "true"}}, rules);
+    const solve::Run former = solve("nelder-mead", f, start, {{"adaptive", "true"}}, rules);
+    const solve::Run plain = solve("nelder-mead", f, start, {}, rules);
+    ASSERT_EQ(former.iterations(), current.iterations()) << former.message;
+    EXPECT_EQ(former.x, current.x);
+    EXPECT_NE(plain.iterations(), current.iterations());  // the option does change the run
+    const solve::Run both =
+        solve("nelder-mead", f, start, {{"adaptive", "true"}, {"dimension_scaled_moves", "true"}}, rules);
+    EXPECT_EQ(both.termination, Termination::Failed);
+    EXPECT_NE(both.message.find("former name adaptive"), std::string::npos) << both.message;
 }
 
 class RobustMethodsOnRosenbrock : public ::testing::TestWithParam<const char*> {};
@@ -431,18 +453,22 @@ TEST(NelderMead, RelativeStartSimplexScalesEachCoordinate) {
     const FunctionObjective f = problems::convexQuadratic();
     StoppingRules rules;
     rules.maxIterations = 1;
+    const MethodInfo* info = findMethod("nelder-mead");
+    ASSERT_NE(info, nullptr);
+    const double size = findOption(info->options, "initial_size")->defaultValue;
+    const double zero = findOption(info->options, "zero_size")->defaultValue;
     for (const Vector& start : {point(2, -1), point(0, 3)}) {
         solve::Run relative = solve("nelder-mead", f, start, {}, rules);
         const double fStart = f.value(start);
         Vector a = start, b = start;
-        a[0] = start[0] != 0 ? 1.05 * start[0] : 0.00025;
-        b[1] = start[1] != 0 ? 1.05 * start[1] : 0.00025;
+        a[0] = start[0] != 0 ? (1 + size) * start[0] : zero;
+        b[1] = start[1] != 0 ? (1 + size) * start[1] : zero;
         const double best = std::min({fStart, f.value(a), f.value(b)});
         EXPECT_DOUBLE_EQ(relative.trace[0].value, best);
         solve::Run absolute = solve("nelder-mead", f, start, {{"start_simplex", "absolute"}}, rules);
         a = start, b = start;
-        a[0] += 0.05 * std::max(1.0, std::abs(start[0]));
-        b[1] += 0.05 * std::max(1.0, std::abs(start[1]));
+        a[0] += size * std::max(1.0, std::abs(start[0]));
+        b[1] += size * std::max(1.0, std::abs(start[1]));
         EXPECT_DOUBLE_EQ(absolute.trace[0].value, std::min({fStart, f.value(a), f.value(b)}));
     }
 }

@@ -86,8 +86,8 @@ std::string fitStudy(const std::string& checksum, const std::string& extra = "")
     return R"({"format": "saddlewise-study", "version": 1, "title": "line",
       "objective": {"data": "readings.csv", "checksum": ")" +
            checksum + R"(", "model": "slope*hours + level", "response": "reading")" + extra + R"(},
-      "variables": [{"name": "slope", "start": 1, "lower": 0, "upper": 4},
-                    {"name": "level", "start": 0, "lower": -2, "upper": 2}],
+      "variables": [{"name": "slope", "start": 1, "plot_from": 0, "plot_to": 4},
+                    {"name": "level", "start": 0, "plot_from": -2, "plot_to": 2}],
       "methods": [{"method": "levenberg-marquardt", "colour": "#112233"},
                   {"method": "bfgs", "colour": "#445566", "marker": "star"}]})";
 }

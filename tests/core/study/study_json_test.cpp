@@ -89,8 +89,18 @@ std::vector<BadStudy> badStudies() {
          "this file is format version 3; this Saddlewise reads up to 1 - update Saddlewise"},
         {"version as text", edited([](Json& d) { d["version"] = "1"; }), "version", "whole number"},
         {"unknown top-level key", edited([](Json& d) { d["titel"] = "x"; }), "titel", "unknown key"},
-        {"lower not below upper", edited([](Json& d) { d["variables"][1]["lower"] = 3; }), "variables[1].lower",
-         "must be below upper"},
+        {"plot range reversed", edited([](Json& d) { d["variables"][1]["plot_from"] = 3; }),
+         "variables[1].plot_from", "must be below plot_to"},
+        {"plot range reversed, former keys", edited([](Json& d) {
+             Json& v = d["variables"][1];
+             v.erase("plot_from");
+             v.erase("plot_to");
+             v["lower"] = 3;
+             v["upper"] = 2;
+         }),
+         "variables[1].lower", "must be below upper"},
+        {"plot range under both names", edited([](Json& d) { d["variables"][0]["lower"] = -1; }),
+         "variables[0].lower", "former name of \"plot_from\""},
         {"start as text", edited([](Json& d) { d["variables"][0]["start"] = "one"; }), "variables[0].start",
          "must be a number"},
         {"variable name missing", edited([](Json& d) { d["variables"][1].erase("name"); }), "variables[1].name",
@@ -134,8 +144,20 @@ std::vector<BadStudy> badStudies() {
         {"no objective", edited([](Json& d) { d.erase("objective"); }), "objective", "missing"},
         {"iteration limit zero", edited([](Json& d) { d["stopping"]["max_iterations"] = 0; }),
          "stopping.max_iterations", "from 1 to"},
-        {"negative tolerance", edited([](Json& d) { d["stopping"]["gradient_tolerance"] = -1; }),
+        {"negative tolerance", edited([](Json& d) { d["stopping"]["gradient_norm_below"] = -1; }),
+         "stopping.gradient_norm_below", ">= 0"},
+        {"negative tolerance, former key", edited([](Json& d) {
+             d["stopping"].erase("gradient_norm_below");
+             d["stopping"]["gradient_tolerance"] = -1;
+         }),
          "stopping.gradient_tolerance", ">= 0"},
+        {"tolerance under both names", edited([](Json& d) { d["stopping"]["gradient_tolerance"] = 1e-6; }),
+         "stopping.gradient_tolerance", "former name of \"gradient_norm_below\""},
+        {"option under both names", edited([](Json& d) {
+             d["methods"][1]["method"] = "nelder-mead";
+             d["methods"][1]["options"] = {{"adaptive", true}, {"dimension_scaled_moves", false}};
+         }),
+         "methods[1].options.dimension_scaled_moves", "also given"},
         {"plot variable unknown", edited([](Json& d) { d["view"]["plot_x"] = "slope"; }), "view.plot_x",
          "not one of the variables"},
         {"plot the same variable twice", edited([](Json& d) { d["view"]["plot_y"] = "gain"; }), "view.plot_y",
@@ -179,8 +201,8 @@ TEST(StudyJson, TheMessageForABadOptionReadsAsOneLine) {
 TEST(StudyJson, AMinimalStudyTakesDefaults) {
     const std::string minimal = R"({"format": "saddlewise-study", "version": 1,
         "objective": {"formula": "x^2 + 3*y^2"},
-        "variables": [{"name": "x", "start": 1, "lower": -2, "upper": 2},
-                      {"name": "y", "start": 1, "lower": -2, "upper": 2}],
+        "variables": [{"name": "x", "start": 1, "plot_from": -2, "plot_to": 2},
+                      {"name": "y", "start": 1, "plot_from": -2, "plot_to": 2}],
         "methods": [{"method": "newton", "colour": "#000000"}]})";
     const Study study = fromJson(minimal, ".");
     EXPECT_EQ(study.methods[0].label, "newton");

@@ -15,8 +15,8 @@ inline std::string validFormulaStudy() {
   "notes": "A curved valley.",
   "objective": { "formula": "(1 - gain)^2 + 40*(offset - gain^2)^2" },
   "variables": [
-    { "name": "gain", "start": -1.5, "lower": -2, "upper": 2 },
-    { "name": "offset", "start": 2, "lower": -1, "upper": 3 }
+    { "name": "gain", "start": -1.5, "plot_from": -2, "plot_to": 2 },
+    { "name": "offset", "start": 2, "plot_from": -1, "plot_to": 3 }
   ],
   "methods": [
     { "label": "steepest", "method": "gradient-descent", "options": { "line_search": "armijo" },
@@ -25,7 +25,7 @@ inline std::string validFormulaStudy() {
     { "label": "region", "method": "trust-region-dogleg", "options": { "initial_radius": 0.5, "max_radius": 100 },
       "colour": "#2e8b57", "marker": "triangle", "enabled": false }
   ],
-  "stopping": { "max_iterations": 500, "gradient_tolerance": 1e-9 },
+  "stopping": { "max_iterations": 500, "gradient_norm_below": 1e-9 },
   "view": { "plot_x": "gain", "plot_y": "offset", "log_colour": true, "contour_count": 20, "grid_cells": 150 }
 }
 )";

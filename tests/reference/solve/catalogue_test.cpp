@@ -14,8 +14,11 @@
 #include <algorithm>
 #include <cstdio>
 #include <cstdlib>
+#include <limits>
 #include <map>
+#include <memory>
 #include <set>
+#include <sstream>
 #include <vector>
 #include <string>
 
@@ -160,6 +163,107 @@ INSTANTIATE_TEST_SUITE_P(AllMethods, Catalogue, ::testing::ValuesIn(catalogueMet
                              std::replace(name.begin(), name.end(), '-', '_');
                              return name;
                          });
+
+// Nelder-Mead's start simplex: the defaults of initial_size and zero_size were chosen by
+// this measurement over the catalogue (docs/BENCHMARKS.md, "Nelder-Mead start simplex"). On a
+// grid of both, each pair is scored by the value evaluations all problems take, averaged over
+// the pair and its grid neighbours (a 3 x 3 block): single cells are noisy, because a simplex
+// that starts a little differently can take quite another path. The defaults are the pair with
+// the lowest score among pairs whose whole block reaches a published minimum (f* or the
+// published local minimum) on every problem. The test fails when the defaults stop being that
+// pair (a changed method, or changed defaults without a new measurement). SW_PRINT_EXPECTED=1
+// prints the grid.
+TEST(Catalogue, NelderMeadStartSimplexDefaultsAreTheMeasuredBest) {
+    const sw::solve::MethodInfo* info = sw::solve::findMethod("nelder-mead");
+    ASSERT_NE(info, nullptr);
+    const double defaultSize = sw::solve::findOption(info->options, "initial_size")->defaultValue;
+    const double defaultZero = sw::solve::findOption(info->options, "zero_size")->defaultValue;
+    std::vector<double> sizes = {0.025, 0.05, 0.1, 0.15, 0.2, 0.25, 0.3, 0.35, 0.4, 0.5};
+    std::vector<double> zeros = {0.00025, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.3};
+    // For exploring only (the assertions below then compare against that grid's best):
+    // SW_NELDER_MEAD_SIZES / SW_NELDER_MEAD_ZEROS = comma-separated values.
+    auto listFromEnvironment = [](const char* name, std::vector<double>& values) {
+        const char* text = std::getenv(name);
+        if (!text) return;
+        values.clear();
+        std::stringstream in(text);
+        for (std::string item; std::getline(in, item, ',');) values.push_back(std::stod(item));
+    };
+    listFromEnvironment("SW_NELDER_MEAD_SIZES", sizes);
+    listFromEnvironment("SW_NELDER_MEAD_ZEROS", zeros);
+    struct Cell {
+        double size, zero;
+        int reached = 0;
+        long evaluations = 0;
+        std::vector<long> perProblem;
+    };
+    std::vector<Cell> grid;
+    const std::vector<PublishedProblem> problems = publishedProblems();
+    std::vector<std::unique_ptr<FormulaObjective>> objectives;
+    for (const PublishedProblem& p : problems) objectives.push_back(std::make_unique<FormulaObjective>(p.formula, p.variables));
+    for (double size : sizes)
+        for (double zero : zeros) {
+            Cell cell{size, zero};
+            for (std::size_t k = 0; k < problems.size(); ++k) {
+                const PublishedProblem& p = problems[k];
+                const Vector start = Eigen::Map<const Vector>(p.start.data(), static_cast<Eigen::Index>(p.start.size()));
+                const RunResult run = sw::solve::solve(
+                    "nelder-mead", *objectives[k], start,
+                    {{"initial_size", sw::reference::formulaNumber(size)}, {"zero_size", sw::reference::formulaNumber(zero)}},
+                    catalogueRules());
+                const bool reached = reachesValue(run.value, p.fStar) ||
+                                     (std::isfinite(p.localMinimum) && reachesValue(run.value, p.localMinimum));
+                cell.reached += reached;
+                cell.evaluations += run.evaluations.value;
+                cell.perProblem.push_back(reached ? run.evaluations.value : -run.evaluations.value);
+            }
+            grid.push_back(cell);
+        }
+    // grid[i * zeros.size() + j] is (sizes[i], zeros[j]); score = mean over the 3 x 3 block.
+    const int rows = static_cast<int>(sizes.size()), columns = static_cast<int>(zeros.size());
+    std::vector<double> score(grid.size(), std::numeric_limits<double>::infinity());
+    for (int i = 0; i < rows; ++i)
+        for (int j = 0; j < columns; ++j) {
+            double sum = 0;
+            int count = 0;
+            bool allReached = true;
+            for (int di = -1; di <= 1; ++di)
+                for (int dj = -1; dj <= 1; ++dj) {
+                    const int a = i + di, b = j + dj;
+                    if (a < 0 || a >= rows || b < 0 || b >= columns) continue;
+                    const Cell& c = grid[static_cast<std::size_t>(a * columns + b)];
+                    allReached = allReached && c.reached == static_cast<int>(problems.size());
+                    sum += static_cast<double>(c.evaluations);
+                    ++count;
+                }
+            if (allReached) score[static_cast<std::size_t>(i * columns + j)] = sum / count;
+        }
+    const std::size_t bestIndex =
+        static_cast<std::size_t>(std::min_element(score.begin(), score.end()) - score.begin());
+    const Cell& best = grid[bestIndex];
+    if (std::getenv("SW_PRINT_EXPECTED")) {
+        std::printf("\nNelder-Mead on the %zu catalogue problems: problems reaching a published minimum / value "
+                    "evaluations in all\n%-14s", problems.size(), "size \\ zero");
+        for (double zero : zeros) std::printf(" %12g", zero);
+        for (double size : sizes) {
+            std::printf("\n%-14g", size);
+            for (const Cell& c : grid)
+                if (c.size == size) std::printf(" %5d /%6ld", c.reached, c.evaluations);
+        }
+        std::printf("\nbest: initial_size %g, zero_size %g (%d problems, %ld evaluations; block mean %.0f)\n",
+                    best.size, best.zero, best.reached, best.evaluations, score[bestIndex]);
+        for (const Cell& c : grid)
+            if (&c == &best || (c.size == defaultSize && c.zero == defaultZero)) {
+                std::printf("value evaluations by problem at initial_size %g, zero_size %g:", c.size, c.zero);
+                for (std::size_t k = 0; k < problems.size(); ++k)
+                    std::printf(" %s %ld;", problems[k].name.c_str(), c.perProblem[k]);
+                std::printf("\n");
+            }
+    }
+    ASSERT_TRUE(std::isfinite(score[bestIndex])) << "no block of settings reaches every problem";
+    EXPECT_EQ(defaultSize, best.size);
+    EXPECT_EQ(defaultZero, best.zero);
+}
 
 TEST(Catalogue, RunsEveryRobustMethod) {
     const std::vector<std::string> ids = catalogueMethods();
