@@ -7,6 +7,7 @@
 #include <vector>
 
 #ifdef SW_HAVE_GUI
+#include "app/report/install.h"
 #include "app/window/launch.h"
 #endif
 #ifdef SW_HAVE_MPI
@@ -19,6 +20,9 @@ int main(int argc, char** argv) {
 #ifdef SW_HAVE_MPI
     // Only the survey verbs ask for a process group, and MPI starts only under a launcher.
     sw::cli::setProcessGroupFactory(&sw::mpi::joinWorld);
+#endif
+#ifdef SW_HAVE_GUI
+    if (kind == sw::cli::FirstArgument::Headless) sw::reportgui::installReportGraphics();  // the report verb's figures and PDF
 #endif
     if (kind == sw::cli::FirstArgument::Headless) return sw::cli::runCommandLine(args, std::cout, std::cerr);
     // An unknown verb or a study file that is not there: one line and exit 2, before any window.

@@ -89,5 +89,6 @@ Verb fitVerb();       // verb_fit.cpp
 Verb runVerb();       // verb_run.cpp  (runs a study file)
 Verb criticalVerb();  // verb_critical.cpp
 Verb basinsVerb();    // verb_basins.cpp
+Verb reportVerb();    // verb_report.cpp  (the review report of a study)
 
 }  // namespace sw::cli

@@ -1,4 +1,4 @@
-// Reporting solver runs: JSON, tables and summaries.
+// Reporting solver runs: tables and summaries (the JSON is core/report/run_json.cpp).
 #include "app/cli/run_report.h"
 
 #include "app/cli/cli.h"
@@ -13,20 +13,6 @@
 namespace sw::cli {
 
 namespace {
-
-using nlohmann::json;
-
-json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-
-json vectorJson(const Vector& v) {
-    json a = json::array();
-    for (Eigen::Index i = 0; i < v.size(); ++i) a.push_back(number(v[i]));
-    return a;
-}
-
-json countsJson(const solve::EvaluationCounts& c) {
-    return {{"value", c.value}, {"gradient", c.gradient}, {"hessian", c.hessian}};
-}
 
 std::string name(const std::vector<std::string>& names, Eigen::Index i) {
     const auto k = static_cast<std::size_t>(i);
@@ -74,87 +60,6 @@ private:
 };
 
 }  // namespace
-
-json recordToJson(const solve::IterationRecord& r) {
-    json trials = json::array();
-    for (const solve::LineSearchTrial& t : r.trials)
-        trials.push_back({{"alpha", number(t.alpha)},
-                          {"value", number(t.value)},
-                          {"slope", number(t.slope)},
-                          {"accepted", t.accepted},
-                          {"failed", std::string(t.failed)}});
-    return {{"iteration", r.iteration},
-            {"x", vectorJson(r.x)},
-            {"value", number(r.value)},
-            {"gradient", vectorJson(r.gradient)},
-            {"gradient_norm", number(r.gradientNorm)},
-            {"step", vectorJson(r.step)},
-            {"step_kind", solve::toString(r.stepKind)},
-            {"step_length", number(r.stepLength)},
-            {"step_norm", number(r.stepNorm)},
-            {"trials", trials},
-            {"trust_radius", number(r.trustRadius)},
-            {"ratio", number(r.ratio)},
-            {"damping", number(r.damping)},
-            {"damping_name", r.dampingName},
-            {"predicted_decrease", number(r.predictedDecrease)},
-            {"actual_decrease", number(r.actualDecrease)},
-            {"accepted", r.accepted},
-            {"hessian_eigenvalues", vectorJson(r.hessianEigenvalues)},
-            {"condition_number", number(r.conditionNumber)},
-            {"angle_to_steepest_descent", number(r.angleToSteepestDescent())},
-            {"jacobian_rank", r.jacobianRank},
-            {"jacobian_condition", number(r.jacobianCondition)},
-            {"evaluations", countsJson(r.evaluations)},
-            {"note", r.note.text()},
-            {"notable", r.notable}};
-}
-
-json provenanceJson(const study::Provenance& p) {
-    json j = {{"program", "Saddlewise"}, {"version", p.version}};
-    if (!p.title.empty()) j["study_title"] = p.title;
-    if (!p.formula.empty()) j["formula"] = p.formula;
-    if (!p.model.empty()) {
-        j["model"] = p.model;
-        j["loss"] = p.loss;
-        j["data"] = p.data;
-    }
-    j["caution"] = study::cautionText();
-    return j;
-}
-
-json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace) {
-    json j = {{"method", run.methodId},
-              {"label", run.label},
-              {"termination", solve::toString(run.termination)},
-              {"converged", solve::isConvergence(run.termination)},
-              {"message", run.message},
-              {"variables", names},
-              {"x", vectorJson(run.x)},
-              {"value", number(run.value)},
-              {"gradient_norm", number(run.gradientNorm)},
-              {"iterations", run.iterations()},
-              {"evaluations", countsJson(run.evaluations)},
-              {"end_point",
-               {{"kind", solve::toString(run.endPoint.kind)},
-                {"index", run.endPoint.index},
-                {"critical", run.endPoint.critical},
-                {"curvature", solve::toString(run.endPoint.curvature)},
-                {"eigenvalues", vectorJson(run.endPoint.eigenvalues)},
-                {"tolerance", number(run.endPoint.tolerance)},
-                {"stationary_distance", number(run.endPoint.stationaryDistance)},
-                {"stationary_bound", number(run.endPoint.stationaryBound)},
-                {"reason", run.endPoint.reason},
-                {"description", run.endPoint.description}}},
-              {"dropped_records", run.droppedRecords},
-              {"record_stride", run.recordStride}};
-    if (withTrace) {
-        json trace = json::array();
-        for (const solve::IterationRecord& r : run.trace) trace.push_back(recordToJson(r));
-        j["trace"] = std::move(trace);
-    }
-    return j;
-}
 
 void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std::string>& names) {
     const Eigen::Index n = run.trace.empty() ? 0 : run.trace.front().x.size();

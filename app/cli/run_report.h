@@ -3,8 +3,8 @@
 // JSON for programs, and for people a per-iteration table, a summary, and a side-by-side
 // comparison of several runs from the same start.
 
+#include "core/report/run_json.h"
 #include "core/solve/solver.h"
-#include "core/study/provenance.h"
 
 #include <nlohmann/json.hpp>
 
@@ -14,21 +14,11 @@
 
 namespace sw::cli {
 
-// One run as JSON: method, label, termination, message, variables, x, value, gradient_norm,
-// iterations, evaluations {value, gradient, hessian}, end_point {kind, index, critical,
-// curvature, eigenvalues, tolerance, stationary_distance, stationary_bound, reason,
-// description}, dropped_records and record_stride (trace thinning, see solve::Run), and
-// (withTrace) trace: one object per record with all its fields. Non-finite numbers become null.
-// end_point.kind is "minimum", "saddle", "maximum", "degenerate" only where critical is true;
-// "not-critical" where the stationarity test failed (curvature then says what the Hessian
-// looks like there, reason why it is not critical); "unknown" where nothing could be tested
-// (a non-finite end, no Hessian, too many variables; reason says which).
-nlohmann::json runToJson(const solve::Run& run, const std::vector<std::string>& names, bool withTrace = true);
-nlohmann::json recordToJson(const solve::IterationRecord& record);
-
-// Where a result came from, and the caution, for the top of a JSON document: {program,
-// version, study_title (when there is a study), formula | model, loss, data, caution}.
-nlohmann::json provenanceJson(const study::Provenance& provenance);
+// One run as JSON, one record, and where a result came from with the caution:
+// core/report/run_json.h (shared with the report writer).
+using report::provenanceJson;
+using report::recordToJson;
+using report::runToJson;
 
 // Per-iteration table: k, f, |∇f|, step kind, alpha, |step|, cumulative evaluations, note;
 // x columns too when n <= 4.

@@ -66,18 +66,6 @@ const char* kHelp =
     "Exit codes: 0 the fit ran (converged or at a limit; see the warnings), 1 the run broke down,\n"
     "2 bad usage or input.\n";
 
-nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
-
-nlohmann::json matrixJson(const Matrix& m) {
-    nlohmann::json rows = nlohmann::json::array();
-    for (Eigen::Index i = 0; i < m.rows(); ++i) {
-        nlohmann::json row = nlohmann::json::array();
-        for (Eigen::Index j = 0; j < m.cols(); ++j) row.push_back(number(m(i, j)));
-        rows.push_back(row);
-    }
-    return rows;
-}
-
 int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed =
         parseArgs(args, {"json", "summary", "drop-incomplete", "no-remedies"},
@@ -170,52 +158,7 @@ int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ost
         j["response"] = def.response;
         j["loss"] = toString(def.loss);
         if (def.loss == Loss::Huber || def.loss == Loss::Cauchy) j["scale"] = def.scale;
-        nlohmann::json parameters = nlohmann::json::object(), errors = nlohmann::json::object(),
-                       intervals = nlohmann::json::object();
-        for (std::size_t k = 0; k < names.size(); ++k) {
-            const auto i = static_cast<Eigen::Index>(k);
-            parameters[names[k]] = number(st.estimates[i]);
-            errors[names[k]] = number(st.standardErrors[i]);
-            intervals[names[k]] = {number(st.lower[i]), number(st.upper[i])};
-        }
-        j["parameters"] = parameters;
-        // Parameters the data cannot separate have null errors and intervals; the combinations
-        // the data do determine are listed (core/fit/fit_statistics.h).
-        nlohmann::json undetermined = nlohmann::json::array(), combinations = nlohmann::json::array();
-        for (std::size_t k = 0; k < names.size(); ++k)
-            if (k < st.notDetermined.size() && st.notDetermined[k]) undetermined.push_back(names[k]);
-        for (const fit::DeterminedCombination& c : st.determinedCombinations) {
-            nlohmann::json coefficients = nlohmann::json::object();
-            for (std::size_t k = 0; k < names.size(); ++k)
-                if (c.coefficients[static_cast<Eigen::Index>(k)] != 0)
-                    coefficients[names[k]] = c.coefficients[static_cast<Eigen::Index>(k)];
-            combinations.push_back({{"text", c.text},
-                                    {"coefficients", coefficients},
-                                    {"estimate", number(c.estimate)},
-                                    {"standard_error", number(c.standardError)},
-                                    {"confidence_interval", {number(c.lower), number(c.upper)}}});
-        }
-        j["not_determined"] = undetermined;
-        j["determined_combinations"] = combinations;
-        j["standard_errors"] = errors;
-        j["confidence_intervals"] = intervals;
-        j["confidence_level"] = st.confidenceLevel;
-        j["critical_value"] = number(st.criticalValue);
-        j["covariance"] = matrixJson(st.covariance);
-        j["correlation"] = matrixJson(st.correlation);
-        j["covariance_method"] = st.covarianceMethod;
-        j["residual_sum_of_squares"] = number(st.residualSumOfSquares);
-        j["residual_standard_deviation"] = number(st.residualStandardDeviation);
-        j["degrees_of_freedom"] = st.degreesOfFreedom;
-        j["objective_value"] = number(st.objectiveValue);
-        if (st.likelihood) {
-            j["log_likelihood"] = number(st.logLikelihood);
-            j["deviance"] = number(st.deviance);
-        }
-        nlohmann::json singular = nlohmann::json::array();
-        for (Eigen::Index i = 0; i < st.singularValues.size(); ++i) singular.push_back(number(st.singularValues[i]));
-        j["jacobian"] = {{"rank", st.rank}, {"scaled_condition", number(st.scaledCondition)},
-                         {"scaled_singular_values", singular}};
+        j.update(report::statisticsToJson(st));
         j["warnings"] = result.warnings;
         j["findings"] = findingsToJson(findings, names);
         j["converged"] = result.converged();

@@ -3,7 +3,10 @@
 #include "app/cli/cli.h"
 #include "app/cli/findings_report.h"
 #include "app/cli/run_report.h"
+#include "app/cli/study_findings.h"
+#include "core/report/study_run.h"
 #include "core/solve/solver.h"
+#include "core/study/provenance.h"
 #include "core/study/study.h"
 
 #include <nlohmann/json.hpp>
@@ -13,8 +16,6 @@
 namespace sw::cli {
 
 namespace {
-
-using Json = nlohmann::json;
 
 const char* kHelp =
     "Usage: saddlewise run STUDY.json [--json] [--max-iterations N] [--no-remedies]\n"
@@ -30,7 +31,9 @@ const char* kHelp =
     "\n"
     "Options:\n"
     "  --json               one JSON object: {\"study\": {...}, \"runs\": [...]}, each run with its\n"
-    "                       label, options, summary, end point and full per-iteration trace\n"
+    "                       label, options, summary, end point and full per-iteration trace;\n"
+    "                       for a data fit also its statistics (\"fit\": estimates, standard\n"
+    "                       errors, intervals, correlations, warnings)\n"
     "  --max-iterations N   override the study's iteration limit (1 to 1000000)\n"
     "  --no-remedies        report findings without rerunning their remedies\n"
     "\n"
@@ -64,54 +67,25 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
         rules.maxIterations =
             static_cast<int>(parseInteger(parsed.get("max-iterations"), "--max-iterations", 1, 1000000));
 
-    std::vector<const study::MethodEntry*> lineup;
-    for (const study::MethodEntry& entry : study.methods)
-        if (entry.enabled) lineup.push_back(&entry);
-    if (lineup.empty())
-        throw UsageError(path + ": the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
-
     // Without --json no record is printed: keep only the smallest trace.
     if (!parsed.has("json")) rules.traceMemoryLimit = solve::StoppingRules::kMinTraceMemory;
-    const Vector start = study.start();
-    const std::vector<std::string> names = study.variableNames();
-    std::vector<solve::Run> runs;
-    for (const study::MethodEntry* entry : lineup) {
-        solve::Run result = solve::solve(entry->method, *objective, start, entry->options, rules);
-        result.label = entry->label;
-        runs.push_back(std::move(result));
+    report::StudyRuns result;
+    try {
+        report::RunControl control;
+        control.statistics = parsed.has("json");  // the table leaves them out
+        result = report::runStudy(study, path, objective, rules, control);
+    } catch (const study::StudyError& e) {
+        throw UsageError(path + ": " + e.problem());
     }
-    std::vector<diagnose::Findings> findings;
-    for (std::size_t k = 0; k < runs.size(); ++k)
-        findings.push_back(findingsFor(runs[k], *objective, lineup[k]->method, lineup[k]->options, rules, start,
-                                       !parsed.has("no-remedies")));
-
+    const std::vector<diagnose::Findings> findings = addStudyFindings(result, !parsed.has("no-remedies"));
+    const std::vector<solve::Run>& runs = result.runs;
     if (parsed.has("json")) {
-        Json variables = Json::array();
-        Json startPoint = Json::object();
-        for (const study::Variable& v : study.variables) {
-            variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
-            startPoint[v.name] = v.start;
-        }
-        Json studyJson = {{"file", path},
-                          {"title", study.title},
-                          {"objective", objective->description()},
-                          {"mode", study.isFit() ? "data-fit" : "formula"},
-                          {"variables", variables},
-                          {"start", startPoint},
-                          {"max_iterations", rules.maxIterations}};
-        Json runList = Json::array();
-        for (std::size_t k = 0; k < runs.size(); ++k) {
-            Json run = runToJson(runs[k], names);
-            run["options"] = lineup[k]->options;
-            run["findings"] = findingsToJson(findings[k], names);
-            runList.push_back(std::move(run));
-        }
-        out << Json({{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}})
-                   .dump(2, ' ', false, Json::error_handler_t::replace)
-            << '\n';
+        out << report::studyRunsJson(result).dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
         return exitCodeFor(runs);
     }
 
+    const Vector start = study.start();
+    const std::vector<std::string> names = study.variableNames();
     out << (study.title.empty() ? path : study.title) << '\n';
     out << "  objective: " << objective->description() << '\n';
     out << "  start:    ";
@@ -121,7 +95,7 @@ int run(const std::vector<std::string>& args, std::ostream& out, std::ostream&) 
     printComparison(out, runs);
     out << '\n';
     for (std::size_t k = 0; k < runs.size(); ++k) {
-        out << "  " << lineup[k]->label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
+        out << "  " << runs[k].label << " (" << runs[k].methodId << "): " << runs[k].message << '\n';
         printFindings(out, findings[k], names, "    ");
     }
     out << '\n' << wrapText(study::cautionLine(), 100);

@@ -1,4 +1,5 @@
 #include "app/cli/cli.h"
+#include "app/cli/build_id.h"
 #include "core/expr/expr.h"
 #include "core/study/provenance.h"
 
@@ -8,8 +9,8 @@
 namespace sw::cli {
 
 const std::vector<Verb>& verbs() {
-    static const std::vector<Verb> list = {deriveVerb(), sampleVerb(),  minimizeVerb(), methodsVerb(),
-                                           fitVerb(),    runVerb(),     criticalVerb(), basinsVerb()};
+    static const std::vector<Verb> list = {deriveVerb(), sampleVerb(),   minimizeVerb(), methodsVerb(), fitVerb(),
+                                           runVerb(),    criticalVerb(), basinsVerb(),   reportVerb()};
     return list;
 }
 
@@ -44,7 +45,7 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
         return 0;
     }
     if (args[0] == "--version") {
-        out << "saddlewise " << study::programVersion() << '\n';
+        out << "saddlewise " << study::programVersion() << " (" << buildId() << ")\n";
         return 0;
     }
     const Verb* verb = nullptr;

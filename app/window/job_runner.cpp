@@ -287,6 +287,24 @@ void JobRunner::computeFitStatistics(const FitStatisticsRequest& request) {
     });
 }
 
+void JobRunner::runTask(TaskWork work, std::function<void()> done) {
+    quint64 generation = 0;
+    CancelFlag cancelled = startGeneration(Task, generation);
+    launch(Task, [this, work = std::move(work), done = std::move(done), generation, cancelled] {
+        double lastReport = -1;
+        const std::function<void(double)> progress = [this, &lastReport](double fraction) {
+            if (fraction - lastReport < 0.02 && fraction < 1) return;
+            lastReport = fraction;
+            QMetaObject::invokeMethod(this, [this, fraction] { emit this->progress(Task, fraction); }, Qt::QueuedConnection);
+        };
+        work(*cancelled, progress);
+        const bool wasCancelled = cancelled->load();
+        finishOnGui(Task, generation, wasCancelled, [done, wasCancelled] {
+            if (!wasCancelled && done) done();
+        });
+    });
+}
+
 void JobRunner::cancel(Kind kind) {
     cancel_[kind]->store(true);
     if (kind == Runs) {

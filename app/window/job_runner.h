@@ -17,6 +17,7 @@
 #include <QObject>
 #include <QThreadPool>
 #include <array>
+#include <functional>
 #include <atomic>
 #include <memory>
 #include <mutex>
@@ -95,7 +96,7 @@ struct BasinRequest {
 class JobRunner : public QObject {
     Q_OBJECT
 public:
-    enum Kind { Runs = 0, Field = 1, Statistics = 2, Findings = 3, Critical = 4, Basins = 5, KindCount = 6 };
+    enum Kind { Runs = 0, Field = 1, Statistics = 2, Findings = 3, Critical = 4, Basins = 5, Task = 6, KindCount = 7 };
 
     explicit JobRunner(QObject* parent = nullptr);
     ~JobRunner() override;
@@ -123,6 +124,12 @@ public:
     // A bad request (region, settings, methods) is reported through surveyFailed, not thrown.
     void findCritical(const CriticalRequest& request);
     void mapBasins(const BasinRequest& request);
+
+    // Any other long computation (the review report): `work` runs on the pool with the job's
+    // cancel flag and a progress callback (0..1, any thread); `done` runs on the GUI thread
+    // afterwards unless the task was cancelled or a newer task superseded it.
+    using TaskWork = std::function<void(const std::atomic<bool>& cancelled, const std::function<void(double)>& progress)>;
+    void runTask(TaskWork work, std::function<void()> done);
 
     void cancel(Kind kind);
     void cancelAll();

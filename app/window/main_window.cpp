@@ -12,6 +12,7 @@
 #include "app/window/objective_editor.h"
 #include "app/window/fit_statistics_panel.h"
 #include "app/window/survey_controller.h"
+#include "app/window/report_writer.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
 #include "widgets/curvature_view.h"
@@ -108,6 +109,7 @@ const std::map<QString, QString>& actionIcons() {
 MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     setObjectName("SaddlewiseMainWindow");
     jobs_ = new JobRunner(this);
+    reportWriter_ = new ReportWriter(jobs_, this);
     createViews();
     createActions();
     createDocks();
@@ -333,6 +335,11 @@ void MainWindow::createActions() {
     connect(make("export-steps", tr("Export steps as &CSV…"), tr("Save every method's iterations as a CSV table"),
                  QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_E)),
             &QAction::triggered, this, &MainWindow::exportStepsDialog);
+    connect(make("write-report", tr("Write &report…"),
+                 tr("Write the review report of this study (HTML or PDF): objective, data, methods, plots, end "
+                    "points, statistics and how to regenerate it"),
+                 QKeySequence(Qt::CTRL | Qt::SHIFT | Qt::Key_P)),
+            &QAction::triggered, this, &MainWindow::writeReportDialog);
     connect(make("preferences", tr("&Preferences…"),
                  tr("Animation speed, appearance, landscape and export defaults"), QKeySequence::Preferences),
             &QAction::triggered, this, &MainWindow::showPreferences);
@@ -371,6 +378,7 @@ void MainWindow::createMenus() {
     file->addSeparator();
     file->addAction(action("export-view"));
     file->addAction(action("export-steps"));
+    file->addAction(action("write-report"));
     file->addSeparator();
     file->addAction(action("preferences"));
     file->addSeparator();
@@ -1425,6 +1433,45 @@ void MainWindow::exportViewDialog() {
         QMessageBox::warning(this, tr("Cannot export"), error);
     else
         statusBar()->showMessage(tr("Saved %1").arg(path), 4000);
+}
+
+bool MainWindow::writeReport(const QString& path, QString* error) {
+    if (!objective_) {
+        if (error) *error = tr("the objective cannot be built yet; fix the problem shown in the Objective panel first");
+        return false;
+    }
+    if (reportWriter_->busy()) {
+        if (error) *error = tr("a report is being written already; wait for it or cancel it");
+        return false;
+    }
+    return reportWriter_->start(study_, studyPath_, baseDirectory_, modified_, path, error);
+}
+
+void MainWindow::writeReportDialog() {
+    const QString base = studyPath_.isEmpty() ? QStringLiteral("report") : QFileInfo(studyPath_).completeBaseName() + "-report";
+    const QString folder = studyPath_.isEmpty() ? QDir::homePath() : QFileInfo(studyPath_).absolutePath();
+    const QString html = tr("HTML report, one file (*.html)"), pdf = tr("PDF report (*.pdf)");
+    QString filter = html;
+    QString path = QFileDialog::getSaveFileName(this, tr("Write review report"), QDir(folder).filePath(base + ".html"),
+                                                html + ";;" + pdf, &filter);
+    if (path.isEmpty()) return;
+    if (QFileInfo(path).suffix().isEmpty()) path += filter == pdf ? ".pdf" : ".html";
+    QString error;
+    if (!writeReport(path, &error)) {
+        QMessageBox::warning(this, tr("Cannot write the report"), error);
+        return;
+    }
+    statusBar()->showMessage(tr("Writing the report to %1…").arg(QDir::toNativeSeparators(path)));
+    // One connection per request: the writer tells how this report ended.
+    auto* connection = new QMetaObject::Connection;
+    *connection = connect(reportWriter_, &ReportWriter::finished, this, [this, connection](int outcome, const QString& message) {
+        disconnect(*connection);
+        delete connection;
+        if (outcome == ReportWriter::Failed)
+            QMessageBox::warning(this, tr("Cannot write the report"), message);
+        else
+            statusBar()->showMessage(message, 6000);
+    });
 }
 
 void MainWindow::exportStepsDialog() {

@@ -55,6 +55,7 @@ struct ExportLook {
 class FindingsPanel;
 class FindingsController;
 class SurveyController;
+class ReportWriter;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -86,6 +87,10 @@ public:
     // The title line of an exported figure: formula (or model and response) and held values.
     QString figureTitle() const;
     bool exportStepsCsv(const QString& path, QString* error = nullptr);
+    // The review report of the study on screen (report_writer.h): HTML or PDF by the suffix,
+    // made through the job runner; the writer's finished() says when and how it ended.
+    bool writeReport(const QString& path, QString* error = nullptr);
+    ReportWriter* reportWriter() const { return reportWriter_; }
 
     // State, for tests, screenshots and benchmarks.
     std::shared_ptr<const widgets::Snapshot> snapshot() const { return snapshot_; }
@@ -187,6 +192,7 @@ private:
     bool maybeSave();
     void exportViewDialog();
     void exportStepsDialog();
+    void writeReportDialog();
     void about();
     void addRecentFile(const QString& path);
     void updateRecentMenu();
@@ -237,6 +243,7 @@ private:
 
     JobRunner* jobs_ = nullptr;
     FitStatisticsPanel* fitStatistics_ = nullptr;  // the Fit dock; places itself (fit_statistics_panel.h)
+    ReportWriter* reportWriter_ = nullptr;
     QTimer animation_;
     QTimer heldResample_;
     QTimer lazyViews_;  // views other than the landscape catch up when a drag pauses

@@ -130,7 +130,8 @@ TEST(FitVerb, JsonCarriesProvenanceAndTheCaution) {
     EXPECT_EQ(p["version"], sw::study::programVersion());
     std::ostringstream version, ignored;
     sw::cli::runCommandLine({"--version"}, version, ignored);
-    EXPECT_EQ(version.str(), "saddlewise " + p["version"].get<std::string>() + "\n");
+    // --version adds the build id in parentheses (app/cli/build_id.h).
+    EXPECT_EQ(version.str().rfind("saddlewise " + p["version"].get<std::string>() + " (", 0), 0u) << version.str();
     EXPECT_EQ(p["model"], "temp = a - b*exp(-minutes/tau)");
     EXPECT_EQ(p["loss"], "least-squares");
     EXPECT_NE(p["caution"].get<std::string>().find("licensed professional practice"), std::string::npos);

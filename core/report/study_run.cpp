@@ -1,0 +1,150 @@
+// Running a study's lineup and writing what `run --json` prints.
+#include "core/report/study_run.h"
+
+#include "core/fit/run_fit.h"
+#include "core/objective/fit_objective.h"
+#include "core/report/run_json.h"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace sw::report {
+
+using nlohmann::json;
+
+std::vector<std::size_t> enabledEntries(const study::Study& study) {
+    std::vector<std::size_t> entries;
+    for (std::size_t k = 0; k < study.methods.size(); ++k)
+        if (study.methods[k].enabled) entries.push_back(k);
+    if (entries.empty())
+        throw study::StudyError("methods", "the study has no enabled methods; set \"enabled\": true on one in \"methods\"");
+    return entries;
+}
+
+StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<const Objective> objective,
+                   const solve::StoppingRules& rules, const RunControl& control) {
+    StudyRuns result;
+    result.entries = enabledEntries(study);
+    result.study = std::move(study);
+    result.studyPath = std::move(studyPath);
+    result.objective = std::move(objective);
+    result.rules = rules;
+
+    const Vector start = result.study.start();
+    const double count = static_cast<double>(result.entries.size());
+    const double limit = std::max(1, rules.maxIterations);
+    for (std::size_t k = 0; k < result.entries.size(); ++k) {
+        const study::MethodEntry& entry = result.study.methods[result.entries[k]];
+        solve::Run run;
+        if (control.cancel && control.cancel->load()) {
+            run.methodId = entry.method;
+            run.termination = solve::Termination::StoppedByCaller;
+            run.message = "not run: cancelled";
+        } else {
+            solve::SolverOrError made = solve::makeSolver(entry.method, *result.objective, start, entry.options, rules);
+            if (made.solver) {
+                run = solve::solve(std::move(made.solver), [&](const solve::Run& soFar) {
+                    if (control.progress)
+                        control.progress((static_cast<double>(k) + std::min(1.0, soFar.iterations() / limit)) / count);
+                    return !(control.cancel && control.cancel->load());
+                });
+            } else {
+                run.methodId = entry.method;
+                run.termination = solve::Termination::Failed;
+                run.message = made.error;
+            }
+        }
+        run.label = entry.label;
+        result.runs.push_back(std::move(run));
+        if (control.progress) control.progress((static_cast<double>(k) + 1) / count);
+    }
+
+    const auto* fitObjective = dynamic_cast<const FitObjective*>(result.objective.get());
+    if (fitObjective && control.statistics) {
+        for (const solve::Run& run : result.runs) {
+            // A run rejected before its first evaluation has no end point: describe the start.
+            const Vector at = run.x.size() == start.size() ? run.x : start;
+            result.statistics.push_back(fit::computeStatistics(*fitObjective, at));
+        }
+    }
+    return result;
+}
+
+json studyRunsJson(const StudyRuns& r, bool withTrace) {
+    const study::Study& study = r.study;
+    json variables = json::array();
+    json startPoint = json::object();
+    for (const study::Variable& v : study.variables) {
+        variables.push_back({{"name", v.name}, {"start", v.start}, {"plot_from", v.lower}, {"plot_to", v.upper}});
+        startPoint[v.name] = v.start;
+    }
+    json studyJson = {{"file", r.studyPath},
+                      {"title", study.title},
+                      {"objective", r.objective ? r.objective->description() : std::string()},
+                      {"mode", study.isFit() ? "data-fit" : "formula"},
+                      {"variables", variables},
+                      {"start", startPoint},
+                      {"max_iterations", r.rules.maxIterations},
+                      {"stopping",
+                       {{"max_iterations", r.rules.maxIterations},
+                        {"max_evaluations", r.rules.maxEvaluations},
+                        {"gradient_tolerance", r.rules.gradientTolerance},
+                        {"relative_gradient_tolerance", r.rules.relativeGradientTolerance},
+                        {"step_tolerance", r.rules.stepTolerance},
+                        {"function_tolerance", r.rules.functionTolerance}}}};
+    if (study.fit) {
+        const study::DataFit& fit = *study.fit;
+        json data = {{"file", fit.dataPath}, {"checksum", fit.checksum}, {"model", fit.model},
+                     {"response", fit.response}, {"loss", fit.loss}};
+        if (!fit.weights.empty()) data[fit.weightsKind == "sigma" ? "sigma" : "weights"] = fit.weights;
+        if (fit.loss == "huber" || fit.loss == "cauchy") data["scale"] = fit.lossScale;
+        if (const auto* objective = dynamic_cast<const FitObjective*>(r.objective.get())) {
+            const sw::Table& table = objective->table();
+            data["rows"] = table.rowCount();
+            data["columns"] = table.columnNames;
+            data["separator"] = toString(table.separator);
+            data["separator_detected"] = table.separatorDetected;
+            data["dropped_rows"] = table.droppedRows;
+        }
+        studyJson["data"] = std::move(data);
+    }
+
+    const std::vector<std::string> names = study.variableNames();
+    json runList = json::array();
+    for (std::size_t k = 0; k < r.runs.size(); ++k) {
+        json run = runToJson(r.runs[k], names, withTrace);
+        run["options"] = study.methods[r.entries[k]].options;
+        if (k < r.findings.size() && !r.findings[k].is_null()) run["findings"] = r.findings[k];
+        if (k < r.statistics.size()) {
+            json fit = statisticsToJson(r.statistics[k]);
+            fit["warnings"] = fit::fitWarnings(r.runs[k], r.statistics[k]);
+            run["fit"] = std::move(fit);
+        }
+        runList.push_back(std::move(run));
+    }
+    return {{"provenance", provenanceJson(study::provenanceOf(study))}, {"study", studyJson}, {"runs", runList}};
+}
+
+int bestRun(const json& runsJson) {
+    const json& runs = runsJson.contains("runs") ? runsJson["runs"] : runsJson;
+    bool anyConverged = false;
+    for (const json& run : runs) anyConverged = anyConverged || (run["value"].is_number() && run.value("converged", false));
+    double lowest = std::numeric_limits<double>::infinity();
+    for (const json& run : runs)
+        if (run["value"].is_number() && (!anyConverged || run.value("converged", false)))
+            lowest = std::min(lowest, run["value"].get<double>());
+    if (!std::isfinite(lowest)) return -1;
+    // Ties go to the first in the lineup: methods that reach the same minimum differ in the
+    // last digits, and the order the modeler gave the lineup is the better guide than rounding.
+    const double tie = kBestRunTie * std::max(1.0, std::fabs(lowest));
+    for (std::size_t k = 0; k < runs.size(); ++k) {
+        const json& run = runs[k];
+        if (run["value"].is_number() && (!anyConverged || run.value("converged", false)) &&
+            run["value"].get<double>() <= lowest + tie)
+            return static_cast<int>(k);
+    }
+    return -1;
+}
+
+}  // namespace sw::report
