@@ -733,8 +733,10 @@ void ObjectiveEditor::removeVariable() {
 }
 
 void ObjectiveEditor::chooseDataFile() {
-    const QString file = QFileDialog::getOpenFileName(this, tr("Choose a data table"), lastUsedFolder(),
-                                                      tr("CSV tables (*.csv *.txt *.tsv);;All files (*)"));
+    const QString title = tr("Choose a data table");
+    const QString filter = tr("CSV tables (*.csv *.txt *.tsv);;All files (*)");
+    const QString file = fileChooser_ ? fileChooser_(this, title, lastUsedFolder(), filter)
+                                      : QFileDialog::getOpenFileName(this, title, lastUsedFolder(), filter);
     if (file.isEmpty()) return;
     rememberFolder(file);
     setDataFile(file);

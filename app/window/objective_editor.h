@@ -64,6 +64,11 @@ public:
     bool setDataFile(const QString& path);
     // Records the current checksum of the chosen table (the user accepts a changed table).
     void acceptDataAsItIsNow();
+    // How Choose… asks for a table: by default Qt's open-file dialog. Tests (and a future
+    // drop target) answer with a path; an empty answer means the user cancelled.
+    using FileChooser = std::function<QString(QWidget* parent, const QString& title, const QString& folder,
+                                              const QString& filter)>;
+    void setFileChooser(FileChooser chooser) { fileChooser_ = std::move(chooser); }
 
     // Problem reports from the window. position: 0-based offset into the active formula
     // (the formula, or the model in fit mode); -1 marks nothing. unknownNames: names the
@@ -123,6 +128,7 @@ protected:
     void changeEvent(QEvent* event) override;
 
 private:
+    FileChooser fileChooser_;
     void buildFormulaPage(QWidget* page);
     void buildFitPage(QWidget* page);
     void userEdit();  // changed() now and edited() after the pause

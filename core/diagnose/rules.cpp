@@ -669,7 +669,7 @@ std::optional<Finding> rulePoorScaling(const RunFacts& facts) {
     if (!(c.condition >= thresholds::kScalingGain * c.scaledCondition)) return std::nullopt;
     Finding f;
     f.id = FindingId::PoorScaling;
-    f.severity = converged && facts.healthyEnd ? Severity::Note : Severity::Problem;
+    f.severity = facts.healthyEnd ? Severity::Note : Severity::Problem;
     f.iterations = windowSpan(facts);
     Eigen::Index flattest = 0, steepest = 0;
     diagonal.minCoeff(&flattest);

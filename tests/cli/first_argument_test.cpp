@@ -76,12 +76,12 @@ std::string sampleStudy() { return sourcePath("/samples/two-valve-saddles.json")
 
 TEST(FirstArgument, AnUnknownVerbIsOneLineWithTheVerbListAndExit2) {
     for (const char* environment : {"", "QT_QPA_PLATFORM=xcb"}) {
-        // "critical" is not a verb (yet): the list comes from verbs(), so a new verb needs nothing here.
-        const Result r = runWithoutDisplay({"critical", "x^2 + y^2"}, environment);
+        // "landscape" is not a verb: the list comes from verbs(), so a new verb needs nothing here.
+        const Result r = runWithoutDisplay({"landscape", "x^2 + y^2"}, environment);
         ASSERT_TRUE(r.exited) << r.err;
         EXPECT_EQ(r.code, 2) << r.err;
         EXPECT_EQ(lines(r.err), 1) << r.err;
-        EXPECT_NE(r.err.find("unknown verb or file 'critical'"), std::string::npos) << r.err;
+        EXPECT_NE(r.err.find("unknown verb or file 'landscape'"), std::string::npos) << r.err;
         for (const sw::cli::Verb& v : sw::cli::verbs()) EXPECT_NE(r.err.find(v.name), std::string::npos) << v.name;
         EXPECT_TRUE(r.out.empty());
     }
@@ -161,7 +161,7 @@ TEST(FirstArgument, ClassifiesFromTheVerbListAndTheFileSystem) {
     for (const sw::cli::Verb& v : sw::cli::verbs()) EXPECT_EQ(classifyFirstArgument({v.name}), FirstArgument::Headless);
     EXPECT_EQ(classifyFirstArgument({"--help"}), FirstArgument::Headless);
     EXPECT_EQ(classifyFirstArgument({"--nonsense"}), FirstArgument::Headless);  // runCommandLine reports it
-    EXPECT_EQ(classifyFirstArgument({"critical"}), FirstArgument::UnknownVerb);
+    EXPECT_EQ(classifyFirstArgument({"landscape"}), FirstArgument::UnknownVerb);
     EXPECT_EQ(classifyFirstArgument({"nosuchfile.json"}), FirstArgument::MissingStudy);
     EXPECT_EQ(classifyFirstArgument({sampleStudy()}), FirstArgument::Window);
     EXPECT_EQ(classifyFirstArgument({sourcePath("")}), FirstArgument::NotAStudy);

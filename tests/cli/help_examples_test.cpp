@@ -120,7 +120,7 @@ std::vector<std::string> readmeExamples() {
             inShell = !inShell && (text == "```sh" || text == "```bash" || text == "```shell");
             continue;
         }
-        if (inShell && startsWith(text, "saddlewise ")) examples.push_back(text);
+        if (inShell && (startsWith(text, "saddlewise ") || startsWith(text, "mpirun "))) examples.push_back(text);
     }
     return examples;
 }
@@ -144,10 +144,24 @@ private:
     fs::path path_;
 };
 
-// Runs an example as typed, with "saddlewise" meaning the built executable.
+// Runs an example as typed, with "saddlewise" meaning the built executable. "mpirun -n N
+// saddlewise ..." runs through the MPI launcher found at configure time (as root OpenMPI needs
+// its flag; in containers its single-copy shared-memory path fails, so the copy path is used).
 Outcome runExample(const std::string& example, const fs::path& folder) {
-    const std::string arguments = example.substr(std::string("saddlewise").size());
-    return shell("cd " + quoted(folder.string()) + " && " + quoted(SW_EXECUTABLE) + arguments);
+    std::string launcher;
+    std::string rest = example;
+    if (startsWith(example, "mpirun ")) {
+        const auto at = example.find(" saddlewise ");
+        if (at == std::string::npos) return Outcome{2, "an mpirun line without saddlewise: " + example};
+#ifdef SW_MPIEXEC
+        launcher = std::string("OMPI_MCA_btl_vader_single_copy_mechanism=none ") + quoted(SW_MPIEXEC) +
+                   " --oversubscribe" + (::geteuid() == 0 ? " --allow-run-as-root" : "") +
+                   example.substr(std::string("mpirun").size(), at - std::string("mpirun").size()) + " ";
+#endif
+        rest = example.substr(at + 1);  // without MPI the same survey runs in one process
+    }
+    const std::string arguments = rest.substr(std::string("saddlewise").size());
+    return shell("cd " + quoted(folder.string()) + " && " + launcher + quoted(SW_EXECUTABLE) + arguments);
 }
 
 TEST(HelpExamples, EveryVerbIsListedAndShowsAtLeastOneExample) {

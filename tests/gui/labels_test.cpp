@@ -132,8 +132,9 @@ private slots:
         const QStringList names = legendNames(view.plot());
         QVERIFY2(names.join("|").contains("ends at a local minimum"), qPrintable(names.join(" | ")));
         bool found = false;
-        for (int i = 0; i < view.plot()->plotLayout()->elementCount(); ++i)
-            if (auto* scale = qobject_cast<QCPColorScale*>(view.plot()->plotLayout()->elementAt(i))) {
+        // The colour scale may sit in a nested grid beside the axis rect: search recursively.
+        for (QCPLayoutElement* element : view.plot()->plotLayout()->elements(true))
+            if (auto* scale = qobject_cast<QCPColorScale*>(element)) {
                 QVERIFY2(scale->axis()->label().contains("lowest f on this plane"), qPrintable(scale->axis()->label()));
                 QVERIFY(!scale->axis()->label().contains("f_min"));
                 found = true;
