@@ -71,7 +71,7 @@ Outcome tryChange(const Objective& objective, const RunSetup& setup, const solve
         const ScaledObjective scaled(objective, change.scale);
         solve::SolverOrError made = solve::makeSolver(s.methodId, scaled, scaled.toScaled(s.start), s.options, s.rules);
         if (made.solver) {
-            rerun = mapRunBack(solve::solve(std::move(made.solver), observer), objective, change.scale, s.rules);
+            rerun = mapRunBack(solve::solve(std::move(made.solver), observer), objective, change.scale);
         } else {
             rerun.methodId = s.methodId;
             rerun.termination = solve::Termination::Failed;

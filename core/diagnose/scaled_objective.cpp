@@ -36,8 +36,7 @@ bool ScaledObjective::leastSquaresFactor(const Vector& u, Matrix& r, Vector& qtr
     return true;
 }
 
-solve::Run mapRunBack(const solve::Run& scaledRun, const Objective& original, const Vector& scale,
-                      const solve::StoppingRules& rules) {
+solve::Run mapRunBack(const solve::Run& scaledRun, const Objective& original, const Vector& scale) {
     solve::Run run = scaledRun;
     auto back = [&](Vector& v) {
         if (v.size() == scale.size()) v = v.cwiseProduct(scale);
@@ -60,15 +59,8 @@ solve::Run mapRunBack(const solve::Run& scaledRun, const Objective& original, co
         Matrix h;
         run.value = original.valueGradientHessian(run.x, g, h);
         run.gradientNorm = g.norm();
-        run.endPoint = solve::classifyPoint(h);
-        // The solver's own test for a critical point (solver.cpp), in the original variables.
-        const double gn = run.gradientNorm;
-        if (run.endPoint.kind != solve::PointKind::Unknown && std::isfinite(gn) &&
-            gn > std::max(1e-4, std::sqrt(rules.gradientTolerance)) * (1.0 + std::abs(run.value))) {
-            run.endPoint.critical = false;
-            run.endPoint.description += "; not a critical point (gradient norm " + solve::shortNumber(gn) +
-                                        "), so this is only the local curvature";
-        }
+        // The same stationarity test as every run's end (record.h), in the original variables.
+        run.endPoint = solve::classifyEndPoint(h, run.x, run.value, g);
     }
     return run;
 }

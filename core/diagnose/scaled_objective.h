@@ -40,8 +40,9 @@ private:
 // The run of a method on a ScaledObjective, in the original variables: x, steps and gradients
 // mapped back (x = D u, s_x = D s_u, g_x = D^-1 g_u); the records' Hessian spectra, which were
 // of D H D, are dropped. The end point is classified again from the original Hessian (the
-// inertia is the same, Sylvester's law, but the eigenvalues are not).
-solve::Run mapRunBack(const solve::Run& scaledRun, const Objective& original, const Vector& scale,
-                      const solve::StoppingRules& rules);
+// inertia is the same, Sylvester's law, but the eigenvalues are not) with the stationarity test
+// every run's end passes (solve::classifyEndPoint), so a rerun that converged in the scaled
+// variables is not called "not critical" for a gradient measured in the original units.
+solve::Run mapRunBack(const solve::Run& scaledRun, const Objective& original, const Vector& scale);
 
 }  // namespace sw::diagnose
