@@ -265,6 +265,32 @@ TEST_F(ReportOutput, NoFigureIsSplitAcrossPages) {
     }
 }
 
+// The findings the `run` verb prints reach the report with their tried remedy: pure Newton on
+// the two-valve sample ends on a saddle (its Hessian there is indefinite: checked against the
+// critical-point map in tests/reference/survey), and the exact trust region's rerun helps.
+TEST_F(ReportOutput, TheFindingsAndTheirTriedRemediesAreInTheReport) {
+    const std::string study = sample("two-valve-saddles.json");
+    const json runs = runJson(study);
+    std::string outcome;
+    for (const json& run : runs["runs"])
+        for (const json& f : run["findings"])
+            if (f["id"] == "saddle-end" && f.contains("remedy") && f["remedy"].contains("outcome"))
+                outcome = f["remedy"]["outcome"]["text"].get<std::string>();
+    ASSERT_FALSE(outcome.empty()) << "run --json has a saddle-end finding with a tried remedy";
+
+    ASSERT_EQ(writeReport(study, "review.html").code, 0);
+    const std::string html = readFile(file("review.html"));
+    EXPECT_NE(html.find("id=\"findings\""), std::string::npos) << "a findings section";
+    EXPECT_NE(html.find("saddle-end"), std::string::npos);
+    EXPECT_NE(html.find("trust-region-exact"), std::string::npos) << "the remedy's change";
+    EXPECT_NE(html.find("it helped"), std::string::npos) << "the rerun's outcome";
+
+    ASSERT_EQ(writeReport(study, "review.pdf").code, 0);
+    const Shell text = shell("pdftotext " + quoted(file("review.pdf").string()) + " -");
+    EXPECT_NE(text.out.find("saddle-end"), std::string::npos);
+    EXPECT_NE(text.out.find("helped"), std::string::npos);
+}
+
 TEST_F(ReportOutput, BadOutputPathsAreRefusedAndLeaveNothingBehind) {
     const std::string study = sample("two-valve-saddles.json");
     Shell s = writeReport(study, "review.txt");
