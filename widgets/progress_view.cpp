@@ -48,6 +48,16 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     bestNote_->setMargins(QMargins(4, 2, 4, 0));
     plot_->plotLayout()->addElement(0, 0, bestNote_);
     plot_->plotLayout()->setRowStretchFactor(0, 0.001);
+    // A short panel (a 1280 x 800 screen) has plots shorter than their axis labels, which then
+    // ran into each other, and no room for the note's second line: shorter words there.
+    connect(plot_, &QCustomPlot::beforeReplot, this, [this] {
+        const QFontMetrics metrics(gradientRect_->axis(QCPAxis::atLeft)->labelFont());
+        const int height = gradientRect_->rect().height();  // 0 before the first layout: not short
+        const bool shortPlots = height > 0 && height < metrics.horizontalAdvance(tr("gradient norm |∇f|")) + 8;
+        gradientRect_->axis(QCPAxis::atLeft)->setLabel(shortPlots ? tr("|∇f|") : tr("gradient norm |∇f|"));
+        const QString note = shortPlots ? bestShort_ : bestLong_;
+        if (bestNote_->text() != note) bestNote_->setText(note);
+    });
 
     auto* row = new QHBoxLayout;
     row->setContentsMargins(4, 0, 4, 2);
@@ -146,8 +156,10 @@ void ProgressView::rebuild() {
     floor_ = std::isfinite(smallestGap) ? smallestGap / 10 : 1e-16 * std::max(1.0, std::abs(best_));
     const double gradientFloor = std::isfinite(smallestGradient) ? smallestGradient / 10 : 1e-16;
     gy->setLabel(tr("f − f_best"));
-    bestNote_->setText(tr("f_best = %1, the lowest f any run reached\nruns at f_best are drawn at %2 (a log axis has no 0)")
-                           .arg(formatNumber(best_), formatNumber(floor_, 2)));
+    bestLong_ = tr("f_best = %1, the lowest f any run reached\nruns at f_best are drawn at %2 (a log axis has no 0)")
+                    .arg(formatNumber(best_), formatNumber(floor_, 2));
+    bestShort_ = tr("f_best = %1 (lowest f reached; drawn at %2)").arg(formatNumber(best_), formatNumber(floor_, 2));
+    bestNote_->setText(bestLong_);
 
     double xMax = 1;
     double gLo = std::numeric_limits<double>::infinity(), gHi = 0, dLo = gLo, dHi = 0;

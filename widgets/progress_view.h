@@ -40,6 +40,7 @@ private:
     double floor_ = 1e-16;
     QComboBox* axisChoice_ = nullptr;
     QCPTextElement* bestNote_ = nullptr;  // f_best and the floor, above the plots
+    QString bestLong_, bestShort_;  // the note above the plots, and its one-line form for short panels
     QCPAxisRect* gapRect_ = nullptr;
     QCPAxisRect* gradientRect_ = nullptr;
     std::vector<QCPGraph*> gapGraphs_;
