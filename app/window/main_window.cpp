@@ -123,6 +123,11 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     pendingEdit_.setSingleShot(true);
     pendingEdit_.setInterval(0);
     connect(&pendingEdit_, &QTimer::timeout, this, &MainWindow::recordEdit);
+    connect(undo_, &QUndoStack::indexChanged, this, [this] {
+        if (!showingStep_) return;
+        showingStep_ = false;
+        setModified(!undo_->isClean() || recovered_);  // undo back to the saved study: not modified
+    });
     autosave_.setInterval(kDefaultAutosaveMs);
     connect(&autosave_, &QTimer::timeout, this, &MainWindow::writeRecovery);
     reportWriter_ = new ReportWriter(jobs_, this);
@@ -904,7 +909,10 @@ void MainWindow::showStudyText(const std::string& text, const QString& recordedB
     jobs_->cancelAll();
     setPlaying(false);
     study_ = shown;
-    presentStudy(!undo_->isClean() || recovered_);
+    // The stack moves its index after the step has been shown: the modified flag follows then
+    // (the indexChanged connection in the constructor).
+    showingStep_ = true;
+    presentStudy(true);
     if (entry >= 0 && entry < static_cast<int>(study_.methods.size())) lineupEditor_->setCurrentEntry(entry);
 }
 

@@ -267,6 +267,7 @@ private:
     std::string shownText_;
     QTimer pendingEdit_;  // an edit reported but not recorded yet (one step per user action)
     bool pendingMayMerge_ = true;
+    bool showingStep_ = false;  // undo or redo is showing a step; the stack's index moves next
 
     // Recovery.
     std::unique_ptr<RecoverySlot> recovery_;
