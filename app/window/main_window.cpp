@@ -989,16 +989,17 @@ bool MainWindow::offerRecovery() {
                                                       : QLocale().toString(orphan.modified, QLocale::ShortFormat);
         const QString title = tr("Recover unsaved work");
         const QString text = tr("Saddlewise did not close normally. Unsaved changes to %1 were kept (last kept %2).\n\n"
-                                "Restore them? No discards them.")
+                                "Restore them? No discards them; Cancel keeps them for the next start.")
                                  .arg(name, when);
-        const auto buttons = QMessageBox::Yes | QMessageBox::No;
+        // Cancel is there so that Escape or closing the question never throws the work away.
+        const auto buttons = QMessageBox::Yes | QMessageBox::No | QMessageBox::Cancel;
         const auto answer =
             question_ ? question_(this, title, text, buttons) : QMessageBox::question(this, title, text, buttons, QMessageBox::Yes);
         if (answer == QMessageBox::No) {
             QFile::remove(orphan.file);
             continue;
         }
-        if (answer != QMessageBox::Yes) return false;  // dismissed: offered again next time
+        if (answer != QMessageBox::Yes) return false;  // Cancel: offered again next time
         if (!maybeSave()) return false;
         jobs_->cancelAll();
         setPlaying(false);

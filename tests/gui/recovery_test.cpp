@@ -3,7 +3,7 @@
 // formula into the study opened from the command line; SADDLEWISE_AUTOSAVE_MS makes it keep the
 // work aside every 150 ms) and is killed with SIGKILL. A window made here afterwards, with the
 // same data location, offers the study: Yes restores exactly the edited formula and variables in
-// their place, No removes the file, and a clean close leaves no recovery file. While the process
+// their place, Cancel keeps the file, No removes it, and a clean close leaves no recovery file. While the process
 // runs its file is not offered. Internal behaviour: no outside reference.
 //
 // The data location is isolated: XDG_DATA_HOME, XDG_CONFIG_HOME and HOME point into a temporary
@@ -180,7 +180,7 @@ private slots:
         QVERIFY2(filesIn(recoveryFolder()).isEmpty(), qPrintable(filesIn(recoveryFolder()).join(", ")));
     }
 
-    void noDiscardsTheKilledProgramsWork() {
+    void cancelKeepsAndNoDiscardsTheKilledProgramsWork() {
         QProcess program;
         QString log;
         const QString file = startEditingProgram(program, &log);
@@ -189,6 +189,12 @@ private slots:
         if (QTest::currentTestFailed()) return;
 
         MainWindow window;
+        Asked later;  // Cancel (or Escape) keeps the work for the next start
+        window.setQuestion(answering(&later, QMessageBox::Cancel));
+        QVERIFY(!window.offerRecovery());
+        QCOMPARE(later.count, 1);
+        QVERIFY(QFile::exists(file));
+
         Asked asked;
         window.setQuestion(answering(&asked, QMessageBox::No));
         QVERIFY(!window.offerRecovery());
