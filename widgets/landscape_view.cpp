@@ -587,6 +587,7 @@ bool LandscapeView::eventFilter(QObject* watched, QEvent* event) {
         if (mouse->button() != Qt::LeftButton) break;
         if (dragging_) {
             dragging_ = false;
+            emit startDragFinished();
             return true;
         }
         if (pressed_) {

@@ -44,9 +44,12 @@ public:
     QCPColorMap* colourMap() const { return colourMap_; }
     // Position of the selection highlight (NaN when hidden).
     QPointF highlightPosition() const;
+    // True while the start marker is being dragged (its moves are not separate edits).
+    bool draggingStart() const { return dragging_; }
 
 signals:
     void startMoved(sw::Vector start);      // continuously while the start marker is dragged
+    void startDragFinished();               // the drag's button released: one edit ends here
     void startPlaced(sw::Vector start);     // a click on the plot away from any iterate
     void viewBoxChanged(sw::analyze::Box box);  // after zoom, pan or reset (debounced)
     void logColourChanged(bool on);

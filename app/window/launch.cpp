@@ -1,6 +1,7 @@
 #include "app/window/launch.h"
 
 #include "app/window/main_window.h"
+#include "app/window/objective_editor.h"
 #include "core/study/provenance.h"
 
 #include <QApplication>
@@ -8,6 +9,7 @@
 #include <QDockWidget>
 #include <QFileInfo>
 #include <QMessageBox>
+#include <QPlainTextEdit>
 #include <QTimer>
 #include <cstdio>
 #include <cstdlib>
@@ -132,6 +134,12 @@ int launch(int argc, char** argv) {
             });
         }
     }
+    // SADDLEWISE_AUTOSAVE_MS: how often unsaved work is kept aside (default 30 s); tests use a
+    // few hundred ms. SADDLEWISE_TEST_FORMULA: a test hook that types this formula into the
+    // editor after the study given on the command line is open, so a test can give a real process an unsaved edit.
+    if (const int ms = qEnvironmentVariableIntValue("SADDLEWISE_AUTOSAVE_MS"); ms > 0) window.setAutosaveInterval(ms);
+    if (const QString typed = qEnvironmentVariable("SADDLEWISE_TEST_FORMULA"); !typed.isEmpty())
+        window.objectiveEditor()->formulaEdit()->setPlainText(typed);
     const QString shot = qEnvironmentVariable("SADDLEWISE_SCREENSHOT");
     if (!shot.isEmpty()) {
         const QString size = qEnvironmentVariable("SADDLEWISE_SCREENSHOT_SIZE");  // e.g. 1600x1000
@@ -144,6 +152,9 @@ int launch(int argc, char** argv) {
         scheduleScreenshot(window, QFileInfo(shot).absoluteFilePath());
     }
     window.show();
+    // Work a crashed or killed window left behind is offered once this one is on screen (never
+    // in the screenshot mode, which must not wait for an answer).
+    if (shot.isEmpty()) QTimer::singleShot(0, &window, [&window] { window.offerRecovery(); });
     return app.exec();
 }
 

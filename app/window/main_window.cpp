@@ -12,6 +12,8 @@
 #include "app/window/objective_editor.h"
 #include "app/window/fit_statistics_panel.h"
 #include "app/window/survey_controller.h"
+#include "app/window/recovery.h"
+#include "app/window/study_edit.h"
 #include "app/window/report_writer.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
@@ -34,14 +36,17 @@
 #include <QDialog>
 #include <QDialogButtonBox>
 #include <QDir>
+#include <QDateTime>
 #include <QDockWidget>
 #include <QElapsedTimer>
+#include <QFile>
 #include <QFileDialog>
 #include <QFileInfo>
 #include <QFormLayout>
 #include <QHBoxLayout>
 #include <QLabel>
 #include <QLineEdit>
+#include <QLocale>
 #include <QMenuBar>
 #include <QMessageBox>
 #include <QProgressBar>
@@ -53,6 +58,7 @@
 #include <QSpinBox>
 #include <QStatusBar>
 #include <QTextBrowser>
+#include <QUndoStack>
 #include <QThread>
 #include <QToolBar>
 #include <QToolButton>
@@ -65,6 +71,8 @@ namespace sw::window {
 namespace {
 
 constexpr int kMaxRecentFiles = 8;
+// How often unsaved work is written aside (recovery.h): at most this much is lost in a crash.
+constexpr int kDefaultAutosaveMs = 30000;
 
 QString settingsGroup() { return QStringLiteral("window"); }
 
@@ -109,6 +117,19 @@ const std::map<QString, QString>& actionIcons() {
 MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     setObjectName("SaddlewiseMainWindow");
     jobs_ = new JobRunner(this);
+    undo_ = new QUndoStack(this);
+    // Editors report one user action in several signals (text, then the table, the axes):
+    // recording after the event makes it one step.
+    pendingEdit_.setSingleShot(true);
+    pendingEdit_.setInterval(0);
+    connect(&pendingEdit_, &QTimer::timeout, this, &MainWindow::recordEdit);
+    connect(undo_, &QUndoStack::indexChanged, this, [this] {
+        if (!showingStep_) return;
+        showingStep_ = false;
+        setModified(!undo_->isClean() || recovered_);  // undo back to the saved study: not modified
+    });
+    autosave_.setInterval(kDefaultAutosaveMs);
+    connect(&autosave_, &QTimer::timeout, this, &MainWindow::writeRecovery);
     reportWriter_ = new ReportWriter(jobs_, this);
     createViews();
     createActions();
@@ -140,7 +161,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     newStudy();
 }
 
-MainWindow::~MainWindow() { jobs_->cancelAll(); }
+MainWindow::~MainWindow() { jobs_->cancelAll(); }  // recovery_ removes this window's file
 
 // ---------------------------------------------------------------- views and docks
 
@@ -166,13 +187,14 @@ void MainWindow::createViews() {
     connect(landscape_, &widgets::LandscapeView::startMoved, this, &MainWindow::moveStart);
     connect(landscape_, &widgets::LandscapeView::startPlaced, this, &MainWindow::moveStart);
     connect(landscape_, &widgets::LandscapeView::viewBoxChanged, this, &MainWindow::setViewBox);
+    connect(landscape_, &widgets::LandscapeView::startDragFinished, this, [this] { studyEdited(); });  // one step per drag
     connect(landscape_, &widgets::LandscapeView::logColourChanged, this, [this](bool on) {
         if (study_.view.logColour == on) return;
         study_.view.logColour = on;
-        setModified(true);
+        studyEdited();
     });
     connect(objectiveEditor_, &ObjectiveEditor::changed, this, [this] {
-        if (!loading_) setModified(true);  // any edit, even one that does not parse yet
+        if (!loading_) studyEdited(true);  // any edit, even one that does not parse yet; typing merges
     });
     connect(objectiveEditor_, &ObjectiveEditor::edited, this, &MainWindow::rebuildObjective);
     connect(objectiveEditor_, &ObjectiveEditor::plotAxesChanged, this, &MainWindow::onPlotAxesChanged);
@@ -183,7 +205,7 @@ void MainWindow::createViews() {
     connect(surveys_, &SurveyController::startRequested, this, &MainWindow::moveStart);
     connect(surveys_, &SurveyController::surveysEdited, this, [this](const study::SurveySettings& s) {
         study_.surveys = s.critical || s.basins ? std::optional<study::SurveySettings>(s) : std::nullopt;
-        setModified(true);
+        studyEdited();
     });
 }
 
@@ -316,6 +338,26 @@ void MainWindow::createActions() {
     connect(make("quit", tr("&Quit"), tr("Close the window"), QKeySequence::Quit), &QAction::triggered, this,
             &QWidget::close);
 
+    QAction* undoAction = make("undo", tr("&Undo"), tr("Undo the last edit of the study"), QKeySequence::Undo);
+    QAction* redoAction = make("redo", tr("&Redo"), tr("Redo the edit just undone"), QKeySequence::Redo);
+    connect(undoAction, &QAction::triggered, this, &MainWindow::undo);
+    connect(redoAction, &QAction::triggered, this, &MainWindow::redo);
+    undoAction->setEnabled(false);
+    redoAction->setEnabled(false);
+    connect(undo_, &QUndoStack::canUndoChanged, undoAction, &QAction::setEnabled);
+    connect(undo_, &QUndoStack::canRedoChanged, redoAction, &QAction::setEnabled);
+    // The step's name goes in the tip, so menus and the shortcut list keep a short entry.
+    connect(undo_, &QUndoStack::undoTextChanged, undoAction, [undoAction](const QString& text) {
+        undoAction->setStatusTip(text.isEmpty() ? tr("Undo the last edit of the study") : tr("Undo the %1").arg(text));
+        undoAction->setToolTip(QStringLiteral("%1 (%2)").arg(undoAction->statusTip(),
+                                                             undoAction->shortcut().toString(QKeySequence::NativeText)));
+    });
+    connect(undo_, &QUndoStack::redoTextChanged, redoAction, [redoAction](const QString& text) {
+        redoAction->setStatusTip(text.isEmpty() ? tr("Redo the edit just undone") : tr("Redo the %1").arg(text));
+        redoAction->setToolTip(QStringLiteral("%1 (%2)").arg(redoAction->statusTip(),
+                                                             redoAction->shortcut().toString(QKeySequence::NativeText)));
+    });
+
     connect(make("run-all", tr("&Run all"), tr("Run every enabled method to the end"), QKeySequence(Qt::CTRL | Qt::Key_R)),
             &QAction::triggered, this, &MainWindow::runAll);
     connect(make("step-all", tr("&Step all"), tr("Advance every method by one iteration"), QKeySequence(Qt::Key_F10)),
@@ -384,6 +426,10 @@ void MainWindow::createMenus() {
     file->addSeparator();
     file->addAction(action("quit"));
 
+    QMenu* edit = menuBar()->addMenu(tr("&Edit"));
+    edit->addAction(action("undo"));
+    edit->addAction(action("redo"));
+
     QMenu* run = menuBar()->addMenu(tr("&Run"));
     for (const char* name : {"run-all", "step-all", "play", "reset", "cancel"}) run->addAction(action(name));
 
@@ -397,7 +443,7 @@ void MainWindow::createMenus() {
     help->addAction(action("shortcuts"));
     help->addSeparator();
     help->addAction(action("about"));
-    for (QMenu* m : {file, run, viewMenu_, help}) m->setToolTipsVisible(true);
+    for (QMenu* m : {file, edit, run, viewMenu_, help}) m->setToolTipsVisible(true);
     updateSamplesMenu();
 }
 
@@ -515,7 +561,7 @@ void MainWindow::applyPreferences(const Preferences& wanted, bool changeStudy) {
     if (view == study_.view) return;
     const bool logChanged = view.logColour != study_.view.logColour;
     study_.view = view;
-    setModified(true);
+    studyEdited();
     if (logChanged) landscape_->setLogColour(view.logColour);  // redraws the shown field at once
     requestField();
 }
@@ -622,6 +668,8 @@ void MainWindow::newStudy() {
     study_ = defaultStudy(preferences_);
     studyPath_.clear();
     copiedFrom_.clear();
+    recovered_ = false;
+    undo_->clear();
     baseDirectory_.clear();  // a table chosen now is kept by its full path until the study is saved
     presentStudy();
 }
@@ -648,7 +696,8 @@ void MainWindow::clearViews() {
 
 // Shows study_ in the editors and views and starts from a clean slate (no selection, no
 // remembered view box, unmodified); newStudy and openStudy set study_ and its place first.
-void MainWindow::presentStudy() {
+void MainWindow::presentStudy(bool modified) {
+    pendingEdit_.stop();  // an edit of the study being replaced is not recorded
     loading_ = true;
     clearViews();
     objectiveEditor_->setStudy(study_, baseDirectory_);
@@ -658,8 +707,10 @@ void MainWindow::presentStudy() {
     loading_ = false;
     hasViewBox_ = false;
     objective_.reset();
+    modified_ = modified;  // the run below writes a recovery file only for a study that is unsaved
     rebuildObjective();
-    setModified(false);
+    shownText_ = onScreenText();
+    setModified(modified);
 }
 
 bool MainWindow::openStudy(const QString& path, QString* error, bool asCopy) {
@@ -676,6 +727,8 @@ bool MainWindow::openStudy(const QString& path, QString* error, bool asCopy) {
     jobs_->cancelAll();
     setPlaying(false);
     study_ = loaded;
+    recovered_ = false;
+    undo_->clear();
     // A copy keeps the file's folder for its data path until it is saved somewhere else.
     studyPath_ = asCopy ? QString() : QFileInfo(path).absoluteFilePath();
     copiedFrom_ = asCopy ? QFileInfo(path).fileName() : QString();
@@ -693,6 +746,7 @@ study::Study MainWindow::onScreenStudy() const {
 }
 
 bool MainWindow::saveStudy(const QString& path, QString* error) {
+    if (pendingEdit_.isActive()) recordEdit();  // the step before the save belongs before the clean state
     study::Study toSave = onScreenStudy();
     const QString folder = QFileInfo(path).absolutePath();
     // A data file is referenced relative to the study: re-base it when saving elsewhere.
@@ -719,6 +773,9 @@ bool MainWindow::saveStudy(const QString& path, QString* error) {
     copiedFrom_.clear();
     baseDirectory_ = folder;
     objectiveEditor_->setBaseDirectory(folder);
+    recovered_ = false;
+    shownText_ = onScreenText();  // the data path may have been re-based
+    undo_->setClean();
     setModified(false);
     addRecentFile(studyPath_);
     rememberFolder(path);
@@ -777,6 +834,7 @@ void MainWindow::closeEvent(QCloseEvent* event) {
     if (maybeSave()) {
         writeSettings();
         jobs_->cancelAll();
+        if (recovery_) recovery_->remove();  // a clean exit leaves nothing to recover
         event->accept();
     } else {
         event->ignore();
@@ -785,13 +843,180 @@ void MainWindow::closeEvent(QCloseEvent* event) {
 
 void MainWindow::setModified(bool modified) {
     modified_ = modified;
+    if (modified) {
+        if (!autosave_.isActive()) autosave_.start();  // not restarted per edit: typing never postpones it
+    } else {
+        // Saved, discarded or new: nothing left to recover.
+        autosave_.stop();
+        if (recovery_) recovery_->remove();
+        writtenRecovery_.clear();
+    }
     updateTitle();
 }
 
 void MainWindow::updateTitle() {
     QString name = studyPath_.isEmpty() ? tr("Untitled") : QFileInfo(studyPath_).fileName();
     if (studyPath_.isEmpty() && !copiedFrom_.isEmpty()) name = tr("Untitled (copy of %1)").arg(copiedFrom_);
+    if (recovered_) name = tr("%1 (recovered)").arg(name);
     setWindowTitle(QStringLiteral("%1%2 — Saddlewise").arg(name, modified_ ? "*" : ""));
+}
+
+// ---------------------------------------------------------------- undo
+
+std::string MainWindow::onScreenText() const {
+    try {
+        return study::toJson(onScreenStudy());
+    } catch (const std::exception&) {
+        return {};  // nothing the writer refuses is on screen; if it were, no step is recorded
+    }
+}
+
+void MainWindow::studyEdited(bool mayMerge) {
+    setModified(true);
+    if (loading_) return;
+    pendingMayMerge_ = pendingEdit_.isActive() ? pendingMayMerge_ && mayMerge : mayMerge;
+    pendingEdit_.start();
+}
+
+void MainWindow::recordEdit() {
+    pendingEdit_.stop();
+    if (loading_) return;
+    std::string now = onScreenText();
+    if (now.empty() || now == shownText_) return;
+    std::string before = std::move(shownText_);
+    shownText_ = now;
+    // push() merges a run of typing into the step on top (StudyEdit::mergeWith).
+    undo_->push(new StudyEdit(std::move(before), std::move(now), baseDirectory_, pendingMayMerge_,
+                              [this](const std::string& text, const QString& base) { showStudyText(text, base); }));
+    pendingMayMerge_ = true;
+}
+
+// Undo and redo show a recorded study the way Open shows a file (the views start again from
+// it), keeping the study's place, the lineup's current entry and the modified state the stack
+// says.
+void MainWindow::showStudyText(const std::string& text, const QString& recordedBase) {
+    study::Study shown;
+    try {
+        shown = study::fromJsonAsTyped(text, baseDirectory_.toStdString());
+    } catch (const std::exception& e) {
+        // Only texts the writer made are recorded; a failure here is a bug, said plainly.
+        statusBar()->showMessage(tr("Cannot show that step: %1").arg(QString::fromUtf8(e.what())), 8000);
+        return;
+    }
+    if (recordedBase != baseDirectory_)  // saved elsewhere since: the data path names the same file
+        study::rebaseDataPath(shown, recordedBase.toStdString(), baseDirectory_.toStdString());
+    const int entry = lineupEditor_->currentEntry();
+    jobs_->cancelAll();
+    setPlaying(false);
+    study_ = shown;
+    // The stack moves its index after the step has been shown: the modified flag follows then
+    // (the indexChanged connection in the constructor).
+    showingStep_ = true;
+    presentStudy(true);
+    if (entry >= 0 && entry < static_cast<int>(study_.methods.size())) lineupEditor_->setCurrentEntry(entry);
+}
+
+void MainWindow::undo() {
+    if (pendingEdit_.isActive()) recordEdit();  // the edit just typed is the one to undo
+    undo_->undo();
+}
+
+void MainWindow::redo() {
+    if (pendingEdit_.isActive()) recordEdit();  // a new edit ends the redo history
+    undo_->redo();
+}
+
+// ---------------------------------------------------------------- recovery
+
+void MainWindow::setAutosaveInterval(int milliseconds) { autosave_.setInterval(std::max(10, milliseconds)); }
+
+int MainWindow::autosaveInterval() const { return autosave_.interval(); }
+
+QString MainWindow::recoveryFile() const { return recovery_ ? recovery_->filePath() : QString(); }
+
+bool MainWindow::writeRecovery() {
+    if (!modified_) return false;
+    if (pendingEdit_.isActive()) recordEdit();
+    const std::string text = onScreenText();
+    if (text.empty()) return false;
+    RecoveredStudy content;
+    content.studyText = QString::fromStdString(text);
+    content.studyPath = studyPath_;
+    content.baseDirectory = baseDirectory_;
+    content.copiedFrom = copiedFrom_;
+    const QString key = content.studyText + '\n' + studyPath_ + '\n' + baseDirectory_ + '\n' + copiedFrom_;
+    if (recovery_ && key == writtenRecovery_ && recovery_->exists()) return true;  // nothing new since
+    if (!recovery_) recovery_ = std::make_unique<RecoverySlot>();
+    content.savedAt = QDateTime::currentDateTimeUtc();
+    QString error;
+    if (!recovery_->write(content, &error)) {
+        // The work itself is fine; say once per failure why it is not being kept aside.
+        statusBar()->showMessage(tr("Unsaved work could not be kept aside: %1").arg(error), 8000);
+        writtenRecovery_.clear();
+        return false;
+    }
+    writtenRecovery_ = key;
+    return true;
+}
+
+bool MainWindow::offerRecovery() {
+    std::vector<OrphanedRecovery> orphans = RecoverySlot::claimOrphans();
+    for (const OrphanedRecovery& orphan : orphans) {
+        QString error;
+        const std::optional<RecoveredStudy> found = RecoverySlot::read(orphan.file, &error);
+        study::Study restored;
+        if (found) {
+            try {
+                restored = study::fromJsonAsTyped(found->studyText.toStdString(), found->baseDirectory.toStdString());
+            } catch (const std::exception& e) {
+                error = tr("%1: study: %2").arg(orphan.file, QString::fromUtf8(e.what()));
+            }
+        }
+        if (!error.isEmpty()) {
+            // Set aside rather than deleted: the user may still want to look at it.
+            const QString aside = orphan.file + QStringLiteral(".unreadable");
+            QFile::remove(aside);
+            QFile::rename(orphan.file, aside);
+            statusBar()->showMessage(tr("A recovery file could not be read (%1); it was set aside as %2")
+                                         .arg(error, QFileInfo(aside).fileName()),
+                                     12000);
+            continue;
+        }
+        const QString name = !found->studyPath.isEmpty() ? QFileInfo(found->studyPath).fileName()
+                             : !found->copiedFrom.isEmpty() ? tr("an untitled copy of %1").arg(found->copiedFrom)
+                                                            : tr("an untitled study");
+        const QString when = found->savedAt.isValid() ? QLocale().toString(found->savedAt.toLocalTime(), QLocale::ShortFormat)
+                                                      : QLocale().toString(orphan.modified, QLocale::ShortFormat);
+        const QString title = tr("Recover unsaved work");
+        const QString text = tr("Saddlewise did not close normally. Unsaved changes to %1 were kept (last kept %2).\n\n"
+                                "Restore them? No discards them; Cancel keeps them for the next start.")
+                                 .arg(name, when);
+        // Cancel is there so that Escape or closing the question never throws the work away.
+        const auto buttons = QMessageBox::Yes | QMessageBox::No | QMessageBox::Cancel;
+        const auto answer =
+            question_ ? question_(this, title, text, buttons) : QMessageBox::question(this, title, text, buttons, QMessageBox::Yes);
+        if (answer == QMessageBox::No) {
+            QFile::remove(orphan.file);
+            continue;
+        }
+        if (answer != QMessageBox::Yes) return false;  // Cancel: offered again next time
+        if (!maybeSave()) return false;
+        jobs_->cancelAll();
+        setPlaying(false);
+        study_ = restored;
+        studyPath_ = found->studyPath;
+        baseDirectory_ = found->baseDirectory;
+        copiedFrom_ = found->copiedFrom;
+        recovered_ = true;
+        undo_->clear();
+        undo_->resetClean();  // unsaved until saved, whatever is undone
+        presentStudy(true);
+        // This window keeps it aside now; the old file goes once the new one is written.
+        writeRecovery();
+        QFile::remove(orphan.file);
+        return true;
+    }
+    return false;
 }
 
 // ---------------------------------------------------------------- help
@@ -848,7 +1073,8 @@ QString MainWindow::formulaSyntaxText() {
 QString MainWindow::shortcutsText() const {
     QString rows;
     for (const QString& name : {QStringLiteral("new"), QStringLiteral("open"), QStringLiteral("save"),
-                                QStringLiteral("save-as"), QStringLiteral("run-all"), QStringLiteral("step-all"),
+                                QStringLiteral("save-as"), QStringLiteral("undo"), QStringLiteral("redo"),
+                                QStringLiteral("run-all"), QStringLiteral("step-all"),
                                 QStringLiteral("play"), QStringLiteral("reset"), QStringLiteral("cancel"),
                                 QStringLiteral("export-view"), QStringLiteral("export-steps"),
                                 QStringLiteral("preferences"), QStringLiteral("formula-help"), QStringLiteral("quit")}) {
@@ -946,7 +1172,7 @@ void MainWindow::rebuildObjective() {
 void MainWindow::onLineupEdited() {
     if (loading_) return;
     study_.methods = lineupEditor_->entries();
-    setModified(true);
+    studyEdited();
     if (objective_) {
         jobs_->endStepSession();
         runAll();
@@ -960,7 +1186,7 @@ void MainWindow::onPlotAxesChanged() {
     study_.view.plotX = shown.view.plotX;
     study_.view.plotY = shown.view.plotY;
     hasViewBox_ = false;
-    setModified(true);
+    studyEdited();
     if (snapshot_) {
         auto copy = std::make_shared<widgets::Snapshot>(*snapshot_);
         copy->plotX = study_.view.plotX;
@@ -1021,6 +1247,7 @@ void MainWindow::runAll() {
     if (!objective_) return;
     setPlaying(false);
     jobs_->runAll(runRequest());
+    if (modified_ && !loading_) writeRecovery();  // a run may be what crashes
 }
 
 void MainWindow::stepAll() {
@@ -1086,7 +1313,10 @@ void MainWindow::moveStart(const Vector& point) {
     for (int i = 0; i < n; ++i) study_.variables[static_cast<std::size_t>(i)].start = x(i);
     objectiveEditor_->setStart(x);
     landscape_->setStart(x);
-    setModified(true);
+    if (landscape_->draggingStart())
+        setModified(true);  // recorded once, when the drag ends
+    else
+        studyEdited();
     const bool wasStepping = jobs_->hasStepSession() && !animation_.isActive();
     if (animation_.isActive()) {
         jobs_->beginSteps(runRequest());

@@ -27,6 +27,7 @@ class QMenu;
 class QProgressBar;
 class QSpinBox;
 class QToolButton;
+class QUndoStack;
 
 namespace sw::widgets {
 class LandscapeView;
@@ -56,6 +57,7 @@ class FindingsPanel;
 class FindingsController;
 class SurveyController;
 class ReportWriter;
+class RecoverySlot;
 
 class MainWindow : public QMainWindow {
     Q_OBJECT
@@ -144,6 +146,24 @@ public:
                                                                const QString& text, QMessageBox::StandardButtons)>;
     void setQuestion(Question question);
 
+    // Undo and redo of every edit of the study (study_edit.h). New and Open clear the stack;
+    // Save marks its clean state, so undoing past a save makes the study modified again.
+    QUndoStack* undoStack() const { return undo_; }
+
+    // Recovery (recovery.h): while the study has unsaved edits, what is on screen is written
+    // aside every autosaveInterval() ms (default 30 s) and on every run of the methods.
+    void setAutosaveInterval(int milliseconds);
+    int autosaveInterval() const;
+    // This window's recovery file ("" until it first writes one) and writing it now (when
+    // there is something unsaved; true when the file holds what is on screen).
+    QString recoveryFile() const;
+    bool writeRecovery();
+    // Offers a study left by a window that did not close normally (a crash, a kill) through the
+    // question hook: Yes restores it (modified, the title says recovered), No discards the
+    // file. Files of windows that still run are never offered. True when one was restored.
+    bool offerRecovery();
+    bool isRecovered() const { return recovered_; }
+
 public slots:
     void runAll();
     void stepAll();
@@ -153,6 +173,9 @@ public slots:
     void setSelection(const sw::widgets::Selection& selection);
     void moveStart(const sw::Vector& start);
     void setViewBox(const sw::analyze::Box& box);
+    // Edit ▸ Undo / Redo (an edit still being recorded is recorded first).
+    void undo();
+    void redo();
 
 signals:
     // After each delivered batch of runs has reached the views.
@@ -165,7 +188,14 @@ protected:
     void changeEvent(QEvent* event) override;
 
 private:
-    void presentStudy();
+    // modified: a study restored from a recovery file or shown by undo is still unsaved.
+    void presentStudy(bool modified = false);
+    // The user changed the study: marks it modified and records an undo step (at once, or
+    // after the current event when editors report one action in several signals).
+    void studyEdited(bool mayMerge = false);
+    void recordEdit();
+    void showStudyText(const std::string& text, const QString& recordedBase);
+    std::string onScreenText() const;
     void clearViews();
     void createViews();
     void createDocks();
@@ -230,6 +260,19 @@ private:
     QString copiedFrom_;     // the sample an untitled study was opened from
     bool modified_ = false;
     bool loading_ = false;
+    bool recovered_ = false;  // restored from a recovery file and not saved since
+
+    // Undo: the stack and the on-screen study's text as last recorded (each step's "before").
+    QUndoStack* undo_ = nullptr;
+    std::string shownText_;
+    QTimer pendingEdit_;  // an edit reported but not recorded yet (one step per user action)
+    bool pendingMayMerge_ = true;
+    bool showingStep_ = false;  // undo or redo is showing a step; the stack's index moves next
+
+    // Recovery.
+    std::unique_ptr<RecoverySlot> recovery_;
+    QTimer autosave_;
+    QString writtenRecovery_;  // the last wrapper content written (nothing new: no write)
 
     // Results.
     std::shared_ptr<const Objective> objective_;
