@@ -428,8 +428,10 @@ Table readTable(const std::string& path, const TableReadOptions& options) {
 }
 
 static std::string quotedIfNeeded(const std::string& s) {
+    // A name that starts with the UTF-8 byte-order mark is quoted too: unquoted at the start of
+    // the file, a reader takes those bytes for the file's BOM and drops them (found by fuzzing).
     bool need = s.empty() || s.front() == ' ' || s.back() == ' ' || s.front() == '#' ||
-                s.find_first_of(",;\t\"\r\n") != std::string::npos;
+                s.rfind("\xEF\xBB\xBF", 0) == 0 || s.find_first_of(",;\t\"\r\n") != std::string::npos;
     if (!need) return s;
     std::string q = "\"";
     for (char c : s) {
