@@ -16,7 +16,8 @@
 
 int main(int argc, char** argv) {
     std::vector<std::string> args(argv + 1, argv + argc);
-    const sw::cli::FirstArgument kind = sw::cli::classifyFirstArgument(args);
+    std::string subject;
+    const sw::cli::FirstArgument kind = sw::cli::classifyFirstArgument(args, &subject);
 #ifdef SW_HAVE_MPI
     // Only the survey verbs ask for a process group, and MPI starts only under a launcher.
     sw::cli::setProcessGroupFactory(&sw::mpi::joinWorld);
@@ -26,7 +27,7 @@ int main(int argc, char** argv) {
 #endif
     if (kind == sw::cli::FirstArgument::Headless) return sw::cli::runCommandLine(args, std::cout, std::cerr);
     // An unknown verb or a study file that is not there: one line and exit 2, before any window.
-    if (kind != sw::cli::FirstArgument::Window) return sw::cli::reportFirstArgument(kind, args[0], std::cerr);
+    if (kind != sw::cli::FirstArgument::Window) return sw::cli::reportFirstArgument(kind, subject, std::cerr);
 #ifdef SW_HAVE_GUI
     return sw::window::launch(argc, argv);
 #else

@@ -39,7 +39,9 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
 // What argv[1..] asks for, decided before any window exists (first_argument.cpp): a verb or
 // option (Headless), the window (no argument, or a study file that exists), or a mistake.
 enum class FirstArgument { Headless, Window, UnknownVerb, MissingStudy, NotAStudy };
-FirstArgument classifyFirstArgument(const std::vector<std::string>& args);
+// Qt's window options (-platform NAME, -style NAME, -reverse, ...) may come first; `subject`
+// (optional) receives the argument the answer is about.
+FirstArgument classifyFirstArgument(const std::vector<std::string>& args, std::string* subject = nullptr);
 // For the mistakes: one line on err naming the word and the verbs; returns 2 (0 otherwise).
 int reportFirstArgument(FirstArgument kind, const std::string& first, std::ostream& err);
 

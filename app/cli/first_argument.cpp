@@ -45,11 +45,33 @@ std::string verbList() {
     return list;
 }
 
+// Qt's own window options (QGuiApplication, QApplication, xcb), which the window takes before
+// an optional study file: `saddlewise -platform offscreen study.json`. Values: those that take one.
+bool isWindowOption(const std::string& word, bool* takesValue) {
+    static const char* const valued[] = {"-platform", "-platformpluginpath", "-platformtheme", "-plugin",
+                                         "-qmljsdebugger", "-qwindowgeometry", "-qwindowicon", "-qwindowtitle",
+                                         "-session", "-style", "-stylesheet", "-display", "-geometry", "-title"};
+    static const char* const bare[] = {"-reverse", "-widgetcount", "-nograb", "-dograb", "-sync"};
+    for (const char* v : valued)
+        if (word == v) return *takesValue = true;
+    for (const char* b : bare)
+        if (word == b) return !(*takesValue = false);
+    return false;
+}
+
 }  // namespace
 
-FirstArgument classifyFirstArgument(const std::vector<std::string>& args) {
-    if (args.empty()) return FirstArgument::Window;
-    const std::string& first = args[0];
+FirstArgument classifyFirstArgument(const std::vector<std::string>& args, std::string* subject) {
+    std::size_t i = 0;
+    for (bool valued = false; i < args.size() && isWindowOption(args[i], &valued);) i += valued ? 2 : 1;
+    if (i >= args.size()) return FirstArgument::Window;
+    const std::string& first = args[i];
+    if (subject) *subject = first;
+    if (i > 0) {  // after window options only a study file may follow
+        struct stat info {};
+        if (::stat(first.c_str(), &info) == 0) return S_ISDIR(info.st_mode) ? FirstArgument::NotAStudy : FirstArgument::Window;
+        return FirstArgument::MissingStudy;
+    }
     if (isVerb(first) || first.rfind("-", 0) == 0 || first == "help") return FirstArgument::Headless;
     struct stat info {};
     if (::stat(first.c_str(), &info) == 0) return S_ISDIR(info.st_mode) ? FirstArgument::NotAStudy : FirstArgument::Window;

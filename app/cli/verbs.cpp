@@ -51,10 +51,13 @@ int runCommandLine(const std::vector<std::string>& args, std::ostream& out, std:
     const Verb* verb = nullptr;
     for (const Verb& v : verbs())
         if (v.name == args[0]) verb = &v;
-    if (!verb) {
-        err << "saddlewise: unknown verb '" << args[0] << "'; known verbs:";
-        for (const Verb& v : verbs()) err << ' ' << v.name;
-        err << "\nTry 'saddlewise --help'.\n";
+    if (!verb) {  // one line, as for an unknown first word (first_argument.cpp)
+        std::string list;
+        for (const Verb& v : verbs()) list += (list.empty() ? "" : ", ") + v.name;
+        const bool option = args[0].rfind("-", 0) == 0;
+        err << "saddlewise: unknown " << (option ? "option" : "verb") << " '" << args[0].substr(0, 80) << "'"
+            << (option ? " (before a verb only --help and --version are options)" : "") << "; verbs: " << list
+            << " (saddlewise --help describes them)\n";
         return 2;
     }
     std::vector<std::string> rest(args.begin() + 1, args.end());

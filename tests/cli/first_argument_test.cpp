@@ -87,6 +87,30 @@ TEST(FirstArgument, AnUnknownVerbIsOneLineWithTheVerbListAndExit2) {
     }
 }
 
+TEST(FirstArgument, AnUnknownOptionIsOneLineWithTheVerbListAndExit2) {
+    const Result r = runWithoutDisplay({"--nonsense"});
+    ASSERT_TRUE(r.exited) << r.err;
+    EXPECT_EQ(r.code, 2) << r.err;
+    EXPECT_EQ(lines(r.err), 1) << r.err;
+    EXPECT_NE(r.err.find("unknown option '--nonsense'"), std::string::npos) << r.err;
+    for (const sw::cli::Verb& v : sw::cli::verbs()) EXPECT_NE(r.err.find(v.name), std::string::npos) << v.name;
+}
+
+TEST(FirstArgument, QtWindowOptionsGoToTheWindowAndTheStudyAfterThemIsChecked) {
+    // `-platform NAME` and friends are the window's (Qt's own options); without a display the
+    // window says so in one line instead of calling them unknown.
+    const Result r = runWithoutDisplay({"-platform", "xcb"});
+    ASSERT_TRUE(r.exited) << r.err;
+    EXPECT_EQ(r.code, 2) << r.err;
+    EXPECT_NE(r.err.find("no display"), std::string::npos) << r.err;
+    EXPECT_EQ(r.err.find("unknown"), std::string::npos) << r.err;
+    const Result missing = runWithoutDisplay({"-platform", "offscreen", "-reverse", "nosuchfile.json"});
+    ASSERT_TRUE(missing.exited);
+    EXPECT_EQ(missing.code, 2);
+    EXPECT_NE(missing.err.find("nosuchfile.json"), std::string::npos) << missing.err;
+    EXPECT_EQ(lines(missing.err), 1) << missing.err;
+}
+
 TEST(FirstArgument, AMistypedVerbGetsASuggestion) {
     const Result r = runWithoutDisplay({"sampel", "x"});
     ASSERT_TRUE(r.exited);
@@ -162,6 +186,11 @@ TEST(FirstArgument, ClassifiesFromTheVerbListAndTheFileSystem) {
     EXPECT_EQ(classifyFirstArgument({"--help"}), FirstArgument::Headless);
     EXPECT_EQ(classifyFirstArgument({"--nonsense"}), FirstArgument::Headless);  // runCommandLine reports it
     EXPECT_EQ(classifyFirstArgument({"landscape"}), FirstArgument::UnknownVerb);
+    EXPECT_EQ(classifyFirstArgument({"-platform", "offscreen"}), FirstArgument::Window);
+    EXPECT_EQ(classifyFirstArgument({"-style", "fusion", sampleStudy()}), FirstArgument::Window);
+    std::string subject;
+    EXPECT_EQ(classifyFirstArgument({"-reverse", "nosuch.json"}, &subject), FirstArgument::MissingStudy);
+    EXPECT_EQ(subject, "nosuch.json");
     EXPECT_EQ(classifyFirstArgument({"nosuchfile.json"}), FirstArgument::MissingStudy);
     EXPECT_EQ(classifyFirstArgument({sampleStudy()}), FirstArgument::Window);
     EXPECT_EQ(classifyFirstArgument({sourcePath("")}), FirstArgument::NotAStudy);
