@@ -43,38 +43,7 @@ void printAligned(std::ostream& out, const std::vector<std::vector<std::string>>
     }
 }
 
-std::string weightsText(const FitDefinition& d) {
-    if (!d.weights.empty()) return ", rows weighted by column '" + d.weights + "'";
-    if (!d.sigma.empty()) return ", rows weighted by 1/sd^2 with sd from column '" + d.sigma + "'";
-    return "";
-}
-
 }  // namespace
-
-std::string modelEquation(const FitDefinition& d) {
-    switch (d.loss) {
-        case Loss::BernoulliLogit:
-            return "log(p / (1 - p)) = " + d.model + ", where p = P(" + d.response + " = 1)";
-        case Loss::PoissonLog: return "log(mean of " + d.response + ") = " + d.model;
-        default: return d.response + " = " + d.model + " + error";
-    }
-}
-
-std::string lossInWords(const FitDefinition& d) {
-    const std::string r = "(" + d.response + " - model)";
-    switch (d.loss) {
-        case Loss::LeastSquares: return "least squares: 1/2 sum " + r + "^2" + weightsText(d);
-        case Loss::Weighted: return "weighted least squares: 1/2 sum w " + r + "^2" + weightsText(d);
-        case Loss::Huber:
-            return "Huber with scale " + num(d.scale) + ": squares the residual up to the scale, grows linearly beyond" +
-                   weightsText(d);
-        case Loss::Cauchy:
-            return "Cauchy with scale " + num(d.scale) + ": (scale^2/2) log(1 + (residual/scale)^2)" + weightsText(d);
-        case Loss::BernoulliLogit: return "logistic: the negative log-likelihood of 0/1 outcomes" + weightsText(d);
-        case Loss::PoissonLog: return "poisson: the negative log-likelihood of counts" + weightsText(d);
-    }
-    return toString(d.loss);
-}
 
 void printFitReport(std::ostream& out, const Table& table, const FitDefinition& def, const fit::FitResult& result,
                     bool withTrace, const std::function<void(std::ostream&)>& afterSummary) {

@@ -14,10 +14,9 @@
 
 namespace sw::cli {
 
-// "temp = a - b*exp(-minutes/tau) + error", "log(p/(1 - p)) = b0 + b1*x, p = P(y = 1)", ...
-std::string modelEquation(const FitDefinition& definition);
-// "least squares: 1/2 sum (temp - model)^2", "logistic: the negative log-likelihood of 0/1 outcomes", ...
-std::string lossInWords(const FitDefinition& definition);
+// modelEquation and lossInWords live with FitDefinition (core/objective/fit_objective.h).
+using sw::lossInWords;
+using sw::modelEquation;
 
 // afterSummary, when given, prints more right after the run's summary (the fit verb's findings).
 void printFitReport(std::ostream& out, const Table& table, const FitDefinition& definition,

@@ -17,7 +17,7 @@ const char* kHelp =
     "                         [--method ID ...] [--option NAME=VALUE ...] [--png FILE]\n"
     "                         [--png-size PIXELS] [--json] [--plane X,Y] [--at NAME=VALUE,...]\n"
     "                         [--starts N] [--max-iterations N] [--max-evaluations N]\n"
-    "                         [--gradient-tolerance X] [--constants NAME=VALUE,...] [--threads T]\n"
+    "                         [--gradient-norm-below X] [--constants NAME=VALUE,...] [--threads T]\n"
     "\n"
     "Runs each method from the centre of every cell of an N x N grid over the plane (the\n"
     "first two --box variables, or --plane; the others held at --at or the box centre) and\n"
@@ -34,7 +34,7 @@ const char* kHelp =
     "  --png FILE                the maps side by side, coloured by end point, darker for more\n"
     "                            iterations, critical points marked, with a legend\n"
     "  --png-size PIXELS         size of each map in the picture (default 300)\n"
-    "  --max-iterations N        per run (default 200); --max-evaluations, --gradient-tolerance\n"
+    "  --max-iterations N        per run (default 200); --max-evaluations, --gradient-norm-below\n"
     "                            as for 'saddlewise minimize'\n"
     "  --starts N, --sign-change-grid M   starts of the critical-point search (see 'critical')\n"
     "  --json                    one JSON object: points, and per method cells (N*N point\n"
@@ -58,7 +58,7 @@ int runBasins(const std::vector<std::string>& args, std::ostream& out, std::ostr
     return runOnGroup(*group, err, [&] {
         std::vector<std::string> valued = kSurveyOptions;
         for (const char* o : {"grid", "method", "option", "png", "png-size", "max-iterations", "max-evaluations",
-                              "gradient-tolerance"})
+                              "gradient-norm-below", "gradient-tolerance"})
             valued.push_back(o);
         const ParsedArgs parsed = parseArgs(args, {"json"}, valued);
         SurveyInput input = readSurveyInput(parsed, *group, true);
@@ -77,10 +77,14 @@ int runBasins(const std::vector<std::string>& args, std::ostream& out, std::ostr
         if (parsed.has("max-evaluations"))
             settings.rules.maxEvaluations =
                 parseInteger(parsed.get("max-evaluations"), "--max-evaluations", 1, 1'000'000'000'000L);
-        if (parsed.has("gradient-tolerance")) {
-            settings.rules.gradientTolerance = parseNumber(parsed.get("gradient-tolerance"), "--gradient-tolerance");
-            if (!(settings.rules.gradientTolerance >= 0)) throw UsageError("--gradient-tolerance must be >= 0");
-        }
+        if (parsed.has("gradient-norm-below") && parsed.has("gradient-tolerance"))
+            throw UsageError("--gradient-tolerance is the former name of --gradient-norm-below; give one of them");
+        for (const char* option : {"gradient-norm-below", "gradient-tolerance"})  // the second: former name
+            if (parsed.has(option)) {
+                const std::string flag = std::string("--") + option;
+                settings.rules.gradientTolerance = parseNumber(parsed.get(option), flag);
+                if (!(settings.rules.gradientTolerance >= 0)) throw UsageError(flag + " must be >= 0");
+            }
         const int pngSize =
             parsed.has("png-size") ? static_cast<int>(parseInteger(parsed.get("png-size"), "--png-size", 64, 4000)) : 300;
         std::vector<survey::BasinMethod> methods;

@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <charconv>
 #include <chrono>
 #include <cctype>
 #include <cmath>
@@ -657,8 +658,7 @@ std::vector<std::string> FitObjective::variableNames() const { return impl_->def
 
 std::string FitObjective::description() const {
     const FitDefinition& d = impl_->def;
-    return std::string(toString(d.loss)) + " fit of " + d.response + " ~ " + d.model + " (" +
-           std::to_string(impl_->rows) + " rows)";
+    return std::string(toString(d.loss)) + " fit: " + modelEquation(d) + " (" + std::to_string(impl_->rows) + " rows)";
 }
 
 double FitObjective::value(const Vector& x) const { return impl_->cached(x, 0).value; }
@@ -750,5 +750,50 @@ std::vector<std::string> FitObjective::modelDerivativeText() const {
 }
 
 std::vector<std::string> FitObjective::usedColumns() const { return impl_->columnNames; }
+
+
+// ---------------------------------------------------------------- the model in words
+
+namespace {
+
+std::string shortText(double v) {
+    char buffer[32];
+    auto [ptr, ec] = std::to_chars(buffer, buffer + sizeof buffer, v, std::chars_format::general, 6);
+    return ec == std::errc() ? std::string(buffer, ptr) : std::string("?");
+}
+
+std::string weightsText(const FitDefinition& d) {
+    if (!d.weights.empty()) return ", rows weighted by column '" + d.weights + "'";
+    if (!d.sigma.empty()) return ", rows weighted by 1/sd^2 with sd from column '" + d.sigma + "'";
+    return "";
+}
+
+}  // namespace
+
+std::string modelEquation(const FitDefinition& d) {
+    switch (d.loss) {
+        case Loss::BernoulliLogit:
+            return "log(p / (1 - p)) = " + d.model + ", where p = P(" + d.response + " = 1)";
+        case Loss::PoissonLog: return "log(mean of " + d.response + ") = " + d.model;
+        default: return d.response + " = " + d.model + " + error";
+    }
+}
+
+std::string lossInWords(const FitDefinition& d) {
+    const std::string r = "(" + d.response + " - model)";
+    switch (d.loss) {
+        case Loss::LeastSquares: return "least squares: 1/2 sum " + r + "^2" + weightsText(d);
+        case Loss::Weighted: return "weighted least squares: 1/2 sum w " + r + "^2" + weightsText(d);
+        case Loss::Huber:
+            return "Huber with scale " + shortText(d.scale) + ": squares the residual up to the scale, grows linearly beyond" +
+                   weightsText(d);
+        case Loss::Cauchy:
+            return "Cauchy with scale " + shortText(d.scale) + ": (scale^2/2) log(1 + (residual/scale)^2)" + weightsText(d);
+        case Loss::BernoulliLogit: return "logistic: the negative log-likelihood of 0/1 outcomes" + weightsText(d);
+        case Loss::PoissonLog: return "poisson: the negative log-likelihood of counts" + weightsText(d);
+    }
+    return toString(d.loss);
+}
+
 
 }  // namespace sw

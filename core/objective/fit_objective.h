@@ -67,6 +67,13 @@ struct FitDefinition {
     int threads = 0;                      // 0: every hardware thread
 };
 
+// The model as an equation in the terms of its loss, for people: "temp = a - b*exp(-minutes/tau)
+// + error", "log(p / (1 - p)) = b0 + b1*x, where p = P(y = 1)", "log(mean of n) = ...". One
+// text for the fit verb, the window's fit panel, the review report and Objective::description().
+std::string modelEquation(const FitDefinition& definition);
+// "least squares: 1/2 sum (temp - model)^2", "logistic: the negative log-likelihood of 0/1 outcomes", ...
+std::string lossInWords(const FitDefinition& definition);
+
 // A definition that does not fit the table (unknown name, bad column values, ...). Formula
 // syntax errors are expr::FormulaError, thrown as they are.
 class FitError : public std::runtime_error {

@@ -238,13 +238,25 @@ Section cautionSection() {
     return s;
 }
 
+// The model as the fit verb and the window write it (sw::modelEquation: one text).
+FitDefinition definitionOf(const study::DataFit& fit) {
+    FitDefinition d;
+    d.model = fit.model;
+    d.response = fit.response;
+    if (!parseLoss(fit.loss, d.loss)) d.loss = Loss::LeastSquares;
+    (fit.weightsKind == "sigma" ? d.sigma : d.weights) = fit.weights;
+    d.scale = fit.lossScale;
+    return d;
+}
+std::string equationOf(const study::DataFit& fit) { return modelEquation(definitionOf(fit)); }
+
 Section objectiveSection(const ReportInput& in) {
     Section s{"objective", "Objective", {}};
     const study::Study& study = in.study;
     const json& st = studyOf(in);
     std::vector<Field> f;
     if (study.fit) {
-        f.push_back({"Model", {code(study.fit->response + " ~ " + study.fit->model)}});
+        f.push_back({"Equation", {code(equationOf(*study.fit))}});
         f.push_back({"Loss", {plain(lossDescription(study.fit->loss))}});
         if (!study.fit->weights.empty())
             f.push_back({"Weights",
@@ -388,16 +400,19 @@ Section methodsSection(const ReportInput& in) {
         const json& r = st["stopping"];
         f.push_back({"Iteration limit", {plain(numberText(r["max_iterations"], 17))}});
         f.push_back({"Evaluation limit", {plain(numberText(r["max_evaluations"], 17))}});
-        f.push_back({"Gradient tolerance", {plain("|∇f| ≤ " + numberText(r["gradient_tolerance"], 6))}});
-        const json& relative = r["relative_gradient_tolerance"];
-        f.push_back({"Relative gradient tolerance",
-                     {plain(relative.is_number() && relative.get<double>() > 0
-                                ? "|∇f| ≤ " + numberText(relative, 6) + " |∇f(start)|"
+        // One line per convergence test, by its setting's name (docs/names.md).
+        f.push_back({"Gradient norm below", {plain("|∇f| ≤ " + numberText(r["gradient_norm_below"], 6))}});
+        const json& ratio = r["gradient_ratio_below"];
+        f.push_back({"Gradient ratio below",
+                     {plain(ratio.is_number() && ratio.get<double>() > 0
+                                ? "|∇f| ≤ " + numberText(ratio, 6) + " · |∇f(start)|"
                                 : std::string("off"))}});
-        f.push_back({"Step tolerance", {plain(numberText(r["step_tolerance"], 6))}});
-        const json& ftol = r["function_tolerance"];
-        f.push_back({"Function tolerance",
-                     {plain(ftol.is_number() && ftol.get<double>() > 0 ? numberText(ftol, 6) : std::string("off"))}});
+        f.push_back({"Relative step below", {plain("|Δx| ≤ " + numberText(r["relative_step_below"], 6) + " · (1 + |x|)")}});
+        const json& change = r["relative_change_below"];
+        f.push_back({"Relative change below",
+                     {plain(change.is_number() && change.get<double>() > 0
+                                ? "|Δf| ≤ " + numberText(change, 6) + " · (1 + |f|)"
+                                : std::string("off"))}});
     }
     s.blocks.push_back(fields(f));
     return s;
@@ -653,11 +668,25 @@ Section fitStatisticsSection(const ReportInput& in) {
     std::vector<Field> f;
     f.push_back({"Rows, parameters, degrees of freedom",
                  {plain(std::to_string(fit.value("rows", 0)) + ", " + std::to_string(names.size()) + ", " + std::to_string(dof))}});
-    f.push_back({"Residual sum of squares", {plain(numberText(fit["residual_sum_of_squares"], kValueDigits))}});
-    f.push_back({"Residual standard deviation", {plain(numberText(fit["residual_standard_deviation"], kPointDigits))}});
+    // How well the model fits, in the terms of its loss (as the fit verb and the window print it):
+    // for 0/1 outcomes and counts the deviance and log-likelihood; a sum of squared differences
+    // from the linear predictor would mean nothing there.
     if (likelihood) {
-        f.push_back({"Log-likelihood", {plain(numberText(fit["log_likelihood"], kValueDigits))}});
         f.push_back({"Deviance", {plain(numberText(fit["deviance"], kValueDigits))}});
+        f.push_back({"Log-likelihood", {plain(numberText(fit["log_likelihood"], kValueDigits))}});
+        if (fit["log_likelihood"].is_number())
+            f.push_back({"AIC (2 × parameters − 2 × log-likelihood)",
+                         {plain(numberText(2.0 * static_cast<double>(names.size()) - 2.0 * fit["log_likelihood"].get<double>(),
+                                           kValueDigits))}});
+        if (in.study.fit && in.study.fit->loss == "poisson" && dof > 0 && fit["deviance"].is_number())
+            f.push_back({"Deviance / degrees of freedom (near 1 for Poisson counts)",
+                         {plain(numberText(fit["deviance"].get<double>() / dof, 4))}});
+    } else {
+        const bool weighted = in.study.fit && !in.study.fit->weights.empty();
+        f.push_back({weighted ? "Weighted residual sum of squares" : "Residual sum of squares",
+                     {plain(numberText(fit["residual_sum_of_squares"], kValueDigits))}});
+        f.push_back({weighted ? "Residual standard deviation (weighted)" : "Residual standard deviation",
+                     {plain(numberText(fit["residual_standard_deviation"], kPointDigits))}});
     }
     f.push_back({"Covariance of the estimates", {plain(text(fit, "covariance_method"))}});
     if (fit.contains("jacobian"))
@@ -666,19 +695,29 @@ Section fitStatisticsSection(const ReportInput& in) {
                             ", condition number " + numberText(fit["jacobian"]["scaled_condition"], 4))}});
     s.blocks.push_back(fields(f));
 
+    // Correlations between estimates as pairs, strongest first (the fit verb's order): the pair
+    // that matters reads first, however many parameters there are.
     if (fit.contains("correlation") && fit["correlation"].size() == names.size() && names.size() > 1) {
-        s.blocks.push_back(heading("Correlation of the estimates"));
-        Table c{{""}, {}, true};
-        for (const std::string& n : names) c.header.push_back(n);
-        for (std::size_t i = 0; i < names.size(); ++i) {
-            std::vector<Cell> row = {codeCell(names[i])};
-            for (std::size_t j = 0; j < names.size(); ++j) {
+        struct Pair {
+            std::size_t a, b;
+            double r;
+        };
+        std::vector<Pair> pairs;
+        for (std::size_t i = 0; i < names.size(); ++i)
+            for (std::size_t j = i + 1; j < names.size(); ++j) {
                 const json& v = fit["correlation"][i][j];
-                char buffer[32] = "–";
-                if (v.is_number()) std::snprintf(buffer, sizeof buffer, "%.4f", v.get<double>());
-                row.push_back(numberCell(buffer));
+                pairs.push_back({i, j, v.is_number() ? v.get<double>() : std::nan("")});
             }
-            c.rows.push_back(std::move(row));
+        std::stable_sort(pairs.begin(), pairs.end(), [](const Pair& x, const Pair& y) {
+            const double ax = std::isnan(x.r) ? 2 : std::fabs(x.r), ay = std::isnan(y.r) ? 2 : std::fabs(y.r);
+            return ax > ay;
+        });
+        s.blocks.push_back(heading("Correlations between estimates, strongest first"));
+        Table c{{"pair", "correlation"}, {}, true};
+        for (const Pair& p : pairs) {
+            char buffer[32] = "–";
+            if (!std::isnan(p.r)) std::snprintf(buffer, sizeof buffer, "%+.4f", p.r);
+            c.rows.push_back({cell(names[p.a] + " and " + names[p.b]), numberCell(buffer)});
         }
         s.blocks.push_back(table(c));
     }

@@ -89,10 +89,10 @@ json studyRunsJson(const StudyRuns& r, bool withTrace) {
                       {"stopping",
                        {{"max_iterations", r.rules.maxIterations},
                         {"max_evaluations", r.rules.maxEvaluations},
-                        {"gradient_tolerance", r.rules.gradientTolerance},
-                        {"relative_gradient_tolerance", r.rules.relativeGradientTolerance},
-                        {"step_tolerance", r.rules.stepTolerance},
-                        {"function_tolerance", r.rules.functionTolerance}}}};
+                        {"gradient_norm_below", r.rules.gradientTolerance},
+                        {"gradient_ratio_below", r.rules.relativeGradientTolerance},
+                        {"relative_step_below", r.rules.stepTolerance},
+                        {"relative_change_below", r.rules.functionTolerance}}}};
     if (study.fit) {
         const study::DataFit& fit = *study.fit;
         json data = {{"file", fit.dataPath}, {"checksum", fit.checksum}, {"model", fit.model},

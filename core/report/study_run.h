@@ -48,8 +48,8 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
 
 // {"study": {...}, "runs": [...]}, exactly what `saddlewise run --json` prints:
 //   study: file, title, objective, mode, variables [{name, start, lower, upper}], start {name: value},
-//          max_iterations, stopping {max_iterations, max_evaluations, gradient_tolerance,
-//          relative_gradient_tolerance, step_tolerance, function_tolerance},
+//          max_iterations, stopping {max_iterations, max_evaluations, gradient_norm_below,
+//          gradient_ratio_below, relative_step_below, relative_change_below} (docs/names.md),
 //          data (fits: file, checksum, rows, columns, response, model, loss, ...)
 //   runs:  run_json.h's runToJson, with options (as set in the study), findings (when
 //          StudyRuns::findings holds them) and, for fits, fit: statisticsToJson plus warnings.

@@ -133,9 +133,9 @@ Json basinSurveyToJson(const BasinSurvey& survey, bool withCells) {
                        {"0..", "index into points"}};
     j["stopping"] = {{"max_iterations", survey.rules.maxIterations},
                      {"max_evaluations", survey.rules.maxEvaluations},
-                     {"gradient_tolerance", number(survey.rules.gradientTolerance)},
-                     {"step_tolerance", number(survey.rules.stepTolerance)},
-                     {"function_tolerance", number(survey.rules.functionTolerance)}};
+                     {"gradient_norm_below", number(survey.rules.gradientTolerance)},
+                     {"relative_step_below", number(survey.rules.stepTolerance)},
+                     {"relative_change_below", number(survey.rules.functionTolerance)}};
     Json points = Json::array();
     for (const CriticalPoint& p : survey.map.points) points.push_back(pointToJson(p, survey.variables));
     j["points"] = points;

@@ -255,5 +255,5 @@ TEST(FitObjective, ModelDerivativesReadAsFormulas) {
     ASSERT_EQ(text.size(), 3u);
     EXPECT_NE(text[2].find("z"), std::string::npos);
     EXPECT_EQ(f.usedColumns(), (std::vector<std::string>{"x", "z"}));
-    EXPECT_NE(f.description().find("least-squares fit of y ~ a*exp(-k*x) + c*z (5 rows)"), std::string::npos);
+    EXPECT_NE(f.description().find("least-squares fit: y = a*exp(-k*x) + c*z + error (5 rows)"), std::string::npos);
 }

@@ -117,12 +117,34 @@ TEST(Report, AFitStudyShowsItsDataAndStatisticsFromTheRunsJson) {
         EXPECT_NE(stats.find(report::numberText(fit["confidence_intervals"][name][1], 6)), std::string::npos);
     }
     EXPECT_NE(stats.find("95% interval (t, 118 dof)"), std::string::npos);
-    EXPECT_NE(stats.find("Correlation of the estimates"), std::string::npos);
+    EXPECT_NE(stats.find("Correlations between estimates, strongest first"), std::string::npos);
     EXPECT_NE(stats.find(report::numberText(fit["residual_sum_of_squares"], 10)), std::string::npos);
 
     const std::string objective = allText(*d.section("objective"));
-    EXPECT_NE(objective.find("temp ~ a - b*exp(-minutes/tau)"), std::string::npos);
+    // The model as an equation, the same text the fit verb prints (sw::modelEquation).
+    EXPECT_NE(objective.find("temp = a - b*exp(-minutes/tau) + error"), std::string::npos);
+    EXPECT_EQ(objective.find(" ~ "), std::string::npos);
     EXPECT_NE(objective.find("∂model/∂tau = "), std::string::npos);
+}
+
+TEST(Report, ALogisticFitIsMeasuredByItsDevianceNotBySumsOfSquares) {
+    const report::StudyRuns runs = runSample("seed-germination.json");
+    ASSERT_EQ(runs.study.fit->loss, "logistic");
+    const report::ReportInput in = inputFor(runs);
+    const report::Document d = report::buildReport(in);
+    const std::string stats = allText(*d.section("fit-statistics"));
+    const int best = report::bestRun(in.results);
+    ASSERT_GE(best, 0);
+    const json& fit = in.results["runs"][static_cast<std::size_t>(best)]["fit"];
+    EXPECT_NE(stats.find("Deviance"), std::string::npos);
+    EXPECT_NE(stats.find(report::numberText(fit["deviance"], 10)), std::string::npos);
+    EXPECT_NE(stats.find("Log-likelihood"), std::string::npos);
+    EXPECT_EQ(stats.find("Residual sum of squares"), std::string::npos) << stats;
+    EXPECT_EQ(stats.find("Residual standard deviation"), std::string::npos) << stats;
+    EXPECT_EQ(stats.find("Correlation of the estimates"), std::string::npos);
+    const std::string objective = allText(*d.section("objective"));
+    EXPECT_NE(objective.find("log(p / (1 - p)) = "), std::string::npos) << objective;
+    EXPECT_EQ(objective.find(" ~ "), std::string::npos) << objective;
 }
 
 TEST(Report, TheFitStatisticsInTheRunsJsonAreTheFitVerbsStatistics) {
