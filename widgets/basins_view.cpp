@@ -18,7 +18,7 @@ QColor toQColor(survey::Rgb c) { return QColor(c.r, c.g, c.b); }
 // drops the names: "#5 saddle 1 (-0.126, -0.993)".
 QString pointName(const survey::BasinSurvey& s, std::size_t k, bool brief = false) {
     const survey::CriticalPoint& p = s.map.points[k];
-    QString text = QStringLiteral("#%1 %2").arg(k).arg(QString::fromUtf8(survey::kindName(p)));
+    QString text = QStringLiteral("#%1 %2").arg(k).arg(QString::fromUtf8(survey::kindWords(p)));
     if (p.kind == solve::PointKind::Saddle) text += QStringLiteral(" %1").arg(p.index);
     if (p.continuum) text += QObject::tr(" (set of %1)").arg(p.members);
     QStringList coordinates;

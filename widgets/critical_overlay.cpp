@@ -32,10 +32,10 @@ QCPScatterStyle criticalPointStyle(solve::PointKind kind, double size, const QCo
 CriticalOverlay::CriticalOverlay(QCustomPlot* plot, QObject* parent) : QObject(parent), plot_(plot) {
     if (!plot_->layer(QStringLiteral("survey")))
         plot_->addLayer(QStringLiteral("survey"), plot_->layer(QStringLiteral("main")), QCustomPlot::limAbove);
-    minima_ = makeCurve(tr("critical: minimum"), true);
+    minima_ = makeCurve(tr("critical: local minimum"), true);
     minimumDots_ = makeCurve(QString(), false);
     saddles_ = makeCurve(tr("critical: saddle"), true);
-    maxima_ = makeCurve(tr("critical: maximum"), true);
+    maxima_ = makeCurve(tr("critical: local maximum"), true);
     degenerate_ = makeCurve(tr("critical: degenerate"), true);
     continua_ = makeCurve(tr("critical: set of degenerate points"), true);
     highlight_ = makeCurve(QString(), false);

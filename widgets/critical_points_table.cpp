@@ -11,9 +11,9 @@ namespace sw::widgets {
 QString kindText(const survey::CriticalPoint& p) {
     switch (p.kind) {
         case solve::PointKind::Minimum:
-            return QObject::tr("minimum");
+            return QObject::tr("local minimum");
         case solve::PointKind::Maximum:
-            return QObject::tr("maximum");
+            return QObject::tr("local maximum");
         case solve::PointKind::Saddle:
             return QObject::tr("saddle (index %1)").arg(p.index);
         case solve::PointKind::Degenerate:

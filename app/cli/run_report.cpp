@@ -114,7 +114,8 @@ void printComparison(std::ostream& out, const std::vector<solve::Run>& runs) {
         std::string end = solve::describe(r.endPoint.kind);
         if (r.endPoint.kind == solve::PointKind::Saddle) end += " (index " + std::to_string(r.endPoint.index) + ")";
         if (r.endPoint.kind == solve::PointKind::NotCritical)
-            end = "not critical (curvature: " + std::string(solve::toString(r.endPoint.curvature)) + ")";
+            end = "not critical (curvature: " + std::string(solve::toString(r.endPoint.curvature)) +
+                  " shape)";
         table.add({r.label, std::to_string(r.iterations()), countsText(r.evaluations), num(r.value, 10),
                    num(r.gradientNorm, 3), solve::toString(r.termination), end});
     }

@@ -178,12 +178,12 @@ void printPoints(std::ostream& out, const survey::CriticalMap& map) {
     std::vector<std::vector<std::string>> rows;
     std::vector<std::string> header{"#", "kind", "index"};
     for (const std::string& name : map.variables) header.push_back(name);
-    for (const char* h : {"f", "|grad f|", "hits", "eigenvalues"}) header.push_back(h);
+    for (const char* h : {"f", "|∇f|", "hits", "eigenvalues"}) header.push_back(h);
     rows.push_back(header);
     for (std::size_t k = 0; k < map.points.size(); ++k) {
         const survey::CriticalPoint& p = map.points[k];
         std::vector<std::string> row{std::to_string(k),
-                                     std::string(survey::kindName(p)) + (p.continuum ? " (set of " + std::to_string(p.members) + ")" : "") +
+                                     std::string(survey::kindWords(p)) + (p.continuum ? " (set of " + std::to_string(p.members) + ")" : "") +
                                          (p.foundBy == "basins" ? " *" : ""),
                                      std::to_string(p.index)};
         for (Eigen::Index i = 0; i < p.x.size(); ++i) row.push_back(formatNumber(p.x[i], 8));

@@ -167,7 +167,7 @@ int runBasins(const std::vector<std::string>& args, std::ostream& out, std::ostr
             for (std::size_t k = 0; k < m.pointCounts.size(); ++k) {
                 if (m.pointCounts[k] == 0) continue;
                 const survey::CriticalPoint& p = result.map.points[k];
-                out << "  " << k << ' ' << survey::kindName(p) << (p.kind == solve::PointKind::Saddle ? " " + std::to_string(p.index) : "")
+                out << "  " << k << ' ' << survey::kindWords(p) << (p.kind == solve::PointKind::Saddle ? " " + std::to_string(p.index) : "")
                     << ": " << m.pointCounts[k] << " cells (" << formatNumber(100.0 * m.pointCounts[k] / static_cast<double>(cells), 3)
                     << " %)\n";
             }

@@ -173,6 +173,7 @@ int runReport(const std::vector<std::string>& args, std::ostream& out, std::ostr
     try {
         runs = report::runStudy(study, path, objective, rules);
         addStudyFindings(runs, !parsed.has("no-remedies"));
+        report::runStudySurveys(runs);  // the critical-point map and basins the study asks for
     } catch (const study::StudyError& e) {
         throw UsageError(path + ": " + e.problem());
     }

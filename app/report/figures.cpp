@@ -3,6 +3,8 @@
 
 #include "core/report/report.h"
 #include "core/solve/solver.h"
+#include "widgets/basins_view.h"
+#include "widgets/critical_overlay.h"
 #include "widgets/curvature_view.h"
 #include "widgets/landscape_view.h"
 #include "widgets/progress_view.h"
@@ -229,6 +231,42 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
         f.svg = svgOf(view, kWidth, kCurvatureHeight);
         f.width = kWidth;
         f.height = kCurvatureHeight;
+        if (!f.svg.empty()) figures.push_back(std::move(f));
+    }
+    // The surveys the study asks for (runStudySurveys), drawn by the window's own views.
+    if (runs.critical && plan.field && variables.size() == 2) {
+        widgets::LandscapeView view;
+        view.setPalette(palette);
+        view.setLogColour(study.view.logColour);
+        view.setHomeBox(plan.box);
+        view.setField(plan.field);
+        widgets::CriticalOverlay overlay(view.plot());
+        overlay.setMap(runs.critical, plan.xVariable, plan.yVariable);
+        report::Figure f;
+        f.id = "critical-map";
+        f.title = "Critical-point map over the landscape";
+        f.caption = "Every critical point found in the box, marked by kind: ring with a dot: local minimum; square with "
+                    "a cross: saddle; upward triangle: local maximum; diamond: degenerate. The table above lists them "
+                    "with their values and Hessian eigenvalues.";
+        f.svg = svgOf(view, kWidth, kLandscapeHeight);
+        f.width = kWidth;
+        f.height = kLandscapeHeight;
+        if (!f.svg.empty()) figures.push_back(std::move(f));
+    }
+    if (runs.basins && !runs.basins->maps.empty()) {
+        widgets::BasinsView view;
+        view.setPalette(palette);
+        view.setSurvey(runs.basins);
+        report::Figure f;
+        f.id = "basins-maps";
+        f.title = "Basins of attraction, one map per method";
+        f.caption = "Each cell is coloured by the critical point its method's run from the cell's centre ends at, "
+                    "darker for more iterations; cells whose run hit a limit, diverged or failed are shown apart (see "
+                    "the legend). Critical points are marked as on the map above.";
+        const int height = runs.basins->maps.size() > 1 ? 420 : kPanelHeight;
+        f.svg = svgOf(view, kWidth, height);
+        f.width = kWidth;
+        f.height = height;
         if (!f.svg.empty()) figures.push_back(std::move(f));
     }
     if (note) *note = missing;

@@ -93,11 +93,14 @@ bool ReportWriter::start(const study::Study& study, const QString& studyPath, co
             auto objective = study::makeObjective(state->study, state->baseDirectory.toStdString());
             report::RunControl control;
             control.cancel = &cancelled;
-            control.progress = [&progress](double f) { progress(0.85 * f); };
+            control.progress = [&progress](double f) { progress(0.7 * f); };
             state->runs = report::runStudy(state->study, state->studyPath.toStdString(), objective,
                                            state->study.stoppingRules(), control);
             if (cancelled.load()) return;
             cli::addStudyFindings(state->runs, true);  // the same findings and remedies as `saddlewise report`
+            if (cancelled.load()) return;
+            control.progress = [&progress](double f) { progress(0.7 + 0.15 * f); };
+            report::runStudySurveys(state->runs, control);  // the critical-point map and basins it asks for
             if (cancelled.load()) return;
             state->input = report::prepareInput(state->runs);
             analyze::Control fieldControl;

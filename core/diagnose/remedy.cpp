@@ -15,10 +15,10 @@ std::string endText(const solve::Run& run) {
     if (run.endPoint.kind == solve::PointKind::Unknown) return "an unclassified point";
     std::string text = solve::toString(run.endPoint.kind);
     if (run.endPoint.kind == solve::PointKind::Saddle) text = "a saddle of index " + std::to_string(run.endPoint.index);
-    else if (run.endPoint.kind == solve::PointKind::Minimum) text = "a minimum";
-    else if (run.endPoint.kind == solve::PointKind::Maximum) text = "a maximum";
+    else if (run.endPoint.kind == solve::PointKind::Minimum) text = "a local minimum";
+    else if (run.endPoint.kind == solve::PointKind::Maximum) text = "a local maximum";
     else if (run.endPoint.kind == solve::PointKind::Degenerate)
-        text = run.endPoint.index == 0 ? "a minimum in a flat trough" : "a degenerate point";
+        text = run.endPoint.index == 0 ? "a local minimum in a flat trough" : "a degenerate point";
     if (!run.endPoint.critical) text = "a point that is not critical (|∇f| = " + num(run.gradientNorm, 3) + ")";
     return text;
 }

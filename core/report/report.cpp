@@ -7,6 +7,7 @@
 #include "core/objective/formula_objective.h"
 #include "core/solve/solver.h"
 #include "core/study/provenance.h"
+#include "core/survey/survey_json.h"
 
 #include <openssl/evp.h>
 
@@ -420,7 +421,8 @@ Section methodsSection(const ReportInput& in) {
 
 Section plotsSection(const ReportInput& in) {
     Section s{"plots", "Landscape, progress and curvature", {}};
-    for (const Figure& fig : in.figures) s.blocks.push_back(figure(fig));
+    for (const Figure& fig : in.figures)  // the survey figures go with their sections
+        if (fig.id.rfind("critical", 0) != 0 && fig.id.rfind("basins", 0) != 0) s.blocks.push_back(figure(fig));
     if (!in.figuresNote.empty()) s.blocks.push_back(callout("note", {plain(in.figuresNote)}));
     return s;
 }
@@ -763,6 +765,12 @@ std::vector<Section> surveySections(const ReportInput& in) {
     }
     if (surveys.contains("basins") && surveys["basins"].is_array() && !surveys["basins"].empty()) {
         Section s{"basins", "Basins of attraction", {}};
+        const json& first = surveys["basins"][0];
+        if (first.contains("grid"))
+            s.blocks.push_back(paragraph("Each method ran from the centre of every cell of a " + numberText(first["grid"], 17) +
+                                         " × " + numberText(first["grid"], 17) +
+                                         " grid over the landscape's plane (other variables held at the start), with "
+                                         "the study's stopping rules; each cell counts where its run ended."));
         for (const json& b : surveys["basins"]) {
             s.blocks.push_back(heading(text(b, "method", "method")));
             if (b.contains("counts") && b["counts"].is_object()) {
@@ -773,6 +781,11 @@ std::vector<Section> surveySections(const ReportInput& in) {
         }
         for (const Figure& fig : in.figures)
             if (fig.id.rfind("basins", 0) == 0) s.blocks.push_back(figure(fig));
+        out.push_back(std::move(s));
+    }
+    if (surveys.contains("note") && surveys["note"].is_string()) {
+        Section s{out.empty() ? "critical-points" : "surveys-note", "Surveys", {}};
+        s.blocks.push_back(callout("warning", {plain(surveys["note"].get<std::string>())}));
         out.push_back(std::move(s));
     }
     return out;
@@ -812,6 +825,49 @@ std::string shortened(std::string formula) {
     return formula + " … (" + std::to_string(total) + " characters; `saddlewise derive` prints it in full)";
 }
 
+// What surveySections reads, from the surveys runStudySurveys made: the critical map as
+// `saddlewise critical --json` writes it, and per basin map its label and how many cells end
+// where ("local minimum at (x, y)" or a failure kind; the counts add up to N·N).
+std::optional<json> surveysJson(const StudyRuns& runs) {
+    if (!runs.critical && !runs.basins && runs.surveyNote.empty()) return std::nullopt;
+    json out = json::object();
+    if (runs.critical) out["critical"] = survey::criticalMapToJson(*runs.critical);
+    if (runs.basins) {
+        const survey::BasinSurvey& b = *runs.basins;
+        const std::vector<std::string>& names = b.variables;
+        auto pointName = [&](std::size_t k) {
+            const survey::CriticalPoint& p = b.map.points[k];
+            std::string kind = survey::kindWords(p);
+            if (kind == "saddle") kind += " (index " + std::to_string(p.index) + ")";
+            std::string at;
+            for (Eigen::Index i = 0; i < p.x.size() && static_cast<std::size_t>(i) < names.size(); ++i)
+                if (i == b.region.xVariable || i == b.region.yVariable || p.x.size() <= 3)
+                    at += (at.empty() ? "" : ", ") + names[static_cast<std::size_t>(i)] + " = " +
+                          numberText(std::fabs(p.x[i]) < 1e-12 * (1 + b.region.width(static_cast<int>(i))) ? 0.0 : p.x[i], 4);
+            return kind + " at (" + at + ")";
+        };
+        json maps = json::array();
+        for (const survey::BasinMap& m : b.maps) {
+            json counts = json::object();
+            for (std::size_t k = 0; k < m.pointCounts.size() && k < b.map.points.size(); ++k)
+                if (m.pointCounts[k] > 0) counts[pointName(k)] = m.pointCounts[k];
+            const std::pair<const char*, long> failures[] = {{"iteration or evaluation limit", m.limit},
+                                                             {"diverged", m.diverged},
+                                                             {"failed or stopped where nothing is critical", m.failed},
+                                                             {"a critical point outside the box", m.outside}};
+            for (const auto& [name, count] : failures)
+                if (count > 0) counts[name] = count;
+            maps.push_back({{"method", m.method.label.empty() ? m.method.methodId : m.method.label},
+                            {"method_id", m.method.methodId},
+                            {"grid", b.grid},
+                            {"counts", counts}});
+        }
+        out["basins"] = maps;
+    }
+    if (!runs.surveyNote.empty()) out["note"] = runs.surveyNote;
+    return out;
+}
+
 }  // namespace
 
 // ---------------------------------------------------------------- input and document
@@ -820,6 +876,7 @@ ReportInput prepareInput(const StudyRuns& runs) {
     ReportInput in;
     in.study = runs.study;
     in.results = studyRunsJson(runs, false);
+    in.surveys = surveysJson(runs);
     const std::vector<std::string> names = runs.study.variableNames();
     const int n = static_cast<int>(names.size());
     try {

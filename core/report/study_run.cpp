@@ -71,6 +71,68 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
     return result;
 }
 
+void runStudySurveys(StudyRuns& runs, const RunControl& control) {
+    const study::Study& study = runs.study;
+    if (!study.surveys || (!study.surveys->critical && !study.surveys->basins) || !runs.objective) return;
+    const study::SurveySettings& wanted = *study.surveys;
+    const int n = static_cast<int>(study.variables.size());
+    std::vector<std::string> notes;
+    survey::Region region;
+    region.lower = Vector(n);
+    region.upper = Vector(n);
+    region.held = Vector(n);
+    for (int i = 0; i < n; ++i) {
+        const study::Variable& v = study.variables[static_cast<std::size_t>(i)];
+        region.lower[i] = v.lower;
+        region.upper[i] = v.upper;
+        region.held[i] = v.start;
+    }
+    region.xVariable = n >= 2 ? study.view.plotX : 0;
+    region.yVariable = n >= 2 ? study.view.plotY : 0;
+    survey::CriticalSettings criticalSettings;
+    criticalSettings.starts = wanted.criticalStarts;
+    criticalSettings.signChangeGrid = wanted.signChangeGrid;
+    survey::Control surveyControl;
+    surveyControl.cancel = control.cancel;
+    const bool both = wanted.critical && wanted.basins;
+    if (wanted.critical) {
+        if (control.progress) surveyControl.progress = [&](double f) { control.progress(both ? 0.3 * f : f); };
+        try {
+            auto map = std::make_shared<survey::CriticalMap>(
+                survey::CriticalSearch(*runs.objective, region, criticalSettings, surveyControl).find(surveyControl));
+            if (!map->cancelled) runs.critical = std::move(map);
+        } catch (const std::exception& e) {
+            notes.push_back(std::string("The critical-point map could not be made: ") + e.what());
+        }
+    }
+    if (wanted.basins) {
+        std::vector<survey::BasinMethod> methods;
+        std::vector<std::string> labels = wanted.basinMethods;
+        if (labels.empty())
+            for (const study::MethodEntry& m : study.methods)
+                if (m.enabled && labels.size() < 3) labels.push_back(m.label);
+        for (const std::string& label : labels)
+            for (const study::MethodEntry& m : study.methods)
+                if (m.label == label) methods.push_back({m.label, m.method, m.options});
+        if (methods.empty()) {
+            notes.push_back("The basin maps name no lineup entry of this study.");
+        } else {
+            survey::BasinSettings settings;
+            settings.grid = wanted.basinGrid;
+            settings.rules = runs.rules;
+            if (control.progress) surveyControl.progress = [&](double f) { control.progress(both ? 0.3 + 0.7 * f : f); };
+            try {
+                auto result = std::make_shared<survey::BasinSurvey>(
+                    survey::mapBasins(*runs.objective, region, methods, settings, criticalSettings, surveyControl));
+                if (!result->cancelled) runs.basins = std::move(result);
+            } catch (const std::exception& e) {
+                notes.push_back(std::string("The basin maps could not be made: ") + e.what());
+            }
+        }
+    }
+    for (const std::string& note : notes) runs.surveyNote += (runs.surveyNote.empty() ? "" : " ") + note;
+}
+
 json studyRunsJson(const StudyRuns& r, bool withTrace) {
     const study::Study& study = r.study;
     json variables = json::array();

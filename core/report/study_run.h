@@ -7,6 +7,7 @@
 #include "core/fit/fit_statistics.h"
 #include "core/solve/solver.h"
 #include "core/study/study.h"
+#include "core/survey/survey.h"
 
 #include <nlohmann/json.hpp>
 
@@ -29,6 +30,11 @@ struct StudyRuns {
     // Each run's findings as `run --json` prints them (issue 10's JSON array), filled by the
     // caller (the rules live above core/report); empty when nobody looked.
     std::vector<nlohmann::json> findings;
+    // The surveys the study asks for ("surveys" in the file), filled by runStudySurveys():
+    // the critical-point map and the basin maps over the study's plane, as the window shows them.
+    std::shared_ptr<const survey::CriticalMap> critical;
+    std::shared_ptr<const survey::BasinSurvey> basins;
+    std::string surveyNote;  // why a survey the study asks for is missing ("" otherwise)
 };
 
 struct RunControl {
@@ -46,8 +52,16 @@ std::vector<std::size_t> enabledEntries(const study::Study& study);
 StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<const Objective> objective,
                    const solve::StoppingRules& rules, const RunControl& control = {});
 
+// Computes the surveys study.surveys asks for, over the study's plane as the window does
+// (the plot ranges as the box, the plot's two variables, the others held at the start): the
+// critical-point map (its starts and sign-change grid), and the basins of the lineup entries
+// it names (the first three enabled entries when it names none) on its grid with the run's
+// stopping rules. A survey that cannot be made (one variable, a box without interior, a method
+// the objective cannot serve) is left out with its reason in runs.surveyNote. Cancellable.
+void runStudySurveys(StudyRuns& runs, const RunControl& control = {});
+
 // {"study": {...}, "runs": [...]}, exactly what `saddlewise run --json` prints:
-//   study: file, title, objective, mode, variables [{name, start, lower, upper}], start {name: value},
+//   study: file, title, objective, mode, variables [{name, start, plot_from, plot_to}], start {name: value},
 //          max_iterations, stopping {max_iterations, max_evaluations, gradient_norm_below,
 //          gradient_ratio_below, relative_step_below, relative_change_below} (docs/names.md),
 //          data (fits: file, checksum, rows, columns, response, model, loss, ...)

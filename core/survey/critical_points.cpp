@@ -85,6 +85,14 @@ const char* toString(StartOutcome::Status status) {
 
 const char* kindName(const CriticalPoint& point) { return solve::toString(point.kind); }
 
+const char* kindWords(const CriticalPoint& point) {
+    switch (point.kind) {
+        case solve::PointKind::Minimum: return "local minimum";
+        case solve::PointKind::Maximum: return "local maximum";
+        default: return solve::toString(point.kind);
+    }
+}
+
 std::string Region::check(int dimension, const std::vector<std::string>& names) const {
     if (dimension < 1) return "the objective has no variables";
     if (lower.size() != dimension || upper.size() != dimension)

@@ -108,7 +108,10 @@ struct CriticalPoint {
     Vector memberLower, memberUpper;  // the members' bounding box (continuum only)
     std::vector<Vector> memberPoints; // the members themselves (continuum only; for matching)
 };
-const char* kindName(const CriticalPoint& point);  // "minimum", "saddle", "maximum", "degenerate"
+const char* kindName(const CriticalPoint& point);  // "minimum", "saddle", "maximum", "degenerate" (JSON ids)
+// The kind for people: "local minimum", "saddle", "local maximum", "degenerate" (a critical
+// point's class is a local test; the JSON `kind` keeps the short ids, docs/names.md).
+const char* kindWords(const CriticalPoint& point);
 
 struct CriticalMap {
     std::vector<std::string> variables;

@@ -198,7 +198,7 @@ TEST(Report, FindingsInTheRunsAreShownWithTheirEvidenceAndRemedyOutcome) {
          {{"change", {{"kind", "switch-method"}, {"method", "trust-region-exact"}, {"text", "switch to trust-region-exact"}}},
           {"outcome",
            {{"helped", true},
-            {"text", "Tried: it converged after 7 iterations at f = 0.46875, a minimum - it helped."},
+            {"text", "Tried: it converged after 7 iterations at f = 0.46875, a local minimum - it helped."},
             {"termination", "gradient-tolerance"},
             {"converged", true},
             {"value", 0.46875},
@@ -230,7 +230,7 @@ TEST(Report, FindingsInTheRunsAreShownWithTheirEvidenceAndRemedyOutcome) {
     for (const char* piece :
          {"Problem: Ended on a saddle", "saddle-end", "iteration 4)", "The run ended on a saddle point, not a minimum.",
           "negative_eigenvalues", "-3.831", "most negative curvature", "switch to trust-region-exact", "helped.",
-          "Tried: it converged after 7 iterations at f = 0.46875, a minimum - it helped.",
+          "Tried: it converged after 7 iterations at f = 0.46875, a local minimum - it helped.",
           "gradient-tolerance after 7 iterations; f = 0.46875, |∇f| = 2.58e-13; end point: local minimum; evaluations 7 / 0 / 7",
           "uphill-newton", "iterations 1–3", "not tried", "Note: Observed convergence rate", "order", "1.615",
           "none that a rerun could try", "No findings: nothing unusual in this run."})
@@ -374,3 +374,64 @@ TEST(Html, TheWholeReportReferencesNothingOutsideItself) {
 }
 
 }  // namespace
+
+// The surveys a study asks for are made for its report (runStudySurveys, the same core calls the
+// window's survey panels make) and reach the document. The two-valve sample's surface has four
+// wells, four passes and a central peak by its construction (samples/make_samples.py); the
+// published-function checks of the survey itself are in tests/core/survey.
+TEST(Report, TheSurveysAStudyAsksForAreMadeAndReported) {
+    report::StudyRuns runs = runSample("two-valve-saddles.json");
+    ASSERT_TRUE(runs.study.surveys.has_value());
+    runs.study.surveys->basinGrid = 24;  // small: this checks the plumbing, not the maps
+    report::runStudySurveys(runs);
+    ASSERT_NE(runs.critical, nullptr) << runs.surveyNote;
+    ASSERT_NE(runs.basins, nullptr) << runs.surveyNote;
+    EXPECT_TRUE(runs.surveyNote.empty()) << runs.surveyNote;
+    int minima = 0, saddles = 0, maxima = 0;
+    for (const auto& p : runs.critical->points) {
+        const std::string kind = survey::kindName(p);
+        minima += kind == "minimum";
+        saddles += kind == "saddle";
+        maxima += kind == "maximum";
+    }
+    EXPECT_EQ(minima, 4);
+    EXPECT_EQ(saddles, 4);
+    EXPECT_EQ(maxima, 1);
+    ASSERT_EQ(runs.basins->maps.size(), 3u);
+
+    const report::ReportInput in = inputFor(runs);
+    ASSERT_TRUE(in.surveys.has_value());
+    const report::Document d = report::buildReport(in);
+    ASSERT_NE(d.section("critical-points"), nullptr);
+    ASSERT_NE(d.section("basins"), nullptr);
+    const std::string critical = allText(*d.section("critical-points"));
+    EXPECT_NE(critical.find("saddle"), std::string::npos);
+    EXPECT_NE(critical.find("maximum"), std::string::npos);
+    const std::string basins = allText(*d.section("basins"));
+    for (const char* label : {"Newton", "saddle-free Newton", "exact trust region"})
+        EXPECT_NE(basins.find(label), std::string::npos) << label;
+    EXPECT_NE(basins.find("24 × 24 grid"), std::string::npos) << basins;
+    // Every cell is accounted for in each method's table.
+    for (const json& b : (*in.surveys)["basins"]) {
+        long total = 0;
+        for (const auto& [name, count] : b["counts"].items()) total += count.get<long>();
+        EXPECT_EQ(total, 24 * 24) << b["method"];
+    }
+    // Pure Newton can end on a saddle; its table says so.
+    bool newtonSaddle = false;
+    for (const auto& [name, count] : (*in.surveys)["basins"][0]["counts"].items())
+        newtonSaddle = newtonSaddle || name.rfind("saddle", 0) == 0;
+    EXPECT_TRUE(newtonSaddle) << (*in.surveys)["basins"][0].dump();
+}
+
+TEST(Report, ASurveyThatCannotBeMadeIsNamedInTheReport) {
+    report::StudyRuns runs = runSample("two-valve-saddles.json");
+    runs.study.surveys->critical = false;
+    runs.study.surveys->basinMethods = {"no such entry"};
+    report::runStudySurveys(runs);
+    EXPECT_EQ(runs.basins, nullptr);
+    EXPECT_NE(runs.surveyNote.find("name no lineup entry"), std::string::npos) << runs.surveyNote;
+    const report::Document d = report::buildReport(inputFor(runs));
+    ASSERT_NE(d.section("critical-points"), nullptr);
+    EXPECT_NE(allText(*d.section("critical-points")).find("name no lineup entry"), std::string::npos);
+}
