@@ -295,15 +295,18 @@ private:
             const Level& level = levels_[i];
             const bool innermost = i + 1 == levels_.size();
             if (level.isArray) place += "[" + std::to_string(innermost || level.index == 0 ? level.index : level.index - 1) + "]";
-            else place += (place.empty() ? "" : ".") + level.key;
+            else place += (place.empty() ? "" : ".") + keyText(level.key);
         }
         return place.empty() ? "document" : place;
     }
     std::string path() const { return placeOf(levels_.size()); }
     std::string joined(const std::string& name) const {
         const std::string parent = levels_.size() > 1 ? placeOf(levels_.size() - 1) : "";
-        return parent.empty() ? name : parent + "." + name;
+        return parent.empty() ? keyText(name) : parent + "." + keyText(name);
     }
+    // A key as a place names it; the empty key is shown as "" (a fuzzer found a repeated empty
+    // key reported with no place at all).
+    static std::string keyText(const std::string& key) { return key.empty() ? std::string("\"\"") : key; }
 
     Json* insert(Json&& value) {
         if (levels_.empty()) {

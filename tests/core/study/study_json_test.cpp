@@ -171,6 +171,10 @@ std::vector<BadStudy> badStudies() {
         {"JSON syntax error", "{\n  \"format\": \"saddlewise-study\",\n  \"version\": 1,,\n}", "line 3, column 16",
          "not valid JSON"},
         {"repeated key", "{ \"format\": \"saddlewise-study\", \"version\": 1, \"version\": 1 }", "version", "twice"},
+        // Found by the study fuzzer (tests/fuzz/regressions/study/repeated-empty-key.json): the
+        // empty key repeated was reported with no place at all.
+        {"repeated empty key", "{\"\": 6,\n \"\": null}", "\"\"", "twice"},
+        {"repeated empty key inside", "{\"a\": {\"\": 1, \"\": 2}}", "a.\"\"", "twice"},
         {"not an object", "[1, 2]", "document", "JSON object"},
     };
 }
