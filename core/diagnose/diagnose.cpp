@@ -21,12 +21,14 @@ Findings findFindings(const solve::Run& run, const Objective& objective, const R
     add(ruleUphillNewton(facts));
     add(rulePoorScaling(facts));
     // A valley that only the units make narrow is poor scaling, not a valley.
+    // A run that blows up is explained by that, not by a valley it crossed on the way.
+    add(ruleDivergence(facts));
     const Finding* scaling = findById(findings, FindingId::PoorScaling);
-    if (!scaling || scaling->number("scaled_condition_number") >= thresholds::kValleyCondition)
+    const bool blewUp = findById(findings, FindingId::Divergence) || findById(findings, FindingId::NonFinite);
+    if (!blewUp && (!scaling || scaling->number("scaled_condition_number") >= thresholds::kValleyCondition))
         add(ruleNarrowValley(facts));
     add(ruleLineSearchCollapse(facts));
     add(ruleRadiusCollapse(facts));
-    add(ruleDivergence(facts));
     // The more specific findings explain a stall already; stagnation is for the rest.
     const bool explained = findById(findings, FindingId::LineSearchCollapse) ||
                            findById(findings, FindingId::RadiusCollapse) || findById(findings, FindingId::PoorScaling) ||

@@ -604,7 +604,9 @@ double windowCondition(const RunFacts& facts) {
 std::optional<Finding> ruleNarrowValley(const RunFacts& facts) {
     if (facts.stepsInWindow < thresholds::kMinWindow) return std::nullopt;
     const RateEstimate& rate = facts.rate;
-    if (!(rate.factor >= thresholds::kSlowRate)) return std::nullopt;
+    // Slow but converging: a factor of 1 or more is no valley's crawl (the run is not getting
+    // anywhere, or is blowing up, which divergence and stagnation name).
+    if (!(rate.factor >= thresholds::kSlowRate) || !(rate.factor < 1)) return std::nullopt;
     if (rate.kind == RateEstimate::Kind::Quadratic || rate.kind == RateEstimate::Kind::Superlinear) return std::nullopt;
     const Run& run = *facts.run;
     // A valley has a floor: the curvature where the run is now must be positive definite, and

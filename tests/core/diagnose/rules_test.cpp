@@ -345,6 +345,15 @@ TEST(Divergence, ATooLongFixedStepBlowsUpAndASmallerOneConverges) {
     expectRemedyHelped(blowUp);
 }
 
+TEST(NarrowValley, SilentWhenTheRunBlowsUpInAValley) {
+    // A fixed step of 0.05 on curvature 300 multiplies the across-valley error by 14 per
+    // iteration: the run diverges, and "a slow rate in a narrow valley" would be wrong.
+    const FormulaObjective f("0.5*(x^2 + 300*y^2)", {"x", "y"});
+    const Diagnosed d = diagnosed(f, vec({1, 0.1}), "gradient-descent", {{"step_size", "0.05"}, {"line_search", "fixed"}});
+    EXPECT_TRUE(d.get(FindingId::Divergence) || d.get(FindingId::NonFinite)) << d.list();
+    EXPECT_EQ(d.get(FindingId::NarrowValley), nullptr) << d.list();
+}
+
 TEST(Divergence, ADriftToInfinityAlongAFlatValleyIsNamed) {
     // exp(-x) has no minimum: x grows step after step while f levels off toward 0.
     const FormulaObjective f("exp(-x) + y^2", {"x", "y"});
