@@ -9,6 +9,7 @@
 #include <deque>
 #include <fstream>
 #include <sstream>
+#include <unordered_map>
 
 namespace sw {
 
@@ -338,6 +339,12 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
     fields.reserve(16);
     reader.read(sep, fields);
     const long headerLine = reader.recordLine();
+    if (fields.size() > kMaxTableColumns)
+        throw TableError(source, headerLine, static_cast<int>(kMaxTableColumns) + 1, "",
+                         "the header row has " + std::to_string(fields.size()) + " columns; a table may have at most " +
+                             std::to_string(kMaxTableColumns));
+    std::unordered_map<std::string, std::size_t> seen;  // name -> 0-based column
+    seen.reserve(fields.size());
     for (std::size_t c = 0; c < fields.size(); ++c) {
         std::string name(fields[c].quoted ? fields[c].text : trimmed(fields[c].text, sep));
         const int column = static_cast<int>(c) + 1;
@@ -345,10 +352,14 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
         if (const auto bad = firstInvalidUtf8(name); bad != std::string::npos)
             throw TableError(source, headerLine, column, "",
                              "the column name " + shown(name) + " is not UTF-8 text (save the file as UTF-8)");
-        for (std::size_t k = 0; k < c; ++k)
-            if (table.columnNames[k] == name)
-                throw TableError(source, headerLine, column, name,
-                                 "column name '" + name + "' repeats column " + std::to_string(k + 1));
+        for (std::size_t k = 0; k < name.size(); ++k)
+            if (const auto b = static_cast<unsigned char>(name[k]); b < 0x20 || b == 0x7F)
+                throw TableError(source, headerLine, column, "",
+                                 "the column name " + shown(name) + " holds a control character (code " +
+                                     std::to_string(b) + "); column names are printable text");
+        if (const auto [at, fresh] = seen.emplace(name, c); !fresh)
+            throw TableError(source, headerLine, column, name,
+                             "column name '" + name + "' repeats column " + std::to_string(at->second + 1));
         table.columnNames.push_back(std::move(name));
     }
     const std::size_t ncols = table.columnNames.size();

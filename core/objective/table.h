@@ -28,6 +28,10 @@ const char* toString(Separator s);  // "auto", "comma", "semicolon", "tab"
 // "auto", "comma", "semicolon", "tab" (also ",", ";", "\t"); false when unknown.
 bool parseSeparator(const std::string& text, Separator& separator);
 
+// A table has at most this many columns (a model reads a handful; the limit keeps a stray
+// one-row file of 10^6 cells from costing seconds before it is refused).
+inline constexpr std::size_t kMaxTableColumns = 10000;
+
 struct TableReadOptions {
     Separator separator = Separator::Auto;  // Auto: detected from the header row
     bool dropIncompleteRows = false;        // skip rows with empty/NA cells or too few cells (counted)

@@ -282,6 +282,16 @@ std::vector<Row> catalogue() {
     rows.push_back(table("overflowing cell", "x,y\n1,2\n2,1e400\n", {"t.csv: line 3, column 2", "1e400 is out of range"}));
     rows.push_back(table("underflowing cell", "x,y\n1,2\n2,-1e-400\n", {"t.csv: line 3, column 2", "-1e-400 is out of range"}));
     rows.push_back(table("duplicate column names", "x,y,x\n1,2,3\n", {"t.csv: line 1, column 3", "column name 'x' repeats column 1"}));
+    rows.push_back(table("control bytes in a column name", "x,\x1b[2Jy\n1,2\n",
+                         {"t.csv: line 1, column 2", "holds a control character (code 27)", "\\x1B"}));
+    rows.push_back(table("200,000-column header", [] {
+                             std::string csv;
+                             for (int c = 0; c < 200000; ++c) csv += (c ? ",c" : "c") + std::to_string(c);
+                             csv += "\n";
+                             for (int c = 0; c < 200000; ++c) csv += c ? ",1" : "1";
+                             return csv + "\n";
+                         }(),
+                         {"t.csv: line 1, column 10001", "200000 columns; a table may have at most 10000"}));
     rows.push_back(table("NUL byte", std::string("x,y\n1,2\n3,\0" "4\n", 13), {"t.csv: line 3", "a NUL byte at character 3"}));
     rows.push_back(table("invalid UTF-8 header", "x,\xff\xfe\xfd\n1,2\n", {"t.csv: line 1, column 2", "is not UTF-8 text"}));
     rows.push_back(table("invalid UTF-8 cell", "x,y\n1,\xff\n", {"t.csv: line 2, column 2", "'\\xFF' is not a number"}));
