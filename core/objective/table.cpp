@@ -353,7 +353,10 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
             throw TableError(source, headerLine, column, "",
                              "the column name " + shown(name) + " is not UTF-8 text (save the file as UTF-8)");
         for (std::size_t k = 0; k < name.size(); ++k)
-            if (const auto b = static_cast<unsigned char>(name[k]); b < 0x20 || b == 0x7F)
+            // Line breaks and tabs inside a quoted name are text (RFC 4180); other control
+            // characters (an escape sequence would act on the terminal) are refused.
+            if (const auto b = static_cast<unsigned char>(name[k]);
+                (b < 0x20 && b != '\t' && b != '\n' && b != '\r') || b == 0x7F)
                 throw TableError(source, headerLine, column, "",
                                  "the column name " + shown(name) + " holds a control character (code " +
                                      std::to_string(b) + "); column names are printable text");
