@@ -29,6 +29,7 @@
 
 #include <QAction>
 #include <QApplication>
+#include <QKeyEvent>
 #include <QCheckBox>
 #include <QCloseEvent>
 #include <QComboBox>
@@ -118,6 +119,7 @@ MainWindow::MainWindow(QWidget* parent) : QMainWindow(parent) {
     setObjectName("SaddlewiseMainWindow");
     jobs_ = new JobRunner(this);
     undo_ = new QUndoStack(this);
+    qApp->installEventFilter(this);
     // Editors report one user action in several signals (text, then the table, the axes):
     // recording after the event makes it one step.
     pendingEdit_.setSingleShot(true);
@@ -862,6 +864,25 @@ void MainWindow::updateTitle() {
 }
 
 // ---------------------------------------------------------------- undo
+
+bool MainWindow::eventFilter(QObject* watched, QEvent* event) {
+    const QEvent::Type type = event->type();
+    if (type != QEvent::ShortcutOverride && type != QEvent::KeyPress) return QMainWindow::eventFilter(watched, event);
+    auto* widget = qobject_cast<QWidget*>(watched);
+    if (!widget || widget->window() != this) return QMainWindow::eventFilter(watched, event);
+    auto* key = static_cast<QKeyEvent*>(event);
+    const bool isUndo = key->matches(QKeySequence::Undo), isRedo = key->matches(QKeySequence::Redo);
+    if (!isUndo && !isRedo) return QMainWindow::eventFilter(watched, event);
+    if (type == QEvent::ShortcutOverride) {
+        // Claim the key so it arrives as a key press (below) whatever the menu action's state:
+        // an edit still waiting to be recorded must be undoable too.
+        event->accept();
+        return true;
+    }
+    if (isUndo) undo();
+    else redo();
+    return true;
+}
 
 std::string MainWindow::onScreenText() const {
     try {

@@ -185,6 +185,10 @@ signals:
 
 protected:
     void closeEvent(QCloseEvent* event) override;
+    // Ctrl+Z / Ctrl+Shift+Z (the platform's undo keys) in any field of this window undo the
+    // study's last edit, not the field's private text history (which would record a new edit
+    // and clear Redo).
+    bool eventFilter(QObject* watched, QEvent* event) override;
     void changeEvent(QEvent* event) override;
 
 private:

@@ -1,7 +1,8 @@
 // Undo and redo of the study (app/window/study_edit.h), driven through the real editors on the
 // offscreen platform: a typed formula, a start, a method option and a plot box are each one step
 // that undoes back to the study on screen before it and redoes forward; a drag of the start is
-// one step; undoing past a save makes the study modified again; New clears the history.
+// one step; lineup and data-setting edits are steps too; the undo keys inside a field undo the
+// study; undoing past a save makes the study modified again; New clears the history.
 // Internal behaviour: no outside reference.
 #include "app/window/lineup_editor.h"
 #include "app/window/main_window.h"
@@ -11,6 +12,11 @@
 #include "widgets/landscape_view.h"
 
 #include <QAction>
+#include <QCheckBox>
+#include <QComboBox>
+#include <QMenu>
+#include <QMenuBar>
+#include <functional>
 #include <QPlainTextEdit>
 #include <QStandardPaths>
 #include <QTableWidget>
@@ -57,6 +63,79 @@ private slots:
         QCoreApplication::setOrganizationName("SaddlewiseTest");
         QCoreApplication::setApplicationName("undo_test");
         QVERIFY(dir_.isValid());
+    }
+
+    void theUndoKeysInsideAFieldUndoTheStudy() {
+        // The platform's undo and redo keys pressed while the formula box has the focus go to
+        // the study's history (the box's own text history would record a new edit instead and
+        // clear Redo). Also right after typing, before the edit is recorded.
+        MainWindow window;
+        answerDiscard(window);
+        window.show();
+        QVERIFY(window.waitForIdle());
+        const std::string before = shownText(window);
+        QPlainTextEdit* formula = window.objectiveEditor()->formulaEdit();
+        const QString original = formula->toPlainText();
+        formula->setFocus();
+        formula->moveCursor(QTextCursor::End);
+        QTest::keyClicks(formula, " + 0.5*x");
+        QTest::keySequence(formula, QKeySequence(QKeySequence::Undo));  // not yet settled
+        settle();
+        QCOMPARE(formula->toPlainText(), original);
+        QCOMPARE(shownText(window), before);
+        QVERIFY(window.action("redo")->isEnabled());
+        QCOMPARE(window.undoStack()->index(), 0);
+        QTest::keySequence(window.objectiveEditor()->formulaEdit(), QKeySequence(QKeySequence::Redo));
+        settle();
+        QCOMPARE(window.objectiveEditor()->formulaEdit()->toPlainText(), original + " + 0.5*x");
+        QCOMPARE(window.undoStack()->index(), 1);
+        QVERIFY(!window.action("redo")->isEnabled());
+        QVERIFY(window.waitForIdle());
+    }
+
+    void lineupAndDataSettingEditsAreStepsToo() {
+        // The other kinds of edit: lineup entries added, moved and removed, and a fit's data
+        // settings (missing values, separator), on the sensor sample.
+        MainWindow window;
+        answerDiscard(window);
+        window.show();
+        QString error;
+        QVERIFY2(window.openStudy(QStringLiteral(SW_SAMPLES_DIR "/sensor-warmup.json"), &error), qPrintable(error));
+        QVERIFY(window.waitForIdle());
+        std::vector<std::string> texts{shownText(window)};
+        auto* lineup = window.lineupEditor();
+        auto* editor = window.objectiveEditor();
+        const std::vector<std::function<void()>> edits = {
+            [&] { lineup->addMethod("bfgs"); },
+            [&] { lineup->moveEntry(0, 1); },
+            [&] { lineup->removeEntry(0); },
+            [&] { editor->dropIncompleteBox()->click(); },
+            [&] { editor->separatorBox()->setCurrentIndex((editor->separatorBox()->currentIndex() + 1) % editor->separatorBox()->count()); },
+        };
+        for (std::size_t k = 0; k < edits.size(); ++k) {
+            edits[k]();
+            settle();
+            QVERIFY(window.waitForIdle());
+            QCOMPARE(window.undoStack()->count(), static_cast<int>(k + 1));
+            texts.push_back(shownText(window));
+            QVERIFY2(texts[k + 1] != texts[k], qPrintable(QStringLiteral("edit %1 changed nothing").arg(k)));
+        }
+        for (std::size_t k = edits.size(); k >= 1; --k) {
+            window.action("undo")->trigger();
+            QCOMPARE(shownText(window), texts[k - 1]);
+            QVERIFY(window.waitForIdle());
+        }
+        for (std::size_t k = 1; k <= edits.size(); ++k) {
+            window.action("redo")->trigger();
+            QCOMPARE(shownText(window), texts[k]);
+            QVERIFY(window.waitForIdle());
+        }
+        // The Edit menu holds both.
+        bool inMenu = false;
+        for (QAction* a : window.menuBar()->actions())
+            if (a->menu() && a->menu()->actions().contains(window.action("undo")) && a->menu()->actions().contains(window.action("redo")))
+                inMenu = true;
+        QVERIFY(inMenu);
     }
 
     void everyKindOfEditUndoesAndRedoesOneStepAtATime() {
