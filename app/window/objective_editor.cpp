@@ -530,9 +530,14 @@ void ObjectiveEditor::showFormulaError(const QString& message, int position, con
         if (isIdentifier(name)) names << name;
     if (!names.isEmpty()) {
         const QString list = names.join(QStringLiteral(", "));
-        offerFix(fitMode() ? tr("Add %1 as parameter(s)", nullptr, static_cast<int>(names.size())).arg(list)
-                           : tr("Add %1 as variable(s)", nullptr, static_cast<int>(names.size())).arg(list),
-                 [this, names] { addVariablesNamed(names); });
+        const QStringList unused = fitMode() ? unusedParameters() : QStringList();
+        if (!unused.isEmpty())  // a new fit: the model's names replace the ones it does not use
+            offerFix(tr("Use %1 as the parameters (drop %2)").arg(list, unused.join(QStringLiteral(", "))),
+                     [this, names, unused] { replaceParameters(unused, names); });
+        else
+            offerFix(fitMode() ? tr("Add %1 as parameter(s)", nullptr, static_cast<int>(names.size())).arg(list)
+                               : tr("Add %1 as variable(s)", nullptr, static_cast<int>(names.size())).arg(list),
+                     [this, names] { addVariablesNamed(names); });
     }
     markedPosition_ = position;
 }
@@ -544,6 +549,35 @@ void ObjectiveEditor::showProblem(const QString& message, const QString& place) 
     offerFix({}, nullptr);
     if (place == QLatin1String("objective.checksum") && fitMode())
         offerFix(tr("Use the table as it is now"), [this] { acceptDataAsItIsNow(); });
+    if (fitMode() && message.contains(QLatin1String("does not appear in the model")))
+        if (const QStringList unused = unusedParameters(); !unused.isEmpty() && unused.size() < variables_->rowCount())
+            offerFix(tr("Remove %1 (not in the model)").arg(unused.join(QStringLiteral(", "))),
+                     [this, unused] { replaceParameters(unused, {}); });
+}
+
+QStringList ObjectiveEditor::unusedParameters() const {
+    QStringList unused;
+    if (!fitMode()) return unused;
+    const QString model = model_->toPlainText();
+    for (int row = 0; row < variables_->rowCount(); ++row) {
+        const QTableWidgetItem* item = variables_->item(row, NameColumn);
+        if (!item || item->text().isEmpty()) continue;
+        // A whole word in the model text (a name is letters, digits and underscores).
+        const QRegularExpression word(QStringLiteral("(^|[^A-Za-z0-9_])%1($|[^A-Za-z0-9_])")
+                                          .arg(QRegularExpression::escape(item->text())));
+        if (!word.match(model).hasMatch()) unused << item->text();
+    }
+    return unused;
+}
+
+void ObjectiveEditor::replaceParameters(const QStringList& drop, const QStringList& add) {
+    loading_ = true;
+    for (int row = variables_->rowCount() - 1; row >= 0; --row)
+        if (const QTableWidgetItem* item = variables_->item(row, NameColumn); item && drop.contains(item->text()))
+            variables_->removeRow(row);
+    loading_ = false;
+    if (add.isEmpty()) onVariablesChanged();
+    else addVariablesNamed(add);  // ends with onVariablesChanged(): one edit
 }
 
 void ObjectiveEditor::clearProblem() {

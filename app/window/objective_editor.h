@@ -135,6 +135,10 @@ private:
     void onVariablesChanged();
     void addVariable();
     void addVariablesNamed(const QStringList& names);
+    // Fit mode: the parameters in the table that the model text does not use (e.g. the x, y a
+    // new study starts with, once a table and a model are chosen).
+    QStringList unusedParameters() const;
+    void replaceParameters(const QStringList& drop, const QStringList& add);
     void removeVariable();
     void chooseDataFile();
     void loadTablePreview();

@@ -218,6 +218,31 @@ private slots:
 
     // Bug 2: Save wrote the last valid study and marked it saved; edits that never parsed did
     // not mark the study modified, so New discarded them without asking.
+    void aNewFitTakesTheModelsNamesInOneClick() {
+        // New ▸ Fit to data ▸ a table ▸ a model in its own parameter names: the x, y the new
+        // study started with are not the model's; one click makes a, b, tau the parameters.
+        MainWindow window;
+        window.resize(1280, 760);
+        window.show();
+        QVERIFY(window.waitForIdle());
+        chooseTable(window, writeCoolingTable(dir_.filePath("cooling-one-click.csv")));
+        auto* editor = window.objectiveEditor();
+        QComboBox* response = responseBox(editor);
+        QVERIFY(response);
+        response->setCurrentIndex(response->findText("temp"));
+        editor->modelEdit()->setPlainText("a + b*exp(-minutes/tau)");
+        QTRY_VERIFY_WITH_TIMEOUT(editor->fixText().contains("drop x, y"), 5000);
+        QVERIFY2(editor->fixText().contains("a, b, tau"), qPrintable(editor->fixText()));
+        QSignalSpy shown(&window, &MainWindow::runsShown);
+        QTest::mouseClick(buttonWithText(editor, editor->fixText()), Qt::LeftButton);
+        QStringList names;
+        for (int r = 0; r < editor->variableTable()->rowCount(); ++r) names << editor->variableTable()->item(r, 0)->text();
+        QCOMPARE(names, (QStringList{"a", "b", "tau"}));
+        QTRY_VERIFY_WITH_TIMEOUT(shown.count() > 0 && window.objective() && window.objective()->dimension() == 3, 10000);
+        QVERIFY(window.waitForIdle());
+        QVERIFY2(editor->problemText().isEmpty(), qPrintable(editor->problemText()));
+    }
+
     void saveWritesWhatIsOnScreenAndAnyEditMarksTheStudyModified() {
         MainWindow window;
         window.show();
