@@ -25,8 +25,10 @@ struct Field {
     std::vector<double> values;           // nx*ny, row-major, x fastest: values[j*nx + i]
     double finiteMin = 0, finiteMax = 0;  // over finite cells only
     long nonFiniteCells = 0;
-    double x(int i) const { return box.xMin + (box.xMax - box.xMin) * i / (nx - 1); }
-    double y(int j) const { return box.yMin + (box.yMax - box.yMin) * j / (ny - 1); }
+    // Grid coordinates as expr::gridCoordinate gives them (exact ends; no overflow for a box
+    // of finite ends however wide, e.g. -1e308 to 1e308).
+    double x(int i) const;
+    double y(int j) const;
     double at(int i, int j) const { return values[static_cast<std::size_t>(j) * nx + i]; }
 };
 

@@ -1,6 +1,7 @@
 // Sampling f over a box of two chosen variables, rows spread over every hardware thread.
 #include "core/analyze/analyze.h"
 #include "core/analyze/formula_fast_path.h"
+#include "core/expr/expr.h"
 
 #include <algorithm>
 #include <cmath>
@@ -48,6 +49,9 @@ void finiteRange(Field& field) {
 }
 
 }  // namespace
+
+double Field::x(int i) const { return expr::gridCoordinate(box.xMin, box.xMax, i, nx); }
+double Field::y(int j) const { return expr::gridCoordinate(box.yMin, box.yMax, j, ny); }
 
 bool sampleField(const Objective& objective, const Vector& held, int xVariable, int yVariable, const Box& box, int nx,
                  int ny, Field& field, const Control& control) {

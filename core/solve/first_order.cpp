@@ -3,12 +3,13 @@
 #include "core/solve/line_search.h"
 
 #include <cmath>
+#include <limits>
 
 namespace sw::solve {
 
 namespace {
 
-constexpr double kUnbounded = 1e300;
+constexpr double kUnbounded = std::numeric_limits<double>::infinity();  // no upper bound
 
 // ---- gradient-descent -------------------------------------------------------------------
 

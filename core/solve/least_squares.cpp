@@ -441,7 +441,7 @@ std::vector<MethodRegistration> leastSquaresMethods() {
         lm.info.needsResiduals = true;
         lm.info.options = {
             realOption("initial_radius_factor", "first trust radius = factor x |D x0| (factor when x0 = 0)", 1, 0,
-                       1e300, true, false),
+                       std::numeric_limits<double>::infinity(), true, false),
             formerlyNamed(realOption("reduction_below",
                                      "stop when the relative reduction of the sum of squares, actual and predicted, "
                                      "is at most this",

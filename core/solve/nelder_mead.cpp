@@ -13,7 +13,7 @@ namespace sw::solve {
 
 namespace {
 
-constexpr double kUnbounded = 1e300;
+constexpr double kUnbounded = std::numeric_limits<double>::infinity();  // no upper bound
 
 // How the start simplex grows from x0 along each axis i (vertex i+1 = x0 + h_i e_i).
 enum class StartSimplex {

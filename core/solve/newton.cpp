@@ -9,13 +9,14 @@
 #include <Eigen/LU>
 
 #include <algorithm>
+#include <limits>
 #include <cmath>
 
 namespace sw::solve {
 
 namespace {
 
-constexpr double kUnbounded = 1e300;
+constexpr double kUnbounded = std::numeric_limits<double>::infinity();  // no upper bound
 
 // Solves H p = -g. Cholesky first (the common case near a minimiser); otherwise a rank-revealing
 // LU so an indefinite but invertible H still gives its Newton step. False when H is singular.

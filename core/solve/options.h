@@ -4,6 +4,7 @@
 
 #include <cstddef>
 #include <map>
+#include <limits>
 #include <string>
 #include <vector>
 
@@ -15,7 +16,7 @@ struct OptionSpec {
     std::string description;  // one line
     Type type = Type::Real;
     double defaultValue = 0;  // Boolean: 0/1; Choice: index into choices
-    double lower = -1e300, upper = 1e300;
+    double lower = -std::numeric_limits<double>::infinity(), upper = std::numeric_limits<double>::infinity();  // none
     bool lowerOpen = false, upperOpen = false;  // true: the bound itself is not allowed
     std::vector<std::string> choices;
     // Names this option had before (docs/names.md): read from the command line and study

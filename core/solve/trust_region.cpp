@@ -13,7 +13,7 @@ namespace sw::solve {
 
 namespace {
 
-constexpr double kUnbounded = 1e300;
+constexpr double kUnbounded = std::numeric_limits<double>::infinity();  // no upper bound
 constexpr double kEps = std::numeric_limits<double>::epsilon();
 
 // ---- settings ------------------------------------------------------------------------

@@ -26,6 +26,20 @@ TEST(SampleField, AFormulaFieldEqualsTheFormulaPointByPoint) {
         }
 }
 
+TEST(SampleField, ABoxFromMinus1e308To1e308HasFiniteCoordinatesAndValues) {
+    // The width 2e308 overflows; the grid must not (issue 17's sample sibling: the window's
+    // landscape and the report's figures). Exact ends and a centre of 0 by symmetry.
+    const FormulaObjective objective("x/1e300 + y", {"x", "y"});
+    Field field;
+    ASSERT_TRUE(sampleField(objective, Vector::Zero(2), 0, 1, {-1e308, 1e308, -1, 1}, 5, 3, field));
+    EXPECT_EQ(field.x(0), -1e308);
+    EXPECT_EQ(field.x(4), 1e308);
+    EXPECT_EQ(field.x(2), 0.0);
+    EXPECT_EQ(field.nonFiniteCells, 0);
+    for (int i = 0; i < field.nx; ++i) EXPECT_TRUE(std::isfinite(field.x(i))) << i;
+    EXPECT_DOUBLE_EQ(field.at(4, 2), 1e8 + 1);
+}
+
 TEST(SampleField, AFormulaFieldCountsNonFiniteCells) {
     const FormulaObjective objective("sqrt(x) + log(y)", {"x", "y"});
     Field field;

@@ -304,3 +304,20 @@ TEST(Solver, EndPointAwayFromACriticalPointIsMarkedNotCritical) {
 
 }  // namespace
 }  // namespace sw::solve
+
+// Options with no upper bound take every finite number: 1e308 was refused as "must be > 0"
+// (a hidden limit of 1e300), and the stated range must be the real one.
+TEST(Options, UnboundedOptionsTakeEveryFiniteNumberAndSayWhatTheyNeed) {
+    for (const char* id : {"trust-region-dogleg", "gradient-descent", "nelder-mead", "levenberg-marquardt"}) {
+        const sw::solve::MethodInfo* info = sw::solve::findMethod(id);
+        ASSERT_NE(info, nullptr) << id;
+        for (const sw::solve::OptionSpec& spec : info->options) {
+            if (spec.type != sw::solve::OptionSpec::Type::Real || std::isfinite(spec.upper)) continue;
+            SCOPED_TRACE(std::string(id) + "." + spec.name);
+            EXPECT_EQ(sw::solve::checkOptions(info->options, {{spec.name, "1e308"}}), "");
+            const std::string refused = sw::solve::checkOptions(info->options, {{spec.name, "1e999"}});
+            EXPECT_NE(refused.find("out of range"), std::string::npos) << refused;
+            EXPECT_EQ(spec.rangeText().find("1e+"), std::string::npos) << spec.rangeText();
+        }
+    }
+}
