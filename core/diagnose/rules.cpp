@@ -448,11 +448,24 @@ std::optional<Finding> ruleSaddleEnd(const RunFacts& facts) {
     f.evidence.push_back(ev("gradient_norm", run.gradientNorm, "", "|∇f| at the end (small: a critical point)"));
     f.evidence.push_back(ev("value", run.value, "f", "f at the saddle"));
     addDirection(f, "escape", escape.front(), facts.names, "unit direction along which f decreases");
+    // Every escape direction of a saddle of index k >= 2 (up to four), each with its curvature.
+    const std::size_t shown = std::min<std::size_t>(escape.size(), 4);
+    for (std::size_t j = 1; j < shown; ++j) {
+        f.evidence.push_back(ev("eigenvalue_" + std::to_string(j + 1), c.eigenvalues[static_cast<Eigen::Index>(j)],
+                                "curvature", "negative curvature number " + std::to_string(j + 1)));
+        addDirection(f, "escape" + std::to_string(j + 1), escape[j], facts.names,
+                     "unit direction of negative curvature number " + std::to_string(j + 1));
+    }
     f.mark.point = run.x;
     f.mark.directions = escape;
+    std::string others;
+    for (std::size_t j = 1; j < shown; ++j)
+        others += (j + 1 == shown && j > 1 ? " and " : ", ") + pointList(escape[j], facts.names) + " (curvature " +
+                  num(c.eigenvalues[static_cast<Eigen::Index>(j)]) + ")";
+    if (escape.size() > shown) others += ", and " + std::to_string(escape.size() - shown) + " more";
     f.message = "The run ended on a saddle point, not a minimum: the Hessian there has " + std::to_string(c.negative) +
                 " negative eigenvalue" + (c.negative > 1 ? "s" : "") + " (smallest " + num(c.eigenvalues[0]) +
-                "), so f still decreases along " + pointList(escape.front(), facts.names) + ".";
+                "), so f still decreases along " + pointList(escape.front(), facts.names) + others + ".";
     setRemedy(f, escapeRemedy(facts, escape.front(), c.eigenvalues[0]));
     return f;
 }
@@ -806,10 +819,34 @@ std::optional<Finding> ruleLineSearchCollapse(const RunFacts& facts) {
                     "of a non-smooth objective (a kink from abs, min or max), where the gradient never becomes small.";
         return f;
     }
-    f.message = std::string(failed ? "The line search gave up" : "The line searches collapsed") + ": steps shrank to alpha = " +
-                num(lastAlpha) + " (median " + num(typical) + ") with up to " + std::to_string(mostTrials) +
-                " trials per search, so f hardly falls along the chosen directions; a kink (abs, min, max) or "
-                "rounding usually causes this.";
+    // Trials whose f was not finite: the search backed off from overflow or from outside the
+    // objective's domain, not from a kink.
+    int nonFiniteTrials = 0, lastTrials = 0;
+    if (lastSearch)
+        for (const solve::LineSearchTrial& t : lastSearch->trials) {
+            ++lastTrials;
+            nonFiniteTrials += !std::isfinite(t.value);
+        }
+    if (lastTrials > 0)
+        f.evidence.push_back(ev("non_finite_trials", nonFiniteTrials, "trials",
+                                "trials of the last search where f was not finite"));
+    const std::string gave = failed ? "The line search gave up" : "The line searches collapsed";
+    if (lastTrials > 0 && nonFiniteTrials * 2 >= lastTrials) {
+        const double g = lastSearch->gradientNorm;
+        f.message = gave + ": " + std::to_string(nonFiniteTrials) + " of the last search's " + std::to_string(lastTrials) +
+                    " trial points gave a value that is not finite (|∇f| = " + num(g) +
+                    " there), so the steps overflow f or leave the region where it is defined; the scale of the "
+                    "objective or its variables, not a kink, stops the run.";
+    } else if (alphas.empty()) {
+        f.message = gave + " before any step was accepted: no step length along the first direction lowered f enough "
+                    "in " + std::to_string(mostTrials) + " trials; a kink (abs, min, max) at the start, a wrong gradient "
+                    "or rounding usually causes this.";
+    } else {
+        f.message = gave + ": steps shrank to alpha = " + num(lastAlpha) + " (median " + num(typical) + ") with up to " +
+                    std::to_string(mostTrials) +
+                    " trials per search, so f hardly falls along the chosen directions; a kink (abs, min, max) or "
+                    "rounding usually causes this.";
+    }
     const bool kink = lastSearch && lastSearch->stepNorm > 0 && kinkAcross(*facts.objective, where, lastSearch->step);
     const solve::MethodInfo* info = solve::findMethod(run.methodId);
     if (kink || (info && info->family == "trust-region"))

@@ -55,8 +55,9 @@ std::string BasinSettings::check(std::size_t methodCount) const {
         return "a " + std::to_string(grid) + " x " + std::to_string(grid) + " grid for " + std::to_string(methodCount) +
                (methodCount == 1 ? " method is " : " methods is ") + groupedNumber(cells) +
                " runs, above the limit of " + groupedNumber(maxCells) +
-               " cells per survey (each cell keeps 8 bytes of result; the limit keeps a survey near " +
-               std::to_string(maxCells * 8 / 1'000'000) + " MB): use a smaller grid or fewer methods";
+               " cells per survey (a cell needs about " + std::to_string(kBytesPerCell) + " bytes while it is mapped, " +
+               std::to_string(kBytesPerCellJson) + " with --json: the limit keeps a survey under about " +
+               groupedNumber(maxCells * kBytesPerCellJson / 1'000'000) + " MB): use a smaller grid or fewer methods";
     if (grid > kMaxGrid)
         return "the grid must be 1 to " + std::to_string(kMaxGrid) + " cells per side (got " + std::to_string(grid) + ")";
     const std::string rulesProblem = rules.check();

@@ -105,8 +105,10 @@ std::string Region::check(int dimension, const std::vector<std::string>& names) 
             return "the box has no interior in " + nameOf(names, i) + ": lower " + numberText(lower[i]) +
                    " is not below upper " + numberText(upper[i]);
         // The cells and merge tolerances work in fractions of the width: it must be resolvable.
-        if (!(upper[i] - lower[i] > 1e-9 * std::max(std::abs(lower[i]), std::abs(upper[i]))) ||
-            !std::isfinite(upper[i] - lower[i]))
+        if (!std::isfinite(upper[i] - lower[i]))  // both ends finite, the width is not
+            return "the box in " + nameOf(names, i) + " is too wide: its width (" + numberText(lower[i]) + " to " +
+                   numberText(upper[i]) + ") is beyond the largest number; the survey works in fractions of the width";
+        if (!(upper[i] - lower[i] > 1e-9 * std::max(std::abs(lower[i]), std::abs(upper[i]))))
             return "the box in " + nameOf(names, i) + " is too narrow for its position (" + numberText(lower[i]) +
                    " to " + numberText(upper[i]) + "); its width must be above 1e-9 of its magnitude";
     }

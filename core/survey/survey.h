@@ -214,6 +214,11 @@ struct BasinSettings {
     // Memory guard: N * N * methods may not exceed this (each cell keeps a point index and an
     // iteration count; the runs themselves are not kept).
     long maxCells = 16'000'000;
+    // Memory per cell, measured (docs/survey.md: peak resident size of `saddlewise basins` at a
+    // 1500 x 1500 grid, one method, less the process at a 10 x 10 grid): the run outcomes, the
+    // map and the counts; the JSON document's two arrays of numbers add the rest.
+    static constexpr long kBytesPerCell = 110;
+    static constexpr long kBytesPerCellJson = 150;
     static constexpr int kMaxGrid = 4000;
     std::string check(std::size_t methodCount) const;
 };

@@ -181,6 +181,7 @@ TEST(BasinsVerb, BadInputNamesThePlaceAndTheLimit) {
     };
     const std::vector<Case> cases = {
         {with({"--grid", "5000", "--method", "newton"}), "above the limit of 16,000,000 cells"},
+        {with({"--grid", "5000", "--method", "newton"}), "about 110 bytes while it is mapped, 150 with --json: the limit keeps a survey under about 2,400 MB"},
         {with({"--grid", "3000", "--method", "newton", "--method", "bfgs"}), "18,000,000 runs, above the limit"},
         {with({"--grid", "0", "--method", "newton"}), "--grid"},
         {with({"--grid", "10"}), "--method"},

@@ -78,6 +78,27 @@ TEST(SaddleEnd, PureNewtonStopsOnAPassBetweenTwoWells) {
     EXPECT_EQ(saddle->remedy->outcome->endKind, solve::PointKind::Minimum);
 }
 
+TEST(SaddleEnd, ASaddleOfIndexTwoGivesBothEscapeDirections) {
+    // f = x^2 + (y^2 - 1)^2 + (z^2 - 1)^2 has a critical point at the origin with Hessian
+    // diag(2, -4, -4): a saddle of index 2 (worked by hand). Pure Newton from near it goes there.
+    const FormulaObjective f("x^2 + (y^2 - 1)^2 + (z^2 - 1)^2", {"x", "y", "z"});
+    const Diagnosed d = diagnosed(f, vec({0.3, 0.2, 0.1}), "newton");
+    const Finding* saddle = d.get(FindingId::SaddleEnd);
+    ASSERT_NE(saddle, nullptr) << d.list();
+    EXPECT_EQ(saddle->number("negative_eigenvalues"), 2);
+    EXPECT_NEAR(saddle->number("smallest_eigenvalue"), -4, 1e-6);
+    EXPECT_NEAR(saddle->number("eigenvalue_2"), -4, 1e-6);
+    // The two escape directions span the y-z plane and are orthogonal.
+    const double e1[3] = {saddle->number("escape_x"), saddle->number("escape_y"), saddle->number("escape_z")};
+    const double e2[3] = {saddle->number("escape2_x"), saddle->number("escape2_y"), saddle->number("escape2_z")};
+    EXPECT_NEAR(e1[0], 0, 1e-9);
+    EXPECT_NEAR(e2[0], 0, 1e-9);
+    EXPECT_NEAR(e1[1] * e2[1] + e1[2] * e2[2], 0, 1e-9);
+    EXPECT_NE(saddle->message.find("2 negative eigenvalues"), std::string::npos) << saddle->message;
+    EXPECT_NE(saddle->message.find("curvature -4"), std::string::npos) << saddle->message;
+    EXPECT_EQ(saddle->mark.directions.size(), 2u);
+}
+
 TEST(SaddleEnd, SilentWhereNewtonReachesAWell) {
     const FormulaObjective f(kTwoValves, {"valve_a", "valve_b"});
     const Diagnosed d = diagnosed(f, vec({0.9, -1.1}), "newton");

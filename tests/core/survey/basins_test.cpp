@@ -181,6 +181,8 @@ TEST(Basins, BadInputIsRefusedWithASentence) {
               std::string::npos);
     EXPECT_NE(refusal({}, grid(10), region).find("at least one method"), std::string::npos);
     EXPECT_NE(refusal({{"", "newton", {}}}, grid(10), box2(1, 1, 0, 1)).find("no interior in a"), std::string::npos);
+    // Both ends finite, the width not: named as too wide (it was called "too narrow").
+    EXPECT_NE(refusal({{"", "newton", {}}}, grid(10), box2(-1e308, 1e308, 0, 1)).find("is too wide"), std::string::npos);
 }
 
 TEST(Basins, CellCentresAreMirroredToTheLastBit) {
