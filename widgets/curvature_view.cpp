@@ -1,4 +1,5 @@
 #include "widgets/curvature_view.h"
+#include "widgets/elided_label.h"
 
 #include <QLabel>
 #include <QVBoxLayout>
@@ -32,11 +33,9 @@ CurvatureView::CurvatureView(QWidget* parent) : PlotView(parent) {
     connect(eigenRect_->axis(QCPAxis::atBottom), qOverload<const QCPRange&>(&QCPAxis::rangeChanged),
             conditionRect_->axis(QCPAxis::atBottom), qOverload<const QCPRange&>(&QCPAxis::setRange));
 
-    caption_ = new QLabel(this);
+    caption_ = new ElidedLabel(this);
     caption_->setObjectName(QStringLiteral("curvatureCaption"));
-    caption_->setWordWrap(true);
     caption_->setContentsMargins(4, 2, 4, 0);
-    caption_->setToolTip(tr("What the two panels show"));
     layout_->insertWidget(0, caption_);
 
     auto* legendRow = new QCPLayoutGrid;
@@ -47,7 +46,7 @@ CurvatureView::CurvatureView(QWidget* parent) : PlotView(parent) {
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setWrap(3);
     plot_->legend->setVisible(true);
-    enableLegendReflow(3);
+    enableLegendReflow(3, {}, 110);  // names elided (full name as a tooltip): fewer rows, taller plots
     enableTickThinning();
     applyPlotStyle(plot_);
     rebuild();
@@ -63,7 +62,7 @@ QCPGraph* CurvatureView::conditionGraph(int track) const {
     return conditionGraphs_[static_cast<std::size_t>(track)];
 }
 
-QString CurvatureView::caption() const { return caption_->text(); }
+QString CurvatureView::caption() const { return caption_->fullText(); }
 
 QPointF CurvatureView::highlightPosition() const {
     if (!highlight_ || !highlight_->visible() || highlight_->data()->isEmpty()) return QPointF(std::nan(""), std::nan(""));
@@ -112,7 +111,7 @@ void CurvatureView::rebuild() {
     }
     ey->setTicker(symmetricLogTicker(c_));
     ey->setLabel(tr("λ"));
-    caption_->setText(tr("Top: the Hessian's eigenvalues λ at each iteration, on a symmetric log scale (linear for "
+    caption_->setFullText(tr("Top: the Hessian's eigenvalues λ at each iteration, on a symmetric log scale (linear for "
                          "|λ| < %1). Bottom: the condition number cond(H) = |λ|max / |λ|min.")
                           .arg(formatNumber(c_)));
 

@@ -9,6 +9,8 @@ class QLabel;
 
 namespace sw::widgets {
 
+class ElidedLabel;
+
 class CurvatureView : public PlotView {
     Q_OBJECT
 public:
@@ -33,7 +35,7 @@ protected:
 private:
     void updateHighlight();
     double c_ = 1.0;
-    QLabel* caption_ = nullptr;
+    ElidedLabel* caption_ = nullptr;
     QCPAxisRect* eigenRect_ = nullptr;
     QCPAxisRect* conditionRect_ = nullptr;
     std::vector<std::vector<QCPGraph*>> eigenGraphs_;

@@ -57,6 +57,7 @@ LandscapeView::LandscapeView(QWidget* parent) : PlotView(parent) {
     colourMap_->setVisible(false);
 
     colourScale_ = new QCPColorScale(plot_);
+    connect(plot_, &QCustomPlot::afterLayout, this, &LandscapeView::fitScaleLabel);
     colourScale_->setType(QCPAxis::atRight);
     colourScale_->setBarWidth(12);
     colourScale_->setRangeDrag(false);
@@ -342,13 +343,20 @@ void LandscapeView::rebuildField() {
                 for (int k = k0; k <= k1; ++k) values.push_back(std::pow(10.0, k));
                 return values;
             })));
-        scaleAxis->setLabel(tr("f − %1, log scale (%1: lowest f on this plane)").arg(formatNumber(lo)));
+        const QString low = formatNumber(lo);
+        scaleLabels_ = {tr("f − %1, log scale (%1: lowest f on this plane)").arg(low),
+                        tr("f − %1, log (%1: lowest f here)").arg(low), tr("f − %1, log").arg(low), tr("f − min, log")};
     } else {
         scaleAxis->setTicker(QSharedPointer<QCPAxisTicker>(new QCPAxisTicker));
-        scaleAxis->setLabel(tr("f"));
+        scaleLabels_ = {tr("f")};
     }
-    if (field->nonFiniteCells > 0)
-        scaleAxis->setLabel(scaleAxis->label() + tr("   (grey: not finite)"));
+    if (field->nonFiniteCells > 0) {
+        QStringList withGrey;
+        for (const QString& label : scaleLabels_) withGrey << label + tr("   (grey: not finite)");
+        scaleLabels_ = withGrey + scaleLabels_;  // drop the grey note before shortening the rest
+    }
+    scaleAxis->setLabel(scaleLabels_.first());
+    fitScaleLabel();
 
     // Contour lines, dark on the light end of the gradient and light on the dark end.
     for (const analyze::ContourSet& set : field_->contours) {
@@ -619,6 +627,21 @@ bool LandscapeView::eventFilter(QObject* watched, QEvent* event) {
     default: break;
     }
     return PlotView::eventFilter(watched, event);
+}
+
+void LandscapeView::fitScaleLabel() {
+    if (scaleLabels_.isEmpty() || !colourScale_->visible()) return;
+    QCPAxis* axis = colourScale_->axis();
+    const int room = axis->axisRect() ? axis->axisRect()->rect().height() : 0;
+    if (room <= 0) return;
+    const QFontMetrics metrics(axis->labelFont());
+    QString chosen = scaleLabels_.last();
+    for (const QString& label : scaleLabels_)
+        if (metrics.horizontalAdvance(label) <= room) {
+            chosen = label;
+            break;
+        }
+    if (axis->label() != chosen) axis->setLabel(chosen);  // the label's thickness is the same: no new layout
 }
 
 }  // namespace sw::widgets

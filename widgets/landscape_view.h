@@ -85,6 +85,10 @@ private:
 
     QCPColorMap* colourMap_ = nullptr;
     QCPColorScale* colourScale_ = nullptr;
+    // The colour scale's title, longest first; the longest that fits the bar's height is shown
+    // (chosen after each layout, so it follows the view's size).
+    QStringList scaleLabels_;
+    void fitScaleLabel();
     QCPMarginGroup* marginGroup_ = nullptr;
     std::vector<QCPCurve*> contourCurves_;
     std::vector<QCPCurve*> pathCurves_;

@@ -45,7 +45,7 @@ ProgressView::ProgressView(QWidget* parent) : PlotView(parent) {
     QFont noteFont = QApplication::font();
     noteFont.setPointSizeF(std::max(7.0, noteFont.pointSizeF() * 0.9));
     bestNote_->setFont(noteFont);
-    bestNote_->setMargins(QMargins(4, 2, 4, 0));
+    bestNote_->setMargins(QMargins(4, 2, 4, 3));  // room below for the underscore's descent
     plot_->plotLayout()->addElement(0, 0, bestNote_);
     plot_->plotLayout()->setRowStretchFactor(0, 0.001);
     // A short panel (a 1280 x 800 screen) has plots shorter than their axis labels, which then
@@ -152,13 +152,15 @@ void ProgressView::rebuild() {
                         smallestGradient = std::min(smallestGradient, record.gradientNorm);
                 }
     }
-    if (!std::isfinite(best_)) best_ = 0;
+    const bool anyValue = std::isfinite(best_);
+    if (!anyValue) best_ = 0;
     floor_ = std::isfinite(smallestGap) ? smallestGap / 10 : 1e-16 * std::max(1.0, std::abs(best_));
     const double gradientFloor = std::isfinite(smallestGradient) ? smallestGradient / 10 : 1e-16;
     gy->setLabel(tr("f − f_best"));
     bestLong_ = tr("f_best = %1, the lowest f any run reached\nruns at f_best are drawn at %2 (a log axis has no 0)")
                     .arg(formatNumber(best_), formatNumber(floor_, 2));
-    bestShort_ = tr("f_best = %1 (lowest f reached; drawn at %2)").arg(formatNumber(best_), formatNumber(floor_, 2));
+    bestShort_ = tr("f_best = %1, the lowest f reached; runs at it are drawn at %2").arg(formatNumber(best_), formatNumber(floor_, 2));
+    if (!anyValue) bestLong_ = bestShort_ = tr("no run has reached a finite f yet");
     bestNote_->setText(bestLong_);
 
     double xMax = 1;

@@ -1,4 +1,5 @@
 #include "widgets/slice_view.h"
+#include "widgets/elided_label.h"
 
 #include <QCheckBox>
 #include <QComboBox>
@@ -27,7 +28,7 @@ SliceView::SliceView(QWidget* parent) : PlotView(parent) {
     legendRow->addElement(0, 0, plot_->legend);
     plot_->legend->setFillOrder(QCPLayoutGrid::foColumnsFirst);
     plot_->legend->setVisible(true);
-    enableLegendReflow(3);
+    enableLegendReflow(3, {}, 110);  // names elided (full name as a tooltip): fewer rows, taller plot
 
     auto* row = new QHBoxLayout;
     row->setContentsMargins(4, 0, 4, 2);
@@ -37,10 +38,9 @@ SliceView::SliceView(QWidget* parent) : PlotView(parent) {
                                     "the Hessian's eigenvectors"));
     directionChoice_->addItem(tr("search direction of the step"), -1);
     label->setBuddy(directionChoice_);
-    caption_ = new QLabel(this);
+    caption_ = new ElidedLabel(this);
     caption_->setObjectName(QStringLiteral("sliceCaption"));
-    caption_->setWordWrap(true);
-    caption_->setTextInteractionFlags(Qt::TextSelectableByMouse);
+    caption_->setContentsMargins(4, 0, 4, 2);
     logScale_ = new QCheckBox(tr("log α"), this);
     logScale_->setToolTip(tr("Step lengths on a log scale: line-search trials often span several decades "
                              "(on by itself when they span more than two)"));
@@ -51,8 +51,9 @@ SliceView::SliceView(QWidget* parent) : PlotView(parent) {
     row->addWidget(label);
     row->addWidget(directionChoice_);
     row->addWidget(logScale_);
-    row->addWidget(caption_, 1);
+    row->addStretch(1);
     layout_->addLayout(row);
+    layout_->addWidget(caption_);  // its own line under the controls, shortened to fit
     connect(directionChoice_, qOverload<int>(&QComboBox::activated), this,
             [this](int index) { setDirection(directionChoice_->itemData(index).toInt()); });
     applyPlotStyle(plot_);
@@ -69,7 +70,7 @@ void SliceView::setArmijoConstant(double c1) {
     rebuild();
 }
 
-QString SliceView::caption() const { return caption_->text(); }
+QString SliceView::caption() const { return caption_->fullText(); }
 
 void SliceView::rebuild() {
     plot_->clearPlottables();
@@ -96,7 +97,7 @@ void SliceView::rebuild() {
         directionChoice_->setCurrentIndex(index >= 0 ? index : 0);
     }
     if (!record || n == 0 || record->x.size() != n) {
-        caption_->setText(tr("Select an iterate to see f along its step."));
+        caption_->setFullText(tr("Select an iterate to see f along its step."));
         plot_->xAxis->setLabel(QString());
         plot_->yAxis->setLabel(QString());
         queueReplot();
@@ -145,7 +146,7 @@ void SliceView::rebuild() {
         what = tr("steepest descent (this iterate has no step)");
         plot_->xAxis->setLabel(tr("distance t along −∇f"));
     } else {
-        caption_->setText(tr("Iterate %1 of %2 has no step and a zero or non-finite gradient: no line to show.")
+        caption_->setFullText(tr("Iterate %1 of %2 has no step and a zero or non-finite gradient: no line to show.")
                               .arg(record->iteration)
                               .arg(track.label));
         queueReplot();
@@ -304,7 +305,7 @@ void SliceView::rebuild() {
     if (std::isfinite(acceptedT) && eigenIndex < 0)
         text += tr(", step at %1, %2 trial(s)").arg(formatNumber(acceptedT)).arg(record->trials.size());
     if (pinned > 0) text += tr("; %n trial(s) far above, up to f = %1", nullptr, pinned).arg(formatNumber(farthestAbove));
-    caption_->setText(text);
+    caption_->setFullText(text);
     queueReplot();
 }
 

@@ -11,6 +11,8 @@ class QLabel;
 
 namespace sw::widgets {
 
+class ElidedLabel;
+
 class SliceView : public PlotView {
     Q_OBJECT
 public:
@@ -43,7 +45,7 @@ private:
     QComboBox* directionChoice_ = nullptr;
     QCheckBox* logScale_ = nullptr;
     bool logScaleChosen_ = false;  // the user ticked or cleared "log α": keep their choice
-    QLabel* caption_ = nullptr;
+    ElidedLabel* caption_ = nullptr;
     QCPGraph* trueGraph_ = nullptr;
     QCPGraph* modelGraph_ = nullptr;
     QCPGraph* armijoGraph_ = nullptr;

@@ -63,8 +63,8 @@ const char* kHelp =
     "  saddlewise fit --data samples/sensor-warmup.csv --model 'a - b*exp(-minutes/tau)' --response temp \\\n"
     "                 --start a=40,b=20,tau=5\n"
     "\n"
-    "Exit codes: 0 the fit ran (converged or at a limit; see the warnings), 1 the run broke down,\n"
-    "2 bad usage or input.\n";
+    "Exit codes: 0 the fit ran (converged, at a limit, or stopped by the method's own end; the\n"
+    "termination, findings and warnings say which), 1 the run broke down, 2 bad usage or input.\n";
 
 int runFitVerb(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed =

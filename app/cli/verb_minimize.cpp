@@ -45,8 +45,10 @@ const char* kHelp =
     "Example:\n"
     "  saddlewise minimize '100*(y-x^2)^2+(1-x)^2' --from x=-1.2,y=1 --method bfgs --method newton\n"
     "\n"
-    "Exit codes: 0 the runs finished (converged or at a limit), 1 a run broke down\n"
-    "(non-finite values or a method failure), 2 bad usage or input.\n";
+    "Exit codes: 0 the runs finished: converged, at a limit, or stopped by the method's own\n"
+    "end (a line search or trust region that could not go on; the termination and findings\n"
+    "say which), 1 a run broke down (non-finite values or a method failure), 2 bad usage or\n"
+    "input.\n";
 
 int runMinimize(const std::vector<std::string>& args, std::ostream& out, std::ostream&) {
     const ParsedArgs parsed = parseArgs(args, {"json", "summary", "no-remedies"},

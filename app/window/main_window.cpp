@@ -302,7 +302,7 @@ void MainWindow::fitToScreen() {
                 {left, w - left - right, right}, Qt::Horizontal);
     resizeDocks({docks_.at("landscape"), docks_.at("summary")}, {h * 62 / 100, h * 38 / 100}, Qt::Vertical);
     resizeDocks({docks_.at("objective"), docks_.at("lineup")}, {h * 56 / 100, h * 44 / 100}, Qt::Vertical);
-    resizeDocks({docks_.at("local-model"), docks_.at("progress")}, {h * 56 / 100, h * 44 / 100}, Qt::Vertical);
+    resizeDocks({docks_.at("local-model"), docks_.at("progress")}, {h * 50 / 100, h * 50 / 100}, Qt::Vertical);
 }
 
 void MainWindow::setInitialSize(const QSize& size) {

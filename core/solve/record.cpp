@@ -319,7 +319,8 @@ EndPoint classifyEndPoint(const Matrix& hessian, const Vector& x, double value, 
                            shortNumber(end.stationaryBound, 3) + ")"
                      : "gradient norm " + shortNumber(gradient.norm()) +
                            " where the Hessian has no curvature (the local model has no stationary point)";
-    end.description = "not a critical point: " + end.reason + "; the curvature there is that of a " + curvatureText +
+    end.description = "not a critical point: " + end.reason + "; the curvature there is that of a " +
+                      (end.curvature == PointKind::Minimum || end.curvature == PointKind::Maximum ? "local " : "") + curvatureText +
                       " (eigenvalues " + listOf(end.eigenvalues) + ")";
     return end;
 }

@@ -138,6 +138,18 @@ private slots:
                 QVERIFY2(scale->axis()->label().contains("lowest f on this plane"), qPrintable(scale->axis()->label()));
                 QVERIFY(!scale->axis()->label().contains("f_min"));
                 found = true;
+                // In a short panel (1280 x 800 window) the title shortens to fit the bar
+                // instead of being cut at both ends.
+                for (const QSize size : {QSize(430, 300), QSize(430, 220)}) {
+                    view.resize(size);
+                    view.plot()->replot();
+                    const QString label = scale->axis()->label();
+                    const int room = scale->axis()->axisRect()->rect().height();
+                    QVERIFY2(QFontMetrics(scale->axis()->labelFont()).horizontalAdvance(label) <= room ||
+                                 label == QStringLiteral("f − min, log"),
+                             qPrintable(QStringLiteral("%1 in %2 px").arg(label).arg(room)));
+                    QVERIFY2(label.startsWith(QStringLiteral("f − ")), qPrintable(label));
+                }
             }
         QVERIFY(found);
     }
