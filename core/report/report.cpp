@@ -274,13 +274,13 @@ Section objectiveSection(const ReportInput& in) {
     s.blocks.push_back(fields(f));
 
     s.blocks.push_back(heading(study.fit ? "Parameters" : "Variables"));
-    Table vars{{study.fit ? "parameter" : "variable", "start", "box lower", "box upper"}, {}, false};
+    Table vars{{study.fit ? "parameter" : "variable", "start", "plot from", "plot to"}, {}, false};
     const json& variables = st.contains("variables") ? st["variables"] : json::array();
     for (const json& v : variables)
         vars.rows.push_back({codeCell(text(v, "name")), numberCell(numberText(v["start"], kPointDigits)),
                              numberCell(numberText(v["plot_from"], kPointDigits)), numberCell(numberText(v["plot_to"], kPointDigits))});
     s.blocks.push_back(table(vars));
-    s.blocks.push_back(paragraph("The box is the region the landscape plot shows; the methods are not confined to it."));
+    s.blocks.push_back(paragraph("The plot ranges are the region the landscape shows (the box of the surveys); they do not bound the methods, which may leave them."));
 
     auto derivativeBlock = [](const std::vector<Derivative>& list) {
         std::string t;
