@@ -360,11 +360,38 @@ std::optional<Finding> ruleNonFinite(const RunFacts& facts) {
         f.evidence.push_back(ev("last_finite_iteration", lastGood->iteration, "iteration", "the last finite iterate"));
         f.mark.point = lastGood->x;
     }
-    const std::string what = run.termination == Termination::NonFinite && !run.message.empty()
-                                 ? run.message
-                                 : "a non-finite value at iteration " + std::to_string(at);
-    f.message = "The run met a non-finite value (" + what +
-                "): the objective is undefined or overflows where the method stepped.";
+    // Which output went non-finite first: the record's own numbers, else the solver's message
+    // (the evaluator names the first one: "value is inf", "gradient component x is nan",
+    // "Hessian entry (x, y) is inf", "Jacobian entry (...)").
+    const std::string& said = run.termination == Termination::NonFinite ? run.message : std::string();
+    bool valueBad = said.find("value is ") != std::string::npos, gradientBad = said.find("gradient component") != std::string::npos,
+         hessianBad = said.find("Hessian entry") != std::string::npos, jacobianBad = said.find("Jacobian entry") != std::string::npos,
+         xBad = false;
+    if (firstBad >= 0) {
+        const IterationRecord& r = run.trace[badIndex];
+        valueBad = valueBad || !std::isfinite(r.value);
+        gradientBad = gradientBad || (r.gradient.size() > 0 && !r.gradient.allFinite());
+        xBad = !r.x.allFinite();
+    }
+    struct Output {
+        const char* key;    // evidence name: non_finite_<key>
+        const char* words;  // as the message names it
+        bool bad;
+    };
+    const Output outputs[] = {{"value", "f", valueBad},
+                              {"gradient", "the gradient", gradientBad},
+                              {"hessian", "the Hessian", hessianBad},
+                              {"jacobian", "the Jacobian", jacobianBad},
+                              {"x", "the iterate x", xBad}};
+    std::string which;
+    for (const Output& o : outputs) {
+        f.evidence.push_back(ev(std::string("non_finite_") + o.key, o.bad ? 1 : 0, "",
+                                std::string("1: ") + o.words + " was not finite"));
+        if (o.bad) which += (which.empty() ? "" : ", ") + std::string(o.words);
+    }
+    const std::string what = !said.empty() ? said : "a non-finite value at iteration " + std::to_string(at);
+    f.message = "The run met a non-finite value (" + what + ")" + (which.empty() ? "" : "; not finite: " + which) +
+                ": the objective is undefined or overflows where the method stepped.";
     if (fixedStepMethod(facts)) {
         Change c;
         c.kind = Change::Kind::SetOptions;
@@ -1172,7 +1199,16 @@ std::optional<Finding> ruleConvergenceRate(const RunFacts& facts) {
     f.id = FindingId::ConvergenceRate;
     f.severity = Severity::Note;
     f.iterations = {rate.first, rate.last, rate.last, {}};
-    f.evidence.push_back(ev("order", rate.order, "", "estimated order q (ACOC, Cordero & Torregrosa 2007)"));
+    // The order estimate is evidence only where it is credible and agrees with the verdict (a
+    // linear or stalled run has no order to speak of; a superlinear one's estimate may be noise
+    // outside [kSuperlinearOrder, kMostCredibleOrder], and the message then leaves it out too).
+    const bool credibleOrder =
+        std::isfinite(rate.order) &&
+        (rate.kind == RateEstimate::Kind::Quadratic ||
+         (rate.kind == RateEstimate::Kind::Superlinear && rate.order >= thresholds::kSuperlinearOrder &&
+          rate.order <= thresholds::kMostCredibleOrder));
+    if (credibleOrder)
+        f.evidence.push_back(ev("order", rate.order, "", "estimated order q (ACOC, Cordero & Torregrosa 2007)"));
     f.evidence.push_back(ev("factor", rate.factor, "per iteration", "gradient-norm factor over the window"));
     f.evidence.push_back(ev("window_iterations", rate.last - rate.first, "iterations", "iterations measured"));
     switch (rate.kind) {

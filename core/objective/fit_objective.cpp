@@ -606,6 +606,18 @@ FitObjective::FitObjective(std::shared_ptr<const Table> table, FitDefinition def
                            ": the poisson loss needs counts >= 0 (got " + numberText(yi) + ")");
     }
 
+    // The model's own mistakes first (a function name used as a value, a missing operand, ...),
+    // with the formula messages and their caret; an unknown name is explained below, with the
+    // parameters and columns it could have been.
+    {
+        std::vector<std::string> everything = def.parameters;
+        everything.insert(everything.end(), t.columnNames.begin(), t.columnNames.end());
+        try {
+            (void)expr::Expression::parse(def.model, everything);
+        } catch (const expr::FormulaError& e) {
+            if (e.unknownNames().empty()) throw;
+        }
+    }
     // Every name in the model must be a parameter or a column.
     std::vector<std::string> parameterSet = def.parameters;
     for (const std::string& name : namesIn(def.model)) {

@@ -303,6 +303,13 @@ std::vector<Row> catalogue() {
     rows.push_back(table("empty cell", "x,y\n1,2\n,4\n", {"t.csv: line 3, column 1", "empty cell"}));
     rows.push_back(table("decimal comma in a cell", "x;y\n1;2,5\n", {"t.csv: line 2, column 2", "(use '.' as the decimal point)"}));
     rows.push_back(table("unclosed quote", "x,y\n1,\"2\n", {"t.csv: line 2, column 2", "never closed"}));
+    rows.push_back({"function used as a name in a model",
+                    [](const fs::path& dir) {
+                        spit(dir / "t.csv", "x,y\n1,2\n2,3\n");
+                        return std::vector<std::string>{"fit", "--data", "t.csv", "--model", "sin + a*x",
+                                                        "--response", "y", "--start", "a=1"};
+                    },
+                    {"'sin' is a function: write sin(...)", "^"}});
     rows.push_back(table("model names a missing column", "x,z\n1,2\n2,3\n", {"y"}));
     rows.push_back({"10^6-row table with a bad last row",
                     [](const fs::path& dir) {
@@ -361,7 +368,7 @@ std::vector<Row> catalogue() {
                             study(R"({"formula": "x^2+y^2"})", "",
                                   R"([{"method": "trust-region-exact", "colour": "#002ddd", "options": {"initial_radius": -1e999}}])"),
                             {"methods[0].options.initial_radius: -1e999 is out of range"}));
-    rows.push_back(studyRow("gradient tolerance of 1e308 is accepted, -1 is not",
+    rows.push_back(studyRow("negative gradient tolerance (1e308 is accepted: study_json_test)",
                             formulaStudy(R"("x^2+y^2")", R"(, "stopping": {"gradient_tolerance": -1})"),
                             {"stopping.gradient_tolerance: must be >= 0 (got -1)"}));
     rows.push_back(studyRow("document nested 10^6 deep", nested(1000000), {"document", "nested more than 32 levels deep"}));

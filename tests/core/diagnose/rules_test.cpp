@@ -417,6 +417,10 @@ TEST(NonFinite, NewtonStepsOutOfTheLogarithmsDomain) {
     EXPECT_EQ(bad->number("iteration"), 1);
     EXPECT_EQ(bad->number("last_finite_iteration"), 0);
     EXPECT_NE(bad->message.find("value is nan"), std::string::npos) << bad->message;
+    // Which output: f (log of a negative number), named as evidence and in the sentence.
+    EXPECT_EQ(bad->number("non_finite_value"), 1);
+    EXPECT_EQ(bad->number("non_finite_x"), 0);
+    EXPECT_NE(bad->message.find("not finite: f"), std::string::npos) << bad->message;
     expectRemedyHelped(bad);
     EXPECT_NEAR(bad->remedy->outcome->x[0], 1, 1e-8);  // minimum at x = 1, y = 1 (by hand)
 }
@@ -492,6 +496,11 @@ TEST(ConvergenceRate, NamesTheRateEachMethodShows) {
     ASSERT_NE(g.get(FindingId::ConvergenceRate), nullptr) << g.list();
     EXPECT_NE(g.get(FindingId::ConvergenceRate)->message.find("linearly"), std::string::npos);
     EXPECT_EQ(g.get(FindingId::ConvergenceRate)->severity, Severity::Note);
+    // The evidence agrees with the verdict: an order only where one is credible.
+    EXPECT_TRUE(std::isnan(g.get(FindingId::ConvergenceRate)->number("order")));
+    EXPECT_GE(newton->number("order"), 1.8);
+    const double bfgsOrder = b.get(FindingId::ConvergenceRate)->number("order");
+    EXPECT_TRUE(std::isnan(bfgsOrder) || (bfgsOrder >= 1.2 && bfgsOrder <= 3.5)) << bfgsOrder;
 }
 
 TEST(ConvergenceRate, SilentOnAOneStepRun) {

@@ -216,5 +216,19 @@ TEST(StudyJson, AMinimalStudyTakesDefaults) {
     EXPECT_EQ(fromJson(toJson(study), "."), study);
 }
 
+// The stopping thresholds have no hidden limit: 1e308 (finite) is a valid threshold; only
+// the number rule (out of range) and the sign refuse one. (1e308 was once refused by a hidden
+// upper limit with a message that did not name it.)
+TEST(StudyJson, AHugeButFiniteStoppingThresholdIsAccepted) {
+    const Study s = fromJson(edited([](Json& d) {
+                                 d["stopping"]["gradient_norm_below"] = 1e308;
+                                 d["stopping"]["relative_step_below"] = 1e308;
+                             }),
+                             ".");
+    EXPECT_EQ(s.gradientTolerance, 1e308);
+    EXPECT_EQ(s.stepTolerance, 1e308);
+}
+
 }  // namespace
 }  // namespace sw::study
+
