@@ -196,7 +196,7 @@ QString LineupEditor::uniqueLabel(const QString& base) const {
 void LineupEditor::addMethod(const std::string& methodId) {
     study::MethodEntry entry;
     entry.method = methodId;
-    entry.label = uniqueLabel(QString::fromStdString(methodId)).toStdString();
+    entry.label = uniqueLabel(methodDisplayName(methodId)).toStdString();
     const int n = static_cast<int>(entries_.size());
     entry.colour = widgets::lineupColour(n).name().toStdString();
     entry.marker = widgets::markerName(widgets::lineupMarker(n)).toStdString();

@@ -2,6 +2,7 @@
 #include "core/expr/expr.h"
 
 #include "app/window/main_window.h"
+#include "app/window/method_names.h"
 
 #include "app/window/derivatives_pane.h"
 #include "app/window/file_dialogs.h"
@@ -93,7 +94,7 @@ study::Study defaultStudy(const Preferences& preferences) {
         if (!solve::findMethod(id)) continue;
         study::MethodEntry e;
         e.method = id;
-        e.label = id;
+        e.label = methodDisplayName(id).toStdString();  // as people say it; the id stays in `method`
         e.colour = widgets::lineupColour(i).name().toStdString();
         e.marker = widgets::markerName(widgets::lineupMarker(i)).toStdString();
         s.methods.push_back(e);
@@ -1110,8 +1111,8 @@ QString MainWindow::shortcutsText() const {
     }
     return tr("<h3>Keyboard shortcuts</h3><table cellspacing=6>%1</table>"
               "<p>On the landscape: drag the start marker (⊕) to move every method's start, click an iterate to "
-              "select it, click elsewhere to start from there; the wheel zooms and a drag pans. On the local model, a "
-              "click on the legend moves it to the next corner.</p>")
+              "select it, click elsewhere to start from there; the wheel zooms and a drag pans. Legends sit under "
+              "their plots; a shortened name shows in full as a tooltip.</p>")
         .arg(rows);
 }
 
@@ -1700,13 +1701,14 @@ bool MainWindow::writeReport(const QString& path, QString* error) {
 
 void MainWindow::writeReportDialog() {
     const QString base = studyPath_.isEmpty() ? QStringLiteral("report") : QFileInfo(studyPath_).completeBaseName() + "-report";
-    const QString folder = studyPath_.isEmpty() ? QDir::homePath() : QFileInfo(studyPath_).absolutePath();
+    const QString folder = studyPath_.isEmpty() ? lastUsedFolder() : QFileInfo(studyPath_).absolutePath();
     const QString html = tr("HTML report, one file (*.html)"), pdf = tr("PDF report (*.pdf)");
     QString filter = html;
     QString path = QFileDialog::getSaveFileName(this, tr("Write review report"), QDir(folder).filePath(base + ".html"),
                                                 html + ";;" + pdf, &filter);
     if (path.isEmpty()) return;
     if (QFileInfo(path).suffix().isEmpty()) path += filter == pdf ? ".pdf" : ".html";
+    rememberFolder(path);
     QString error;
     if (!writeReport(path, &error)) {
         QMessageBox::warning(this, tr("Cannot write the report"), error);

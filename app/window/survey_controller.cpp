@@ -148,7 +148,7 @@ QWidget* SurveyController::buildBasinsPanel(QWidget* parent) {
     basinsOn_->setToolTip(tr("Run each chosen method from every cell of a grid over the plotted plane and colour the "
                              "cell by the critical point the run ends at (saved with the study)"));
     grid_ = new QSpinBox(panel);
-    grid_->setRange(10, 1000);
+    grid_->setRange(1, survey::BasinSettings::kMaxGrid);  // what a study file may hold, so nothing is clamped
     grid_->setValue(200);
     grid_->setPrefix(tr("grid "));
     grid_->setSuffix(tr(" cells"));

@@ -15,6 +15,7 @@
 #include "core/objective/text_file.h"
 #include "core/solve/method.h"
 #include "core/solve/solver.h"
+#include "core/survey/survey.h"  // BasinSettings::kMaxGrid (a header constant)
 
 #include <nlohmann/json.hpp>
 
@@ -658,7 +659,8 @@ void readSurveys(const Json& document, Study& study) {
         ObjectReader basins(in.get("basins"), in.at("basins"), {"grid", "methods"});
         basins.rejectUnknownKeys();
         surveys.basins = true;
-        surveys.basinGrid = static_cast<int>(basins.integer("grid", surveys.basinGrid, 1, 4000));
+        surveys.basinGrid =
+            static_cast<int>(basins.integer("grid", surveys.basinGrid, 1, survey::BasinSettings::kMaxGrid));
         if (basins.has("methods")) {
             const Json& list = basins.get("methods");
             if (!list.is_array())

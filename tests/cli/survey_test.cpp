@@ -168,6 +168,18 @@ TEST(BasinsVerb, HoldsTheOtherVariablesWhereAsked) {
         }
 }
 
+TEST(CriticalVerb, ALauncherWithSeveralProcessesButNoMpiIsRefused) {
+    // This test program installs no MPI process group (as a build without MPI): started by
+    // mpirun -n 2, each process would map the whole box and print it. Refused, exit 2.
+    ::setenv("OMPI_COMM_WORLD_SIZE", "2", 1);
+    const Result r = runInProcess({"critical", "x^2 - y^2", "--box", "x=-1:1,y=-1:1"});
+    ::unsetenv("OMPI_COMM_WORLD_SIZE");
+    EXPECT_EQ(r.code, 2) << r.err;
+    EXPECT_NE(r.err.find("built without MPI"), std::string::npos) << r.err;
+    EXPECT_TRUE(r.out.empty());
+    EXPECT_EQ(runInProcess({"critical", "x^2 - y^2", "--box", "x=-1:1,y=-1:1"}).code, 0);  // one process: fine
+}
+
 TEST(BasinsVerb, BadInputNamesThePlaceAndTheLimit) {
     struct Case {
         std::vector<std::string> args;
