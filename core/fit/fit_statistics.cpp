@@ -235,6 +235,40 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
             c.estimate = c.coefficients.dot(x);
             const double variance = c.coefficients.dot(s.covariance * c.coefficients);
             c.standardError = std::isfinite(variance) ? std::sqrt(std::max(0.0, variance)) : kNaN;
+            // Two parameters that enter only as a product (or a ratio): the local direction is
+            // the differential of a*b (or a/b), which reads differently from every start. Check
+            // the invariance on the loss itself (scalings by 2 and 1/2 leave it unchanged to
+            // rounding) and then name the product with its own estimate and error (delta method:
+            // d(ab) = b da + a db is k times the combination, k = b / coefficient of a).
+            std::vector<Eigen::Index> used;
+            for (int j = 0; j < p; ++j)
+                if (c.coefficients[j] != 0) used.push_back(j);
+            if (used.size() == 2 && x[used[0]] != 0 && x[used[1]] != 0) {
+                const Eigen::Index i = used[0], j = used[1];
+                const double f0 = objective.value(x);
+                auto invariant = [&](double si, double sj) {
+                    for (const double scale : {2.0, 0.5}) {
+                        Vector moved = x;
+                        moved[i] *= std::pow(scale, si);
+                        moved[j] *= std::pow(scale, sj);
+                        const double f = objective.value(moved);
+                        if (!(std::fabs(f - f0) <= 1e-9 * (1 + std::fabs(f0)))) return false;
+                    }
+                    return true;
+                };
+                const std::string ni = s.names[static_cast<std::size_t>(i)], nj = s.names[static_cast<std::size_t>(j)];
+                if (invariant(1, -1)) {  // a*s, b/s: the product
+                    c.form = "product";
+                    c.text = ni + "*" + nj;
+                    c.estimate = x[i] * x[j];
+                    c.standardError *= std::fabs(x[j] / c.coefficients[i]);
+                } else if (invariant(1, 1)) {  // a*s, b*s: the ratio
+                    c.form = "ratio";
+                    c.text = ni + "/" + nj;
+                    c.estimate = x[i] / x[j];
+                    c.standardError *= std::fabs(1 / (x[j] * c.coefficients[i]));
+                }
+            }
             c.lower = c.estimate - s.criticalValue * c.standardError;
             c.upper = c.estimate + s.criticalValue * c.standardError;
             s.determinedCombinations.push_back(std::move(c));
@@ -276,7 +310,9 @@ FitStatistics computeStatistics(const FitObjective& objective, const Vector& x, 
             sentence += " The model does not depend on " + std::string(undetermined.size() == 1 ? "it" : "them") +
                         " here in any way the data can see.";
         } else {
-            sentence += " Near these estimates the data determine only ";
+            bool local = false;
+            for (const DeterminedCombination& c : s.determinedCombinations) local = local || c.form == "linear";
+            sentence += local ? " Near these estimates the data determine only " : " The data determine only ";
             for (std::size_t k = 0; k < s.determinedCombinations.size(); ++k) {
                 const DeterminedCombination& c = s.determinedCombinations[k];
                 sentence += (k ? "; and " : "") + c.text + " = " + num(c.estimate, 6) +

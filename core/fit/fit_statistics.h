@@ -30,6 +30,11 @@ struct DeterminedCombination {
     double estimate = 0;            // coefficients' estimates
     double standardError = 0;       // sqrt(c' Cov c) (NaN when no error estimate exists)
     double lower = 0, upper = 0;    // its confidence interval
+    // "linear": the combination above (exact for a model in a + b; a local statement otherwise).
+    // "product" / "ratio": two parameters the model uses only as a*b (or a/b), checked on the
+    // loss along the whole curve; text, estimate and error are then the product's (or ratio's),
+    // the same from every start. The coefficients stay the local direction.
+    std::string form = "linear";
 };
 
 struct FitStatistics {

@@ -137,6 +137,7 @@ json statisticsToJson(const fit::FitStatistics& st) {
             if (i < c.coefficients.size() && c.coefficients[i] != 0) coefficients[st.names[k]] = c.coefficients[i];
         }
         combinations.push_back({{"text", c.text},
+                                {"form", c.form},  // linear, product or ratio
                                 {"coefficients", coefficients},
                                 {"estimate", number(c.estimate)},
                                 {"standard_error", number(c.standardError)},

@@ -89,7 +89,22 @@ TEST(Identifiability, AProductIsDeterminedLocally) {
     EXPECT_NEAR(c.coefficients[0], std::fabs(b) / largest, 1e-8);
     EXPECT_NEAR(c.coefficients[1], std::fabs(a) / largest, 1e-8);
     EXPECT_EQ(c.coefficients[2], 0.0);
-    EXPECT_NEAR(c.standardError, reduced.statistics.standardErrors[0] / largest, 1e-8);
+    // Named as the product the model uses, with k's estimate and error (to first order), and
+    // the same from another start (it read 0.125*a + b from one start, a + 0.667*b from another).
+    EXPECT_EQ(c.form, "product");
+    EXPECT_EQ(c.text, "a*b");
+    EXPECT_NEAR(c.estimate, reduced.statistics.estimates[0], 1e-8);
+    EXPECT_NEAR(c.standardError, reduced.statistics.standardErrors[0], 1e-6 * reduced.statistics.standardErrors[0]);
+    for (const std::vector<double>& start : {std::vector<double>{4, 0.5, 1}, std::vector<double>{-2, -3, 5}}) {
+        const fit::FitResult other = fitModel(data, "a*b*t + c", {"a", "b", "c"}, start);
+        ASSERT_TRUE(other.converged()) << other.run.message;
+        ASSERT_EQ(other.statistics.determinedCombinations.size(), 1u);
+        const fit::DeterminedCombination& o = other.statistics.determinedCombinations[0];
+        EXPECT_EQ(o.text, "a*b");
+        EXPECT_NEAR(o.estimate, c.estimate, 1e-7);
+        EXPECT_NEAR(o.standardError, c.standardError, 1e-6 * c.standardError);
+    }
+    EXPECT_TRUE(anyWarningContains(st.warnings, "The data determine only a*b = ")) << st.warnings.back();
 }
 
 TEST(Identifiability, AParameterTheModelDoesNotUseHasNoCombination) {
