@@ -386,7 +386,7 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
                              std::to_string(fields.size()) + (fields.size() == 1 ? " cell" : " cells") +
                                  ", but the header (line " + std::to_string(headerLine) + ") has " +
                                  std::to_string(ncols) + " columns; column '" + table.columnNames[missing] +
-                                 "' is missing (the drop-incomplete option skips such rows)");
+                                 "' is missing (to skip such rows: 'skip rows with missing values' in the window, fit --drop-incomplete, or objective.drop_incomplete_rows in a study)");
         }
         for (std::size_t c = 0; c < fields.size() && !incomplete; ++c) {
             std::string_view cell = fields[c].quoted ? trimmed(fields[c].text, sep) : fields[c].text;
@@ -399,7 +399,7 @@ Table parseTable(std::string_view text, const TableReadOptions& options, const s
                 throw TableError(source, line, column, std::string(cell),
                                  "column '" + table.columnNames[c] + "': " +
                                      (cell.empty() ? std::string("empty cell") : "missing value " + shown(cell)) +
-                                     " (the drop-incomplete option skips such rows)");
+                                     " (to skip such rows: 'skip rows with missing values' in the window, fit --drop-incomplete, or objective.drop_incomplete_rows in a study)");
             }
             // The one number rule (core/expr/number_text.h): overflow and underflow are out of range.
             const NumberStatus status = readDecimal(cell, row[c]);

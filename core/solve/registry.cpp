@@ -40,4 +40,25 @@ std::string methodIdList() {
     return text;
 }
 
+std::string stepKindWord(const std::string& methodId, const IterationRecord& record) {
+    const StepKind kind = record.stepKind;
+    if (kind == StepKind::None) return {};
+    if (kind == StepKind::Simplex) {  // the note starts with the move: "reflect; simplex size ..."
+        const std::string note = record.note.text();
+        return note.substr(0, note.find(';'));
+    }
+    if (kind == StepKind::LevenbergMarquardt) return record.damping > 0 ? "damped" : "undamped";
+    const MethodInfo* info = findMethod(methodId);
+    const std::string family = info ? info->family : std::string();
+    const bool restates = methodId == toString(kind) || (kind == StepKind::Gradient && methodId == "gradient-descent") ||
+                          (kind == StepKind::Momentum && (methodId == "momentum" || methodId == "nesterov")) ||
+                          (kind == StepKind::Adaptive && methodId == "adam") ||
+                          (kind == StepKind::Newton && methodId == "damped-newton") ||
+                          (kind == StepKind::QuasiNewton && family == "quasi-newton") ||
+                          (kind == StepKind::ConjugateGradient && family == "conjugate-gradient");
+    if (restates) return {};
+    if (kind == StepKind::Gradient) return "steepest-descent fallback";
+    return toString(kind);
+}
+
 }  // namespace sw::solve

@@ -54,6 +54,12 @@ struct SolverOrError {
 // Every registered method, in display order.
 const std::vector<MethodInfo>& methods();
 const MethodInfo* findMethod(const std::string& id);
+// What kind of step a record took, in a word for a table whose rows already name the method:
+// "" when the kind only restates the method (a BFGS step of BFGS), the simplex move of
+// Nelder-Mead ("reflect"), "damped"/"undamped" for Levenberg-Marquardt, "steepest-descent
+// fallback" for a gradient step a Newton-type method fell back to, else the kind's id. The
+// window's Steps table and the command line's trace both use it.
+std::string stepKindWord(const std::string& methodId, const IterationRecord& record);
 // "a, b, c" list of ids, for error messages.
 std::string methodIdList();
 

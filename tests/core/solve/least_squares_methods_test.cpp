@@ -219,3 +219,28 @@ TEST(LevenbergMarquardt, SplitsTallJacobiansAcrossThreadsWithoutChangingTheAnswe
     EXPECT_TRUE(isConvergence(run.termination)) << run.message;
     EXPECT_TRUE(run.x.isApprox(expected, 1e-11)) << run.x.transpose() << " vs " << expected.transpose();
 }
+
+// One name and one termination id per stopping test (docs/names.md): Levenberg-Marquardt's
+// reduction test and its radius test end runs under their own ids, and neither is the general
+// relative-step test. A problem with a nonzero residual at its minimum, so "zero-residuals"
+// cannot fire. Internal behaviour: no outside reference.
+TEST(LevenbergMarquardt, EachStoppingTestEndsWithItsOwnId) {
+    FunctionObjective f = residualObjective({"x", "y"}, 3, [](const Vector& x, Vector& r, Matrix* j) {
+        r.resize(3);
+        r << 10.0 * (x[1] - x[0] * x[0]), 1.0 - x[0], x[0] * x[1] - 0.5;
+        if (j) {
+            j->resize(3, 2);
+            *j << -20.0 * x[0], 10.0, -1.0, 0.0, x[1], x[0];
+        }
+    });
+    const solve::Run byReduction =
+        solve::solve("levenberg-marquardt", f, point(-1.2, 1.0), {{"reduction_below", "1e-3"}}, fitRules());
+    EXPECT_EQ(std::string(toString(byReduction.termination)), "reduction-below") << byReduction.message;
+    const solve::Run byRadius = solve::solve("levenberg-marquardt", f, point(-1.2, 1.0),
+                                      {{"scaled_radius_below", "0.5"}, {"reduction_below", "0"}}, fitRules());
+    EXPECT_EQ(std::string(toString(byRadius.termination)), "scaled-radius-below") << byRadius.message;
+    for (const solve::Run* run : {&byReduction, &byRadius}) {
+        EXPECT_TRUE(isConvergence(run->termination));
+        EXPECT_NE(std::string(toString(run->termination)), "relative-step-below");
+    }
+}
