@@ -87,26 +87,7 @@ QString endPointLabel(solve::PointKind kind) {
 }
 
 QString stepDescription(const std::string& methodId, const solve::IterationRecord& record) {
-    using solve::StepKind;
-    const StepKind kind = record.stepKind;
-    if (kind == StepKind::None) return {};
-    if (kind == StepKind::Simplex) {  // the note starts with the move: "reflect; simplex size ..."
-        const std::string note = record.note.text();
-        return QString::fromStdString(note.substr(0, note.find(';')));
-    }
-    if (kind == StepKind::LevenbergMarquardt) return record.damping > 0 ? QStringLiteral("damped") : QStringLiteral("undamped");
-    const solve::MethodInfo* info = solve::findMethod(methodId);
-    const std::string family = info ? info->family : std::string();
-    const bool restates = methodId == solve::toString(kind) ||
-                          (kind == StepKind::Gradient && methodId == "gradient-descent") ||
-                          (kind == StepKind::Momentum && (methodId == "momentum" || methodId == "nesterov")) ||
-                          (kind == StepKind::Adaptive && methodId == "adam") ||
-                          (kind == StepKind::Newton && methodId == "damped-newton") ||
-                          (kind == StepKind::QuasiNewton && family == "quasi-newton") ||
-                          (kind == StepKind::ConjugateGradient && family == "conjugate-gradient");
-    if (restates) return {};
-    if (kind == StepKind::Gradient) return QStringLiteral("steepest-descent fallback");
-    return QString::fromLatin1(solve::toString(kind));
+    return QString::fromStdString(solve::stepKindWord(methodId, record));
 }
 
 bool isDarkPalette(const QPalette& palette) { return palette.color(QPalette::Window).lightness() < 128; }

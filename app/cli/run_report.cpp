@@ -76,7 +76,9 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
             for (Eigen::Index i = 0; i < n; ++i) row.push_back(num(r.x[i], 8));
         row.push_back(num(r.value, 10));
         row.push_back(num(r.gradientNorm, 3));
-        row.push_back(r.stepKind == solve::StepKind::None ? "-" : solve::toString(r.stepKind));
+        // The kind of step when it says more than the method's name (the window's Steps column).
+        const std::string step = solve::stepKindWord(run.methodId, r);
+        row.push_back(step.empty() ? "-" : step);
         row.push_back(std::isnan(r.stepLength) ? "-" : num(r.stepLength, 3));
         row.push_back(std::isnan(r.stepNorm) ? "-" : num(r.stepNorm, 3));
         row.push_back(countsText(r.evaluations));

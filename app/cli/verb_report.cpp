@@ -11,6 +11,7 @@
 #include "core/study/study.h"
 
 #include <cerrno>
+#include <csignal>
 #include <cstdio>
 #include <cstring>
 #include <filesystem>
@@ -68,6 +69,18 @@ std::string lowered(std::string s) {
 // The report file, written whole or not at all: a temporary file beside the target (so the
 // rename stays on one file system), renamed over the target by commit(). The destructor
 // removes the temporary file when commit() was never reached.
+// The temporary file of the report being written, for the signal handler below (a plain
+// buffer: only async-signal-safe calls may touch it there).
+char pendingTemporary[4096] = {0};
+
+// Interrupt, terminate or hang-up while a report is being made: remove its temporary file,
+// then end as the signal would have (so the exit status still says which signal).
+void removeTemporaryAndStop(int signal) {
+    if (pendingTemporary[0] != '\0') ::unlink(pendingTemporary);
+    std::signal(signal, SIG_DFL);
+    std::raise(signal);
+}
+
 class ReportFile {
 public:
     explicit ReportFile(const std::string& target) : target_(target) {
@@ -85,6 +98,10 @@ public:
             throw UsageError("-o " + target + ": cannot write in " + folder.string() + ": " + std::strerror(error));
         }
         temporary_ = name.data();
+        if (temporary_.size() < sizeof pendingTemporary) {
+            std::memcpy(pendingTemporary, temporary_.c_str(), temporary_.size() + 1);
+            for (const int s : {SIGINT, SIGTERM, SIGHUP}) std::signal(s, removeTemporaryAndStop);
+        }
         // mkstemp makes the file private (0600); a report is an ordinary document (0666 less umask).
         const mode_t mask = ::umask(0);
         ::umask(mask);
@@ -93,6 +110,7 @@ public:
     ReportFile(const ReportFile&) = delete;
     ReportFile& operator=(const ReportFile&) = delete;
     ~ReportFile() {
+        forget();
         if (fd_ >= 0) ::close(fd_);
         if (!temporary_.empty()) ::unlink(temporary_.c_str());
     }
@@ -110,7 +128,14 @@ public:
         fd_ = -1;
         if (closed != 0) fail("cannot write " + target_);
         if (::rename(temporary_.c_str(), target_.c_str()) != 0) fail("cannot replace " + target_);
+        forget();
         temporary_.clear();
+    }
+
+    // The signal handler no longer has anything to remove.
+    static void forget() {
+        for (const int s : {SIGINT, SIGTERM, SIGHUP}) std::signal(s, SIG_DFL);
+        pendingTemporary[0] = '\0';
     }
 
 private:

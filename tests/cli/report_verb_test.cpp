@@ -7,6 +7,7 @@
 
 #include <gtest/gtest.h>
 
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <random>
@@ -94,6 +95,25 @@ TEST_F(ReportVerb, TheIterationLimitAndTheExactCommandReachTheReport) {
     EXPECT_NE(html.find("saddlewise report " + sample_ + " --output " + file("short.html") + " --max-iterations 2"),
               std::string::npos);
     EXPECT_NE(html.find("iteration-limit"), std::string::npos);
+}
+
+TEST_F(ReportVerb, AReportStoppedBySignalLeavesNoFileBehind) {
+    // The two-valve study with a 2000 x 2000 basin grid takes many seconds; TERM after one
+    // second arrives while the report is being made. The temporary file must go with it.
+    std::ifstream in(sample_);
+    std::stringstream text;
+    text << in.rdbuf();
+    std::string study = text.str();
+    const std::string grid = "\"grid\": 200";
+    ASSERT_NE(study.find(grid), std::string::npos);
+    study.replace(study.find(grid), grid.size(), "\"grid\": 2000");
+    std::ofstream(file("slow.json")) << study;
+    const std::string command = "cd '" + folder_.string() + "' && timeout -s TERM 1 '" + std::string(SW_EXECUTABLE) +
+                                "' report slow.json -o out.html >/dev/null 2>&1";
+    const int status = std::system(command.c_str());
+    EXPECT_NE(status, 0) << "the report finished within a second; the test needs a slower study";
+    for (const auto& entry : fs::directory_iterator(folder_))
+        EXPECT_EQ(entry.path().filename(), "slow.json") << "left behind: " << entry.path();
 }
 
 TEST(CommandLine, VersionNamesTheBuild) {
