@@ -155,6 +155,20 @@ LandscapePlan sampleLandscape(const report::StudyRuns& runs, const json& results
     return plan;
 }
 
+// One figure: the view drawn headless at the report's width and `height`, with its title and
+// caption; nothing when the view could not be drawn.
+static void addFigure(std::vector<report::Figure>& figures, widgets::PlotView& view, std::string id, std::string title,
+                      std::string caption, int height) {
+    report::Figure f;
+    f.id = std::move(id);
+    f.title = std::move(title);
+    f.caption = std::move(caption);
+    f.svg = svgOf(view, kWidth, height);
+    f.width = kWidth;
+    f.height = height;
+    if (!f.svg.empty()) figures.push_back(std::move(f));
+}
+
 std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const json& results, const LandscapePlan& plan,
                                         std::string* note) {
     std::vector<report::Figure> figures;
@@ -172,12 +186,10 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
         view.setField(plan.field);
         view.setStart(study.start());
         view.setSnapshot(snapshot);
-        report::Figure f;
-        f.id = "landscape";
         const std::string xName = variables[static_cast<std::size_t>(plan.xVariable)].name;
         const std::string yName = variables[static_cast<std::size_t>(plan.yVariable)].name;
-        f.title = "Landscape: f over " + xName + " and " + yName + ", with every method's path";
-        f.caption = "The objective over the study's box (" + xName + " from " + report::numberText(plan.box.xMin, 6) +
+        const std::string title = "Landscape: f over " + xName + " and " + yName + ", with every method's path";
+        std::string caption = "The objective over the study's box (" + xName + " from " + report::numberText(plan.box.xMin, 6) +
                     " to " + report::numberText(plan.box.xMax, 6) + ", " + yName + " from " +
                     report::numberText(plan.box.yMin, 6) + " to " + report::numberText(plan.box.yMax, 6) + "), " +
                     (study.view.logColour ? "coloured by log10 of f above its lowest sampled value" : "coloured by f") +
@@ -186,17 +198,14 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
                     "diamond: degenerate; hollow circle: stopped before converging).";
         if (variables.size() > 2) {
             const std::string held = heldText(runs, plan, results);
-            f.caption += " The other " + std::string(variables.size() == 3 ? "variable is" : "variables are") + " held at " +
+            caption += " The other " + std::string(variables.size() == 3 ? "variable is" : "variables are") + " held at " +
                          held +
                          (plan.heldRun >= 0 ? " (where " + runs.runs[static_cast<std::size_t>(plan.heldRun)].label +
                                                   " ended); paths are projected onto this plane, so a path may cross "
                                                   "contours it does not cross in the full space."
                                             : " (the start).");
         }
-        f.svg = svgOf(view, kWidth, kLandscapeHeight);
-        f.width = kWidth;
-        f.height = kLandscapeHeight;
-        if (!f.svg.empty()) figures.push_back(std::move(f));
+        addFigure(figures, view, "landscape", title, caption, kLandscapeHeight);
     } else {
         missing = variables.size() < 2 ? "The landscape needs two variables to plot; this study has one."
                                        : "The landscape could not be sampled over the study's box.";
@@ -206,32 +215,22 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
         widgets::ProgressView view;
         view.setPalette(palette);
         view.setSnapshot(snapshot);
-        report::Figure f;
-        f.id = "progress";
-        f.title = "Progress: distance to the best value and gradient norm per iteration";
-        f.caption = "Top: f − f_best per iteration on a log scale, f_best being the lowest final value of any method "
+        addFigure(figures, view, "progress", "Progress: distance to the best value and gradient norm per iteration",
+                  "Top: f − f_best per iteration on a log scale, f_best being the lowest final value of any method "
                     "(a method that reaches it drops to the floor of the scale). Bottom: the gradient norm |∇f|. A "
-                    "straight slope is linear convergence; a curve bending down is faster than linear.";
-        f.svg = svgOf(view, kWidth, kPanelHeight);
-        f.width = kWidth;
-        f.height = kPanelHeight;
-        if (!f.svg.empty()) figures.push_back(std::move(f));
+                    "straight slope is linear convergence; a curve bending down is faster than linear.",
+                  kPanelHeight);
     }
     {
         widgets::CurvatureView view;
         view.setPalette(palette);
         view.setSnapshot(snapshot);
-        report::Figure f;
-        f.id = "curvature";
-        f.title = "Curvature: the Hessian's eigenvalues and condition number along each path";
-        f.caption = "Top: every eigenvalue of the Hessian at each iterate, on a symmetric log scale so signs show; "
+        addFigure(figures, view, "curvature", "Curvature: the Hessian's eigenvalues and condition number along each path",
+                  "Top: every eigenvalue of the Hessian at each iterate, on a symmetric log scale so signs show; "
                     "iterates with negative curvature are filled markers on the shaded band below zero. Bottom: the "
                     "condition number (largest over smallest eigenvalue magnitude). Methods that use no derivatives "
-                    "still show the curvature at their iterates.";
-        f.svg = svgOf(view, kWidth, kCurvatureHeight);
-        f.width = kWidth;
-        f.height = kCurvatureHeight;
-        if (!f.svg.empty()) figures.push_back(std::move(f));
+                    "still show the curvature at their iterates.",
+                  kCurvatureHeight);
     }
     // The surveys the study asks for (runStudySurveys), drawn by the window's own views.
     if (runs.critical && plan.field && variables.size() == 2) {
@@ -242,32 +241,21 @@ std::vector<report::Figure> drawFigures(const report::StudyRuns& runs, const jso
         view.setField(plan.field);
         widgets::CriticalOverlay overlay(view.plot());
         overlay.setMap(runs.critical, plan.xVariable, plan.yVariable);
-        report::Figure f;
-        f.id = "critical-map";
-        f.title = "Critical-point map over the landscape";
-        f.caption = "Every critical point found in the box, marked by kind: ring with a dot: local minimum; square with "
+        addFigure(figures, view, "critical-map", "Critical-point map over the landscape",
+                  "Every critical point found in the box, marked by kind: ring with a dot: local minimum; square with "
                     "a cross: saddle; upward triangle: local maximum; diamond: degenerate. The table above lists them "
-                    "with their values and Hessian eigenvalues.";
-        f.svg = svgOf(view, kWidth, kLandscapeHeight);
-        f.width = kWidth;
-        f.height = kLandscapeHeight;
-        if (!f.svg.empty()) figures.push_back(std::move(f));
+                    "with their values and Hessian eigenvalues.",
+                  kLandscapeHeight);
     }
     if (runs.basins && !runs.basins->maps.empty()) {
         widgets::BasinsView view;
         view.setPalette(palette);
         view.setSurvey(runs.basins);
-        report::Figure f;
-        f.id = "basins-maps";
-        f.title = "Basins of attraction, one map per method";
-        f.caption = "Each cell is coloured by the critical point its method's run from the cell's centre ends at, "
-                    "darker for more iterations; cells whose run hit a limit, diverged or failed are shown apart (see "
-                    "the legend). Critical points are marked as on the map above.";
-        const int height = runs.basins->maps.size() > 1 ? 420 : kPanelHeight;
-        f.svg = svgOf(view, kWidth, height);
-        f.width = kWidth;
-        f.height = height;
-        if (!f.svg.empty()) figures.push_back(std::move(f));
+        addFigure(figures, view, "basins-maps", "Basins of attraction, one map per method",
+                  "Each cell is coloured by the critical point its method's run from the cell's centre ends at, "
+                  "darker for more iterations; cells whose run hit a limit, diverged or failed are shown apart (see "
+                  "the legend). Critical points are marked as on the map above.",
+                  runs.basins->maps.size() > 1 ? 420 : kPanelHeight);
     }
     if (note) *note = missing;
     return figures;
