@@ -1,6 +1,7 @@
 // (Include order: core headers first, then Qt.)
 #include "app/window/survey_controller.h"
 
+#include "core/report/study_run.h"
 #include "core/solve/solver.h"
 #include "widgets/basins_view.h"
 #include "widgets/critical_overlay.h"
@@ -287,21 +288,7 @@ void SurveyController::studyChanged(const study::Study& study, std::shared_ptr<c
     requestBasins();
 }
 
-survey::Region SurveyController::region() const {
-    survey::Region r;
-    const int n = static_cast<int>(study_.variables.size());
-    r.lower = Vector(n);
-    r.upper = Vector(n);
-    r.held = Vector(n);
-    for (int i = 0; i < n; ++i) {
-        r.lower[i] = study_.variables[static_cast<std::size_t>(i)].lower;
-        r.upper[i] = study_.variables[static_cast<std::size_t>(i)].upper;
-        r.held[i] = study_.variables[static_cast<std::size_t>(i)].start;
-    }
-    r.xVariable = study_.view.plotX;
-    r.yVariable = study_.view.plotY;
-    return r;
-}
+survey::Region SurveyController::region() const { return report::surveyRegion(study_); }
 
 void SurveyController::requestCritical() {
     if (!criticalOn_->isChecked() || !objective_) return;

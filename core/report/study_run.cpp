@@ -71,12 +71,8 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
     return result;
 }
 
-void runStudySurveys(StudyRuns& runs, const RunControl& control) {
-    const study::Study& study = runs.study;
-    if (!study.surveys || (!study.surveys->critical && !study.surveys->basins) || !runs.objective) return;
-    const study::SurveySettings& wanted = *study.surveys;
+survey::Region surveyRegion(const study::Study& study) {
     const int n = static_cast<int>(study.variables.size());
-    std::vector<std::string> notes;
     survey::Region region;
     region.lower = Vector(n);
     region.upper = Vector(n);
@@ -89,6 +85,15 @@ void runStudySurveys(StudyRuns& runs, const RunControl& control) {
     }
     region.xVariable = n >= 2 ? study.view.plotX : 0;
     region.yVariable = n >= 2 ? study.view.plotY : 0;
+    return region;
+}
+
+void runStudySurveys(StudyRuns& runs, const RunControl& control) {
+    const study::Study& study = runs.study;
+    if (!study.surveys || (!study.surveys->critical && !study.surveys->basins) || !runs.objective) return;
+    const study::SurveySettings& wanted = *study.surveys;
+    std::vector<std::string> notes;
+    const survey::Region region = surveyRegion(study);
     survey::CriticalSettings criticalSettings;
     criticalSettings.starts = wanted.criticalStarts;
     criticalSettings.signChangeGrid = wanted.signChangeGrid;

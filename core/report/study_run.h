@@ -59,6 +59,8 @@ StudyRuns runStudy(study::Study study, std::string studyPath, std::shared_ptr<co
 // stopping rules. A survey that cannot be made (one variable, a box without interior, a method
 // the objective cannot serve) is left out with its reason in runs.surveyNote. Cancellable.
 void runStudySurveys(StudyRuns& runs, const RunControl& control = {});
+// The surveys' region of a study, as above (the window's survey panels use it too).
+survey::Region surveyRegion(const study::Study& study);
 
 // {"study": {...}, "runs": [...]}, exactly what `saddlewise run --json` prints:
 //   study: file, title, objective, mode, variables [{name, start, plot_from, plot_to}], start {name: value},
