@@ -34,7 +34,26 @@ function(sw_precompile target kind)
   elseif(kind STREQUAL "qt")
     list(APPEND headers <QtWidgets> <qcustomplot.h>)
   endif()
-  target_precompile_headers(${target} PRIVATE ${headers})
+  # One precompiled header per kind of target, not one per target: each Qt header image is
+  # about 400 MB, and 42 of them filled 10 GB of a CI disk. The first target of a kind builds
+  # it and the others reuse it (REUSE_FROM). GCC takes a header only when the code-generation
+  # flags match, so the key also holds the target type (libraries -fPIC, executables -fPIE)
+  # and whether Qt is linked directly (Qt turns position-independent code on); with
+  # -Winvalid-pch and -Werror a mismatch would fail the build rather than go unnoticed.
+  get_target_property(type ${target} TYPE)
+  get_target_property(links ${target} LINK_LIBRARIES)
+  set(with_qt "")
+  if(links MATCHES "Qt6::|sw_window|sw_widgets|sw_report_gui")
+    set(with_qt "_qt")
+  endif()
+  set(key "SW_PCH_${kind}_${type}${with_qt}")
+  get_property(host GLOBAL PROPERTY ${key})
+  if(host)
+    target_precompile_headers(${target} REUSE_FROM ${host})
+  else()
+    set_property(GLOBAL PROPERTY ${key} ${target})
+    target_precompile_headers(${target} PRIVATE ${headers})
+  endif()
 endfunction()
 
 # sw_gtest(NAME DIR DEPS...): one GoogleTest executable of every *_test.cpp in DIR,
