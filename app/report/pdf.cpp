@@ -21,6 +21,9 @@
 #include <algorithm>
 #include <cmath>
 #include <functional>
+#include <limits>
+#include <memory>
+#include <set>
 #include <stdexcept>
 
 namespace sw::reportgui {
@@ -50,6 +53,12 @@ constexpr int kSvgProperty = QTextFormat::UserProperty + 1;
 constexpr int kSizeProperty = QTextFormat::UserProperty + 2;
 constexpr int kHeadingProperty = QTextFormat::UserProperty + 3;  // on heading blocks: keep with what follows
 constexpr int kGroupProperty = QTextFormat::UserProperty + 4;    // blocks with one group number stay on one page
+constexpr int kTableProperty = QTextFormat::UserProperty + 5;    // on a data table: its ordinal in the document
+constexpr int kRowOffsetProperty = QTextFormat::UserProperty + 6;  // and the data row its second row shows
+
+// Where a data table is cut so that a row does not straddle two pages: (table ordinal, data
+// row that starts the next piece). See keepRowsWhole().
+using TableCuts = std::set<std::pair<int, int>>;
 
 // Draws a figure's SVG into the text layout as vectors.
 class SvgFigure : public QObject, public QTextObjectInterface {
@@ -113,8 +122,9 @@ QTextBlockFormat blockFormat(double top, double bottom) {
 
 class Builder {
 public:
-    Builder(QTextDocument& document, QSizeF content)
-        : document_(document), cursor_(&document), width_(content.width()), height_(content.height()), styles_(makeStyles()) {}
+    Builder(QTextDocument& document, QSizeF content, const TableCuts& cuts)
+        : document_(document), cursor_(&document), width_(content.width()), height_(content.height()), styles_(makeStyles()),
+          cuts_(cuts) {}
 
     void build(const report::Document& d) {
         // The first block exists already; it becomes the header.
@@ -301,15 +311,41 @@ private:
         return widths;
     }
 
+    // A data table, in pieces where keepRowsWhole() asked for a cut: each piece repeats the
+    // header and starts a page.
     void table(const report::Table& data) {
         const int columns = static_cast<int>(data.header.size());
         if (columns == 0) return;
-        const int rows = static_cast<int>(data.rows.size()) + 1;
+        const int ordinal = tables_++;
+        const int rows = static_cast<int>(data.rows.size());
+        std::vector<int> bounds{0};
+        bool breakFirst = false;
+        for (auto it = cuts_.lower_bound({ordinal, 0}); it != cuts_.end() && it->first == ordinal; ++it) {
+            if (it->second == 0) breakFirst = true;
+            else if (it->second < rows) bounds.push_back(it->second);
+        }
+        bounds.push_back(rows);
+        const QVector<QTextLength> widths = columnWidths(data, data.compact ? styles_.small : styles_.body,
+                                                         data.compact ? styles_.smallCode : styles_.code);
+        for (std::size_t piece = 0; piece + 1 < bounds.size(); ++piece)
+            tablePiece(data, ordinal, bounds[piece], bounds[piece + 1], widths, piece > 0 || breakFirst);
+    }
+
+    void tablePiece(const report::Table& data, int ordinal, int first, int last, const QVector<QTextLength>& widths,
+                    bool newPage) {
+        const int columns = static_cast<int>(data.header.size());
+        const int rows = last - first + 1;
         const QFont& font = data.compact ? styles_.small : styles_.body;
         const QFont& codeFont = data.compact ? styles_.smallCode : styles_.code;
         QTextTableFormat f = tableFormat(false);
         f.setHeaderRowCount(1);
-        f.setColumnWidthConstraints(columnWidths(data, font, codeFont));
+        f.setColumnWidthConstraints(widths);
+        f.setProperty(kTableProperty, ordinal);
+        f.setProperty(kRowOffsetProperty, first);
+        if (newPage) {
+            f.setPageBreakPolicy(QTextFormat::PageBreak_AlwaysBefore);
+            f.setTopMargin(0);
+        }
         QTextTable* t = cursor_.insertTable(rows, columns, f);
         std::vector<bool> numeric(static_cast<std::size_t>(columns), !data.rows.empty());
         for (const auto& row : data.rows)
@@ -333,7 +369,8 @@ private:
             cursor_.insertText(QString::fromStdString(data.header[static_cast<std::size_t>(c)]), charFormat(bold));
         }
         for (int r = 1; r < rows; ++r) {
-            const auto& row = data.rows[static_cast<std::size_t>(r - 1)];
+            const int dataRow = first + r - 1;
+            const auto& row = data.rows[static_cast<std::size_t>(dataRow)];
             for (int c = 0; c < columns && c < static_cast<int>(row.size()); ++c) {
                 const report::Cell& value = row[static_cast<std::size_t>(c)];
                 QTextTableCell cell = t->cellAt(r, c);
@@ -342,7 +379,7 @@ private:
                 cf.setBottomBorderBrush(kRule);
                 cf.setBottomBorderStyle(QTextFrameFormat::BorderStyle_Solid);
                 cf.setRightPadding(8);
-                if (r % 2 == 0) cf.setBackground(QColor(0xfa, 0xfb, 0xfc));
+                if (dataRow % 2 == 1) cf.setBackground(QColor(0xfa, 0xfb, 0xfc));
                 cell.setFormat(cf);
                 cursor_ = cell.firstCursorPosition();
                 QTextBlockFormat bf = cursor_.blockFormat();
@@ -428,6 +465,8 @@ private:
     Styles styles_;
     bool first_ = true;
     int groups_ = 0;
+    const TableCuts& cuts_;
+    int tables_ = 0;
 };
 
 // Qt's layout moves a line that does not fit to the next page, but it knows nothing of what
@@ -496,22 +535,59 @@ void keepTogether(QTextDocument& document, double pageHeight) {
     }
 }
 
-}  // namespace
-
-std::string writePdf(const report::Document& d) {
-    QBuffer buffer;
-    buffer.open(QIODevice::WriteOnly);
-    QPdfWriter writer(&buffer);
+// A4 with the report's margins; returns the size of a page's text area.
+QSizeF setUpPages(QPdfWriter& writer) {
     writer.setResolution(kDpi);
     writer.setPageLayout(QPageLayout(QPageSize(QPageSize::A4), QPageLayout::Portrait,
                                      QMarginsF(kMarginMm, kMarginMm, kMarginMm, kBottomMarginMm), QPageLayout::Millimeter));
-    writer.setTitle(QString::fromStdString(d.title));
-    writer.setCreator(QStringLiteral("Saddlewise"));
-
     const QRectF page = writer.pageLayout().paintRectPixels(kDpi);
-    const QSizeF content(page.width(), page.height());
+    return {page.width(), page.height()};
+}
 
+// Every data row of the laid-out document with the pages its top and bottom fall on.
+struct RowPlace {
+    int table = 0, row = 0;  // table ordinal, data row
+    int firstPage = 0, lastPage = 0;
+    double height = 0;
+};
+std::vector<RowPlace> rowPlaces(QTextDocument& document, double pageHeight) {
+    QAbstractTextDocumentLayout* layout = document.documentLayout();
+    std::vector<RowPlace> places;
+    std::function<void(QTextFrame*)> visit = [&](QTextFrame* frame) {
+        for (QTextFrame* child : frame->childFrames()) {
+            auto* table = qobject_cast<QTextTable*>(child);
+            if (!table || !table->format().hasProperty(kTableProperty)) {
+                visit(child);
+                continue;
+            }
+            const int ordinal = table->format().intProperty(kTableProperty);
+            const int offset = table->format().intProperty(kRowOffsetProperty);
+            for (int r = 1; r < table->rows(); ++r) {
+                double top = std::numeric_limits<double>::infinity(), bottom = -top;
+                for (int c = 0; c < table->columns(); ++c) {
+                    const QTextTableCell cell = table->cellAt(r, c);
+                    top = std::min(top, layout->blockBoundingRect(cell.firstCursorPosition().block()).top());
+                    bottom = std::max(bottom, layout->blockBoundingRect(cell.lastCursorPosition().block()).bottom());
+                }
+                if (!(bottom > top)) continue;
+                places.push_back({ordinal, offset + r - 1, static_cast<int>(std::floor(top / pageHeight)),
+                                  static_cast<int>(std::floor((bottom - 1) / pageHeight)), bottom - top});
+            }
+        }
+    };
+    visit(document.rootFrame());
+    return places;
+}
+
+// The report laid out on pages: the document and the figure handler it draws with.
+struct LaidOut {
+    SvgFigure figures;
     QTextDocument document;
+};
+
+std::unique_ptr<LaidOut> layOut(const report::Document& d, QPdfWriter& writer, QSizeF content, const TableCuts& cuts) {
+    auto laid = std::make_unique<LaidOut>();
+    QTextDocument& document = laid->document;
     document.documentLayout()->setPaintDevice(&writer);
     document.setDocumentMargin(0);
     document.setUseDesignMetrics(true);
@@ -519,19 +595,64 @@ std::string writePdf(const report::Document& d) {
     option.setWrapMode(QTextOption::WrapAtWordBoundaryOrAnywhere);
     document.setDefaultTextOption(option);
     document.setDefaultFont(makeStyles().body);
-    SvgFigure figures;
-    document.documentLayout()->registerHandler(kFigureObject, &figures);
+    document.documentLayout()->registerHandler(kFigureObject, &laid->figures);
     document.setPageSize(content);
-
     {
         // One edit block: Qt lays the document out once at its end, not after every cell (which
         // made building the tables quadratic).
         QTextCursor edit(&document);
         edit.beginEditBlock();
-        Builder(document, content).build(d);
+        Builder(document, content, cuts).build(d);
         edit.endEditBlock();
     }
     keepTogether(document, content.height());
+    return laid;
+}
+
+// Qt moves a table row to the next page only when none of its cells starts on this one; a row
+// whose first line fits is split, its other lines under the repeated header overleaf. So: lay
+// out, find the first row that straddles two pages, cut its table before that row (the piece
+// after the cut starts a page with the header again), lay out again; until no row straddles.
+// A row taller than half a page stays split (it could not be kept whole anyway).
+std::unique_ptr<LaidOut> keepRowsWhole(const report::Document& d, QPdfWriter& writer, QSizeF content) {
+    TableCuts cuts;
+    std::unique_ptr<LaidOut> laid = layOut(d, writer, content, cuts);
+    for (int round = 0; round < 100; ++round) {
+        bool cut = false;
+        for (const RowPlace& place : rowPlaces(laid->document, content.height())) {
+            if (place.firstPage == place.lastPage || place.height > 0.5 * content.height()) continue;
+            cut = cuts.insert({place.table, place.row}).second;
+            break;
+        }
+        if (!cut) break;
+        laid = layOut(d, writer, content, cuts);
+    }
+    return laid;
+}
+
+}  // namespace
+
+std::vector<std::pair<int, int>> pdfTableRowPages(const report::Document& d) {
+    QBuffer buffer;
+    buffer.open(QIODevice::WriteOnly);
+    QPdfWriter writer(&buffer);
+    const QSizeF content = setUpPages(writer);
+    const std::unique_ptr<LaidOut> laid = keepRowsWhole(d, writer, content);
+    std::vector<std::pair<int, int>> pages;
+    for (const RowPlace& place : rowPlaces(laid->document, content.height())) pages.emplace_back(place.firstPage, place.lastPage);
+    return pages;
+}
+
+std::string writePdf(const report::Document& d) {
+    QBuffer buffer;
+    buffer.open(QIODevice::WriteOnly);
+    QPdfWriter writer(&buffer);
+    const QSizeF content = setUpPages(writer);
+    writer.setTitle(QString::fromStdString(d.title));
+    writer.setCreator(QStringLiteral("Saddlewise"));
+
+    const std::unique_ptr<LaidOut> laid = keepRowsWhole(d, writer, content);
+    QTextDocument& document = laid->document;
 
     QPainter painter;
     if (!painter.begin(&writer)) throw std::runtime_error("Qt could not start the PDF");

@@ -3,6 +3,7 @@
 // name, with the numbers `run --json` prints for the same study, light figures even in the
 // dark appearance, a note when the study has unsaved changes, and clear outcomes for a
 // cancelled report, a missing data file and a bad name.
+#include "app/report/pdf.h"
 #include "app/window/job_runner.h"
 #include "app/window/main_window.h"
 #include "app/window/preferences.h"
@@ -196,6 +197,36 @@ private slots:
         QCOMPARE(outcome, int(ReportWriter::Failed));
         QVERIFY2(message.contains("objective.data") && message.contains("missing"), qPrintable(message));
         QVERIFY(!QFile::exists(folder.filePath("review.html")));
+    }
+
+    // A long table whose rows take one to five lines: Qt alone splits a row whose first line
+    // fits at a page's foot; the PDF cuts the table before such a row instead, so every row
+    // lies on one page, and every row is there once, in order.
+    void noTableRowStraddlesTwoPagesOfThePdf() {
+        sw::report::Document document;
+        document.title = "Rows";
+        sw::report::Table table;
+        table.header = {"row", "note", "value"};
+        const std::string words = "a remark long enough to wrap over several lines of the table's middle column, ";
+        for (int r = 0; r < 160; ++r) {
+            std::string note;
+            for (int k = 0; k < 1 + (r * 7) % 5; ++k) note += words;
+            table.rows.push_back({sw::report::numberCell(std::to_string(r)), sw::report::cell(note),
+                                  sw::report::numberCell("1.5")});
+        }
+        document.sections.push_back({"rows", "Rows", {sw::report::paragraph("A long table follows."), sw::report::table(table)}});
+        const std::vector<std::pair<int, int>> pages = sw::reportgui::pdfTableRowPages(document);
+        QCOMPARE(int(pages.size()), 160);
+        int lastPage = 0;
+        for (std::size_t r = 0; r < pages.size(); ++r) {
+            QVERIFY2(pages[r].first == pages[r].second, qPrintable(QString("row %1 spans pages %2 to %3")
+                                                                     .arg(r).arg(pages[r].first).arg(pages[r].second)));
+            QVERIFY(pages[r].first >= lastPage);
+            lastPage = pages[r].first;
+        }
+        QVERIFY2(lastPage >= 5, "the table fills several pages");
+        // The PDF itself is written from the same layout.
+        QVERIFY(sw::reportgui::writePdf(document).size() > 1000);
     }
 };
 
