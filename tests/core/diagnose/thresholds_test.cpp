@@ -46,6 +46,22 @@ IterationRecord record(int k) {
     return r;
 }
 
+// The run's end is its last record, and it stopped at its iteration limit.
+solve::Run ended(solve::Run run) {
+    run.x = run.trace.back().x;
+    run.value = run.trace.back().value;
+    run.gradientNorm = run.trace.back().gradientNorm;
+    return run;
+}
+
+// One rule applied to a hand-built run, with the facts the diagnosis would gather.
+std::optional<Finding> applied(std::optional<Finding> (*rule)(const RunFacts&), const solve::Run& run) {
+    solve::StoppingRules rules;
+    rules.maxIterations = run.iterations();
+    const RunSetup setup{run.methodId, {}, rules, run.trace.front().x};
+    return rule(gatherFacts(run, bowl(), setup));
+}
+
 // A run of `records` line-search steps that ended at the iteration limit: every search accepted
 // alpha = 1 on its first trial except the last `searches`, which needed `trials` trials each and
 // ended on `lastAlpha`.
@@ -68,18 +84,10 @@ solve::Run lineSearchRun(int records, int searches, int trials, double lastAlpha
         }
         run.trace.push_back(r);
     }
-    run.x = run.trace.back().x;
-    run.value = run.trace.back().value;
-    run.gradientNorm = 1;
-    return run;
+    return ended(run);
 }
 
-std::optional<Finding> lineSearchFinding(const solve::Run& run) {
-    solve::StoppingRules rules;
-    rules.maxIterations = run.iterations();
-    const RunSetup setup{run.methodId, {}, rules, run.trace.front().x};
-    return ruleLineSearchCollapse(gatherFacts(run, bowl(), setup));
-}
+std::optional<Finding> lineSearchFinding(const solve::Run& run) { return applied(ruleLineSearchCollapse, run); }
 
 TEST(LineSearchCollapseThreshold, FiresWhenEnoughSearchesNeedManyTrialsAndTheStepShrankToItsBound) {
     using namespace thresholds;
@@ -134,18 +142,10 @@ solve::Run trustRegionRun(int records, double lastRadius, int rejected) {
         r.accepted = k >= records - rejected ? false : true;
         run.trace.push_back(r);
     }
-    run.x = run.trace.back().x;
-    run.value = run.trace.back().value;
-    run.gradientNorm = 1;
-    return run;
+    return ended(run);
 }
 
-std::optional<Finding> radiusFinding(const solve::Run& run) {
-    solve::StoppingRules rules;
-    rules.maxIterations = run.iterations();
-    const RunSetup setup{run.methodId, {}, rules, run.trace.front().x};
-    return ruleRadiusCollapse(gatherFacts(run, bowl(), setup));
-}
+std::optional<Finding> radiusFinding(const solve::Run& run) { return applied(ruleRadiusCollapse, run); }
 
 TEST(RadiusCollapseThreshold, FiresWhenTheRadiusShrankToItsBoundWithHalfTheStepsRejected) {
     // 20 records, all in the window; 10 of the 20 steps rejected (exactly half), the last radius
@@ -184,47 +184,52 @@ TEST(RadiusCollapseThreshold, CubicRegularisationCountsOneOverSigmaAsItsRadius) 
 
 // ---- budget-exhausted: the estimate of the iterations still needed, checked against a rerun.
 
-TEST(BudgetExhaustedEstimate, MatchesARerunWithoutTheLimitOnALinearlyConvergingRun) {
-    // Fixed-step gradient descent on a quadratic converges linearly with the factor
-    // max |1 - alpha lambda_i| per iteration (Nocedal & Wright 2006, sec. 3.3; here
-    // lambda = 1 and 10, alpha = 0.15: factors 0.85 and 0.5, so 0.85 rules after a few steps).
-    const FormulaObjective f("0.5*x^2 + 5*y^2", {"x", "y"});
-    const solve::OptionValues options{{"line_search", "fixed"}, {"step_size", "0.15"}};
+// Fixed-step gradient descent on a quadratic converges linearly with the factor
+// max |1 - alpha lambda_i| per iteration (Nocedal & Wright 2006, sec. 3.3; here lambda = 1 and
+// 10, alpha = 0.15: factors 0.85 and 0.5, so 0.85 rules after a few steps). Stopped after 25
+// iterations, then run again without the limit.
+struct LinearRun {
+    FormulaObjective f{"0.5*x^2 + 5*y^2", {"x", "y"}};
+    solve::OptionValues options{{"line_search", "fixed"}, {"step_size", "0.15"}};
     solve::StoppingRules rules;
-    rules.maxIterations = 25;
-    const solve::Run stopped = solve::solve("gradient-descent", f, vec(2, 1), options, rules);
-    ASSERT_EQ(stopped.termination, Termination::IterationLimit);
-    const Findings found = diagnose::diagnose(stopped, f, RunSetup{"gradient-descent", options, rules, vec(2, 1)}, false);
+    solve::Run stopped, full;
+    LinearRun() {
+        rules.maxIterations = 25;
+        stopped = solve::solve("gradient-descent", f, vec(2, 1), options, rules);
+        solve::StoppingRules unlimited = rules;
+        unlimited.maxIterations = 100000;
+        full = solve::solve("gradient-descent", f, vec(2, 1), options, unlimited);
+    }
+    Findings findings(bool remedies) const {
+        return diagnose::diagnose(stopped, f, RunSetup{"gradient-descent", options, rules, vec(2, 1)}, remedies);
+    }
+};
+
+TEST(BudgetExhaustedEstimate, MatchesARerunWithoutTheLimitOnALinearlyConvergingRun) {
+    const LinearRun r;
+    ASSERT_EQ(r.stopped.termination, Termination::IterationLimit);
+    ASSERT_EQ(r.full.termination, Termination::GradientTolerance);
+    const Findings found = r.findings(false);
     const Finding* budget = findById(found, FindingId::BudgetExhausted);
     ASSERT_NE(budget, nullptr);
     EXPECT_NEAR(budget->number("rate"), 0.85, 1e-3);
     const double more = budget->number("more_iterations");
-
-    rules.maxIterations = 100000;
-    const solve::Run full = solve::solve("gradient-descent", f, vec(2, 1), options, rules);
-    ASSERT_EQ(full.termination, Termination::GradientTolerance);
     // The estimate is within two iterations of what the rerun took (it counts fractional
     // iterations; the solver stops at the first whole one under the tolerance).
-    EXPECT_NEAR(25 + more, full.iterations(), 2.0) << "estimated " << more << " more after 25";
+    EXPECT_NEAR(25 + more, r.full.iterations(), 2.0) << "estimated " << more << " more after 25";
 }
 
 TEST(BudgetExhaustedEstimate, TheRaisedLimitOfTheRemedyIsEnoughOnALinearlyConvergingRun) {
-    const FormulaObjective f("0.5*x^2 + 5*y^2", {"x", "y"});
-    const solve::OptionValues options{{"line_search", "fixed"}, {"step_size", "0.15"}};
-    solve::StoppingRules rules;
-    rules.maxIterations = 25;
-    const solve::Run stopped = solve::solve("gradient-descent", f, vec(2, 1), options, rules);
-    const Findings found = diagnose::diagnose(stopped, f, RunSetup{"gradient-descent", options, rules, vec(2, 1)}, true);
+    const LinearRun r;
+    const Findings found = r.findings(true);
     const Finding* budget = findById(found, FindingId::BudgetExhausted);
     ASSERT_NE(budget, nullptr);
     ASSERT_TRUE(budget->remedy && budget->remedy->outcome);
     EXPECT_EQ(budget->remedy->change.kind, Change::Kind::RaiseIterationLimit);
     EXPECT_TRUE(budget->remedy->outcome->helped) << budget->remedy->outcome->text;
     // 1.25 times the estimate: room to spare, not a blind large number.
-    rules.maxIterations = 100000;
-    const solve::Run full = solve::solve("gradient-descent", f, vec(2, 1), options, rules);
-    EXPECT_GE(budget->remedy->change.maxIterations, full.iterations());
-    EXPECT_LE(budget->remedy->change.maxIterations, 1.3 * full.iterations() + 10);
+    EXPECT_GE(budget->remedy->change.maxIterations, r.full.iterations());
+    EXPECT_LE(budget->remedy->change.maxIterations, 1.3 * r.full.iterations() + 10);
 }
 
 }  // namespace
