@@ -83,7 +83,9 @@ void printTrace(std::ostream& out, const solve::Run& run, const std::vector<std:
         row.push_back(std::isnan(r.stepNorm) ? "-" : num(r.stepNorm, 3));
         row.push_back(countsText(r.evaluations));
         std::string note = r.note.text();
-        if (!r.accepted) note = "rejected" + std::string(note.empty() ? "" : "; ") + note;
+        // Most methods' notes already say so ("step rejected (ratio ...)"); say it once.
+        if (!r.accepted && note.find("rejected") == std::string::npos)
+            note = "rejected" + std::string(note.empty() ? "" : "; ") + note;
         row.push_back(note);
         table.add(row);
     }

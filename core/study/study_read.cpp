@@ -564,6 +564,9 @@ std::vector<MethodEntry> readMethods(const Json& document, bool residualForm) {
                     if (!problem.empty()) contentProblem(in.at("options"), problem);
                 }
         }
+        if (!in.has("colour"))
+            ObjectReader::fail(in.at("colour"), "missing (required): the colour of this method's paths and marks, "
+                                                "as \"#rrggbb\" (for example \"#002ddd\")");
         entry.colour = lowercase(in.text("colour", "", true));
         if (!validColour(entry.colour))
             ObjectReader::fail(in.at("colour"), "must be a colour \"#rrggbb\" (got " + shown(in.get("colour")) + ")");
@@ -724,6 +727,12 @@ Study readDocument(const std::string& text, const std::string& baseDirectory, bo
         DataFit fit;
         fit.dataPath = objective.text("data", "", true);
         if (fit.dataPath.empty()) contentProblem(objective.at("data"), "is empty; give the data file's path");
+        // A hand-written study does not know it yet: say how to get it.
+        if (!objective.has("checksum") && !readingAsTyped())
+            ObjectReader::fail(objective.at("checksum"),
+                               "missing (required): the data file's SHA-256 as \"sha256:\" and 64 hex digits (what "
+                               "`sha256sum " + fit.dataPath + "` prints), which ties the study to these data; saving "
+                               "the study in the window records it");
         fit.checksum = lowercase(objective.text("checksum", "", true));
         const bool checksumShape = fit.checksum.size() == 7 + 64 && fit.checksum.rfind("sha256:", 0) == 0 &&
                                    std::all_of(fit.checksum.begin() + 7, fit.checksum.end(),

@@ -142,6 +142,12 @@ std::vector<BadStudy> badStudies() {
         {"fit key in a formula study", edited([](Json& d) { d["objective"]["loss"] = "huber"; }), "objective.loss",
          "data-fit mode"},
         {"no objective", edited([](Json& d) { d.erase("objective"); }), "objective", "missing"},
+        {"a data fit without the table's checksum", edited([](Json& d) {
+             d["objective"] = Json{{"data", "bench.csv"}, {"model", "gain*x"}, {"response", "y"}};
+         }),
+         "objective.checksum", "what `sha256sum bench.csv` prints"},
+        {"a method without its colour", edited([](Json& d) { d["methods"][0].erase("colour"); }), "methods[0].colour",
+         "missing (required): the colour of this method's paths and marks, as \"#rrggbb\""},
         {"iteration limit zero", edited([](Json& d) { d["stopping"]["max_iterations"] = 0; }),
          "stopping.max_iterations", "from 1 to"},
         {"negative tolerance", edited([](Json& d) { d["stopping"]["gradient_norm_below"] = -1; }),
